@@ -1,0 +1,1 @@
+//! Lower bounds on the cost of any plan.

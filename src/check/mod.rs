@@ -1,0 +1,1 @@
+//! Independent plan checker: verifies a plan from the instance alone.

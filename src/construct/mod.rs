@@ -1,0 +1,1 @@
+//! Construction heuristics: path-scanning and route-first cluster-second splitting.

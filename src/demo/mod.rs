@@ -1,0 +1,1 @@
+//! Seeded generator of invented demo towns.

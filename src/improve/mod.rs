@@ -1,0 +1,1 @@
+//! Improvement: local search moves and Merge-Split.

@@ -1,0 +1,6 @@
+//! Readers and writers: the public research text format, our JSON scenario
+//! format, and plan files.
+
+pub mod dat;
+
+pub use dat::{read_dat, read_dat_file};

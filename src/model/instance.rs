@@ -1,0 +1,303 @@
+use std::collections::VecDeque;
+
+use serde::{Deserialize, Serialize};
+
+use super::{Cost, Fleet, Network, ServeDirection};
+
+/// Why a network, fleet and depot do not make a valid instance.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[non_exhaustive]
+pub enum ModelError {
+    /// The depot index is not a junction.
+    #[error("depot {depot} is not a junction (the network has {junctions})")]
+    DepotOutOfRange { depot: usize, junctions: usize },
+    /// A link refers to a junction that does not exist.
+    #[error("link {link} refers to junction {junction}, but the network has {junctions}")]
+    LinkEndOutOfRange {
+        link: usize,
+        junction: usize,
+        junctions: usize,
+    },
+    /// A cost, time or demand is negative.
+    #[error("link {link}: {what} must not be negative, found {value}")]
+    Negative {
+        link: usize,
+        what: &'static str,
+        value: Cost,
+    },
+    /// The trucks' capacity is not positive.
+    #[error("vehicle capacity must be positive, found {capacity}")]
+    BadCapacity { capacity: Cost },
+    /// A single required link needs more than a whole truck.
+    #[error("link {link}: demand {demand} exceeds the vehicle capacity {capacity}")]
+    DemandExceedsCapacity {
+        link: usize,
+        demand: Cost,
+        capacity: Cost,
+    },
+    /// A required link cannot be served on a round trip from the depot.
+    #[error("link {link} is required but cannot be reached from the depot and back")]
+    Unreachable { link: usize },
+    /// A required link alone (depot, serve, depot) takes longer than a shift.
+    #[error("link {link}: serving it on its own takes {time}, more than the shift limit {limit}")]
+    ExceedsShift {
+        link: usize,
+        time: Cost,
+        limit: Cost,
+    },
+    /// The fleet allows zero vehicles but there is work to do.
+    #[error("the fleet allows no vehicle but there are {tasks} required links")]
+    NoVehicles { tasks: usize },
+}
+
+impl ModelError {
+    /// The link the error is about, if any (readers map it back to a source line).
+    pub fn link(&self) -> Option<usize> {
+        match *self {
+            ModelError::LinkEndOutOfRange { link, .. }
+            | ModelError::Negative { link, .. }
+            | ModelError::DemandExceedsCapacity { link, .. }
+            | ModelError::Unreachable { link }
+            | ModelError::ExceedsShift { link, .. } => Some(link),
+            _ => None,
+        }
+    }
+}
+
+/// The direction in which a task is served.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+pub enum Dir {
+    /// From the link's `from` junction to its `to` junction.
+    Forward,
+    /// From `to` to `from`.
+    Backward,
+}
+
+impl Dir {
+    /// The other direction.
+    pub fn flip(self) -> Dir {
+        match self {
+            Dir::Forward => Dir::Backward,
+            Dir::Backward => Dir::Forward,
+        }
+    }
+}
+
+/// A required link, as the solvers see it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Task {
+    /// Index of the link in [`Network::links`].
+    pub link: usize,
+    /// The link's `from` junction.
+    pub tail: usize,
+    /// The link's `to` junction.
+    pub head: usize,
+    /// Demand.
+    pub demand: Cost,
+    /// Cost of serving (paid once, whichever direction).
+    pub cost: Cost,
+    /// Time of serving.
+    pub time: Cost,
+    /// Whether it may be served [`Dir::Backward`] too.
+    pub either: bool,
+}
+
+impl Task {
+    /// Start and end junction when served in direction `dir`.
+    pub fn ends(&self, dir: Dir) -> (usize, usize) {
+        match dir {
+            Dir::Forward => (self.tail, self.head),
+            Dir::Backward => (self.head, self.tail),
+        }
+    }
+
+    /// Whether `dir` is an allowed service direction.
+    pub fn allows(&self, dir: Dir) -> bool {
+        dir == Dir::Forward || self.either
+    }
+}
+
+/// A validated routing instance: network, fleet, depot and the derived tasks.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Instance {
+    /// A name for reports.
+    pub name: String,
+    network: Network,
+    fleet: Fleet,
+    depot: usize,
+    tasks: Vec<Task>,
+}
+
+impl Instance {
+    /// Validates and builds an instance.
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(0, 1, 4, 2);
+    /// net.add_required_edge(1, 2, 5, 3);
+    /// net.add_edge(2, 0, 7);
+    /// let inst = Instance::new("triangle", net, Fleet::with_capacity(10), 0).unwrap();
+    /// assert_eq!(inst.tasks().len(), 2);
+    /// ```
+    pub fn new(
+        name: impl Into<String>,
+        network: Network,
+        fleet: Fleet,
+        depot: usize,
+    ) -> Result<Instance, ModelError> {
+        let n = network.junctions.len();
+        if depot >= n {
+            return Err(ModelError::DepotOutOfRange {
+                depot,
+                junctions: n,
+            });
+        }
+        if fleet.capacity <= 0 {
+            return Err(ModelError::BadCapacity {
+                capacity: fleet.capacity,
+            });
+        }
+        let mut tasks = Vec::new();
+        for (i, l) in network.links.iter().enumerate() {
+            for j in [l.from, l.to] {
+                if j >= n {
+                    return Err(ModelError::LinkEndOutOfRange {
+                        link: i,
+                        junction: j,
+                        junctions: n,
+                    });
+                }
+            }
+            let neg = |what, value: Cost| {
+                if value < 0 {
+                    Err(ModelError::Negative {
+                        link: i,
+                        what,
+                        value,
+                    })
+                } else {
+                    Ok(())
+                }
+            };
+            neg("cost", l.cost)?;
+            neg("time", l.time.unwrap_or(0))?;
+            if let Some(s) = &l.service {
+                neg("service cost", s.cost)?;
+                neg("service time", s.time.unwrap_or(0))?;
+                neg("demand", s.demand)?;
+                if s.demand > fleet.capacity {
+                    return Err(ModelError::DemandExceedsCapacity {
+                        link: i,
+                        demand: s.demand,
+                        capacity: fleet.capacity,
+                    });
+                }
+                tasks.push(Task {
+                    link: i,
+                    tail: l.from,
+                    head: l.to,
+                    demand: s.demand,
+                    cost: s.cost,
+                    time: s.time.unwrap_or(s.cost),
+                    either: s.direction == ServeDirection::Either && !l.oneway,
+                });
+            }
+        }
+        if fleet.max_vehicles == Some(0) && !tasks.is_empty() {
+            return Err(ModelError::NoVehicles { tasks: tasks.len() });
+        }
+        let inst = Instance {
+            name: name.into(),
+            network,
+            fleet,
+            depot,
+            tasks,
+        };
+        inst.check_reachable()?;
+        Ok(inst)
+    }
+
+    fn check_reachable(&self) -> Result<(), ModelError> {
+        let n = self.network.junctions.len();
+        let mut out: Vec<Vec<usize>> = vec![Vec::new(); n];
+        let mut inn: Vec<Vec<usize>> = vec![Vec::new(); n];
+        for l in &self.network.links {
+            out[l.from].push(l.to);
+            inn[l.to].push(l.from);
+            if !l.oneway {
+                out[l.to].push(l.from);
+                inn[l.from].push(l.to);
+            }
+        }
+        let reach = |adj: &Vec<Vec<usize>>| {
+            let mut seen = vec![false; n];
+            let mut q = VecDeque::from([self.depot]);
+            seen[self.depot] = true;
+            while let Some(v) = q.pop_front() {
+                for &w in &adj[v] {
+                    if !seen[w] {
+                        seen[w] = true;
+                        q.push_back(w);
+                    }
+                }
+            }
+            seen
+        };
+        let from_depot = reach(&out);
+        let to_depot = reach(&inn);
+        for t in &self.tasks {
+            let ok = [Dir::Forward, Dir::Backward]
+                .into_iter()
+                .filter(|&d| t.allows(d))
+                .any(|d| {
+                    let (s, e) = t.ends(d);
+                    from_depot[s] && to_depot[e]
+                });
+            if !ok {
+                return Err(ModelError::Unreachable { link: t.link });
+            }
+        }
+        Ok(())
+    }
+
+    /// The street network.
+    pub fn network(&self) -> &Network {
+        &self.network
+    }
+
+    /// The fleet.
+    pub fn fleet(&self) -> &Fleet {
+        &self.fleet
+    }
+
+    /// The depot junction (index into the network's junctions).
+    pub fn depot(&self) -> usize {
+        self.depot
+    }
+
+    /// The tasks, one per required link, in link order.
+    pub fn tasks(&self) -> &[Task] {
+        &self.tasks
+    }
+
+    /// Sum of all task demands.
+    pub fn total_demand(&self) -> Cost {
+        self.tasks.iter().map(|t| t.demand).sum()
+    }
+
+    /// Sum of all task service costs (paid by every plan).
+    pub fn total_service_cost(&self) -> Cost {
+        self.tasks.iter().map(|t| t.cost).sum()
+    }
+
+    /// Whether any time differs from its cost (then shift limits need a time matrix).
+    pub fn has_times(&self) -> bool {
+        self.network.has_times()
+    }
+
+    /// Returns a copy with another fleet, revalidated.
+    pub fn with_fleet(&self, fleet: Fleet) -> Result<Instance, ModelError> {
+        Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)
+    }
+}

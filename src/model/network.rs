@@ -1,0 +1,147 @@
+use serde::{Deserialize, Serialize};
+
+use super::Cost;
+
+/// A junction (vertex) of the street network.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Junction {
+    /// The junction's number in the source data (1-based in the public sets,
+    /// node ids for map data). Plans written to files use this number.
+    pub id: u64,
+    /// Optional coordinates (any planar or lon/lat system; used for maps).
+    pub x: Option<f64>,
+    /// See `x`.
+    pub y: Option<f64>,
+}
+
+/// In which directions a required link may be served.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub enum ServeDirection {
+    /// Either direction (the classic undirected CARP edge).
+    Either,
+    /// Only from `Link::from` to `Link::to` (a one-way street, or one side of
+    /// a street whose sides are served separately).
+    Forward,
+}
+
+/// What serving a required link involves.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ServiceSpec {
+    /// Demand collected (or salt spread, ...) when the link is served.
+    pub demand: Cost,
+    /// Cost of driving the link while serving it (counted in the plan's total).
+    pub cost: Cost,
+    /// Time taken to serve it; `None` means equal to `cost`.
+    pub time: Option<Cost>,
+    /// Allowed service directions.
+    pub direction: ServeDirection,
+}
+
+/// A street segment between two junctions.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Link {
+    /// Index of the first junction in [`Network::junctions`].
+    pub from: usize,
+    /// Index of the second junction.
+    pub to: usize,
+    /// One-way: may only be driven from `from` to `to`.
+    pub oneway: bool,
+    /// Cost of driving the link without serving it (deadheading).
+    pub cost: Cost,
+    /// Driving time without serving; `None` means equal to `cost`.
+    pub time: Option<Cost>,
+    /// `Some` when the link is required.
+    pub service: Option<ServiceSpec>,
+    /// Street name, for route sheets.
+    pub name: Option<String>,
+}
+
+impl Link {
+    /// Deadhead driving time (the cost when no time is given).
+    pub fn drive_time(&self) -> Cost {
+        self.time.unwrap_or(self.cost)
+    }
+}
+
+/// A mixed multigraph of junctions and links.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct Network {
+    /// The junctions; links refer to them by index.
+    pub junctions: Vec<Junction>,
+    /// The links.
+    pub links: Vec<Link>,
+}
+
+impl Network {
+    /// A network of `n` junctions numbered `1..=n` without coordinates.
+    pub fn with_junctions(n: usize) -> Self {
+        Network {
+            junctions: (1..=n as u64)
+                .map(|id| Junction {
+                    id,
+                    x: None,
+                    y: None,
+                })
+                .collect(),
+            links: Vec::new(),
+        }
+    }
+
+    /// Adds a link and returns its index.
+    pub fn add_link(&mut self, link: Link) -> usize {
+        self.links.push(link);
+        self.links.len() - 1
+    }
+
+    /// Adds a two-way link that is required in either direction, with equal
+    /// service and deadhead cost (the public sets' convention).
+    pub fn add_required_edge(&mut self, from: usize, to: usize, cost: Cost, demand: Cost) -> usize {
+        self.add_link(Link {
+            from,
+            to,
+            oneway: false,
+            cost,
+            time: None,
+            service: Some(ServiceSpec {
+                demand,
+                cost,
+                time: None,
+                direction: ServeDirection::Either,
+            }),
+            name: None,
+        })
+    }
+
+    /// Adds a two-way link that may only be deadheaded.
+    pub fn add_edge(&mut self, from: usize, to: usize, cost: Cost) -> usize {
+        self.add_link(Link {
+            from,
+            to,
+            oneway: false,
+            cost,
+            time: None,
+            service: None,
+            name: None,
+        })
+    }
+
+    /// Number of junctions.
+    pub fn len(&self) -> usize {
+        self.junctions.len()
+    }
+
+    /// True when there are no junctions.
+    pub fn is_empty(&self) -> bool {
+        self.junctions.is_empty()
+    }
+
+    /// Whether any link carries an explicit time (then times may differ from costs).
+    pub fn has_times(&self) -> bool {
+        self.links.iter().any(|l| {
+            l.time.is_some_and(|t| t != l.cost)
+                || l.service
+                    .as_ref()
+                    .is_some_and(|s| s.time.is_some_and(|t| t != s.cost))
+        })
+    }
+}

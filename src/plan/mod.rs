@@ -1,0 +1,174 @@
+//! Plans: routes of ordered services, their costs and loads, and their explicit walks.
+//!
+//! The total cost of a plan follows the convention of the published values:
+//! service cost of every task plus every deadhead driven, including the legs
+//! from and back to the depot.
+
+use serde::{Deserialize, Serialize};
+
+use crate::model::{Cost, Dir, Instance};
+use crate::paths::{Distances, UNREACHABLE};
+
+/// One service: a task served in a direction.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub struct Visit {
+    /// Task index into [`Instance::tasks`].
+    pub task: usize,
+    /// Service direction.
+    pub dir: Dir,
+}
+
+impl Visit {
+    /// Shorthand constructor.
+    pub fn new(task: usize, dir: Dir) -> Self {
+        Visit { task, dir }
+    }
+}
+
+/// One truck's route: depot, the services in order (with shortest deadheads
+/// between them), depot.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Route {
+    /// Services in driving order.
+    pub visits: Vec<Visit>,
+    /// Total demand served.
+    pub load: Cost,
+    /// Service plus deadhead cost.
+    pub cost: Cost,
+    /// Service plus driving time (compared with the shift limit).
+    pub time: Cost,
+}
+
+/// A fleet plan.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Plan {
+    /// The routes, one per truck used.
+    pub routes: Vec<Route>,
+    /// Sum of the routes' costs.
+    pub cost: Cost,
+}
+
+/// Load, cost and time of a sequence of visits driven from the depot and back.
+/// The cost is at least [`UNREACHABLE`] when a leg has no path.
+pub fn evaluate(inst: &Instance, dist: &Distances, visits: &[Visit]) -> (Cost, Cost, Cost) {
+    let depot = inst.depot();
+    let (mut load, mut cost, mut time) = (0, 0, 0);
+    let mut at = depot;
+    for v in visits {
+        let t = &inst.tasks()[v.task];
+        let (s, e) = t.ends(v.dir);
+        let c = dist.cost(at, s);
+        if c >= UNREACHABLE {
+            return (load, UNREACHABLE, UNREACHABLE);
+        }
+        cost += c + t.cost;
+        time += dist.time(at, s) + t.time;
+        load += t.demand;
+        at = e;
+    }
+    if !visits.is_empty() {
+        let c = dist.cost(at, depot);
+        if c >= UNREACHABLE {
+            return (load, UNREACHABLE, UNREACHABLE);
+        }
+        cost += c;
+        time += dist.time(at, depot);
+    }
+    (load, cost, time)
+}
+
+impl Route {
+    /// Builds a route and computes its load, cost and time.
+    pub fn new(inst: &Instance, dist: &Distances, visits: Vec<Visit>) -> Route {
+        let (load, cost, time) = evaluate(inst, dist, &visits);
+        Route {
+            visits,
+            load,
+            cost,
+            time,
+        }
+    }
+}
+
+/// One link driven in a walk.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Step {
+    /// Link index.
+    pub link: usize,
+    /// Junction where the step starts.
+    pub from: usize,
+    /// Junction where it ends.
+    pub to: usize,
+    /// True when the link is served on this step, false when deadheaded.
+    pub serve: bool,
+}
+
+impl Plan {
+    /// Builds a plan from visit sequences, dropping empty ones.
+    pub fn from_visits(inst: &Instance, dist: &Distances, routes: Vec<Vec<Visit>>) -> Plan {
+        let routes: Vec<Route> = routes
+            .into_iter()
+            .filter(|r| !r.is_empty())
+            .map(|r| Route::new(inst, dist, r))
+            .collect();
+        let cost = routes.iter().map(|r| r.cost).sum();
+        Plan { routes, cost }
+    }
+
+    /// The plan's total service cost (equal for every feasible plan).
+    pub fn service_cost(&self, inst: &Instance) -> Cost {
+        self.routes
+            .iter()
+            .flat_map(|r| &r.visits)
+            .map(|v| inst.tasks()[v.task].cost)
+            .sum()
+    }
+
+    /// The plan's deadhead cost.
+    pub fn deadhead_cost(&self, inst: &Instance) -> Cost {
+        self.cost - self.service_cost(inst)
+    }
+
+    /// Number of tasks served.
+    pub fn visits(&self) -> usize {
+        self.routes.iter().map(|r| r.visits.len()).sum()
+    }
+
+    /// Writes route `r` out as an explicit walk from the depot and back:
+    /// every link driven, marked serve or deadhead.
+    pub fn walk(&self, inst: &Instance, dist: &Distances, r: usize) -> Vec<Step> {
+        walk(inst, dist, &self.routes[r].visits)
+    }
+}
+
+/// Expands visits into the explicit walk from the depot and back.
+pub fn walk(inst: &Instance, dist: &Distances, visits: &[Visit]) -> Vec<Step> {
+    let mut steps = Vec::new();
+    let mut at = inst.depot();
+    let leg = |steps: &mut Vec<Step>, a: usize, b: usize| {
+        for h in dist.path(a, b).unwrap_or_default() {
+            steps.push(Step {
+                link: h.link,
+                from: h.from,
+                to: h.to,
+                serve: false,
+            });
+        }
+    };
+    for v in visits {
+        let t = &inst.tasks()[v.task];
+        let (s, e) = t.ends(v.dir);
+        leg(&mut steps, at, s);
+        steps.push(Step {
+            link: t.link,
+            from: s,
+            to: e,
+            serve: true,
+        });
+        at = e;
+    }
+    if !visits.is_empty() {
+        leg(&mut steps, at, inst.depot());
+    }
+    steps
+}

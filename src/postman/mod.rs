@@ -1,0 +1,1 @@
+//! Postman tours: Euler tours, Chinese and rural postman.

@@ -1,0 +1,1 @@
+//! Outputs for people: route sheets, GeoJSON and SVG maps.

@@ -1,0 +1,1 @@
+//! The metaheuristic search and the solver entry point.
