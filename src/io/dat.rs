@@ -119,7 +119,7 @@ fn parse_edge(file: &str, line: usize, s: &str, required: bool, n: usize) -> Res
         (Some(a), Some(b), None) => (a, b),
         _ => return Err(bad("two vertices `( u , v)`")),
     };
-    let mut vert = |t: &str| -> Result<usize> {
+    let vert = |t: &str| -> Result<usize> {
         let x = num(file, line, t, "a vertex number")?;
         if x < 1 || x as usize > n {
             return Err(Error::parse(
