@@ -174,6 +174,7 @@ impl Distances {
         } else {
             Vec::new()
         };
+        #[allow(clippy::type_complexity)]
         let rows: Vec<(usize, &mut [u32], Option<&mut [u32]>)> = if with_times {
             cost.chunks_mut(k.max(1))
                 .zip(time.chunks_mut(k.max(1)))
