@@ -109,9 +109,15 @@ pub struct LocalSearch<'m> {
     order: Vec<usize>,
     /// Moves applied in the last run (for statistics).
     pub moves: u64,
+    pen_load: i64,
+    pen_time: i64,
 }
 
 const INFEASIBLE: i64 = i64::MAX / 4;
+
+/// Internal costs are scaled by this factor so that penalty weights can be
+/// fractional per unit of excess.
+pub const SCALE: i64 = 100;
 
 impl<'m> LocalSearch<'m> {
     /// A new engine over a matrix and its neighbour lists.
@@ -125,7 +131,38 @@ impl<'m> LocalSearch<'m> {
             clock: 1,
             order: (0..m.n).collect(),
             moves: 0,
+            pen_load: 0,
+            pen_time: 0,
         }
+    }
+
+    /// Penalty weights (in 1/[`SCALE`] cost units per unit of excess load and
+    /// excess time). With both 0 (the default) every route must stay within
+    /// capacity and shift; otherwise excesses are allowed at that price.
+    pub fn set_penalties(&mut self, load: i64, time: i64) {
+        self.pen_load = load;
+        self.pen_time = time;
+    }
+
+    #[inline(always)]
+    fn penalised(&self, cost: i64, load: i64, time: i64) -> i64 {
+        let m = self.m;
+        let mut v = cost * SCALE;
+        if load > m.capacity {
+            if self.pen_load == 0 {
+                return INFEASIBLE;
+            }
+            v += self.pen_load * (load - m.capacity);
+        }
+        if let Some(sh) = m.shift {
+            if time > sh {
+                if self.pen_time == 0 {
+                    return INFEASIBLE;
+                }
+                v += self.pen_time * (time - sh);
+            }
+        }
+        v
     }
 
     fn rebuild(&mut self, r: usize) {
@@ -157,9 +194,16 @@ impl<'m> LocalSearch<'m> {
             rd.pl[k] = rd.pl[k - 1] + m.demand[b as usize];
             rd.pf[k] = rd.pf[k - 1] + (!m.allowed[(b ^ 1) as usize]) as u32;
         }
-        rd.cost = rd.pd[len - 1] + rd.ps[len - 1];
-        rd.time = rd.td[len - 1] + rd.pst[len - 1];
-        rd.load = rd.pl[len - 1];
+        let (c, t, l) = (
+            rd.pd[len - 1] + rd.ps[len - 1],
+            rd.td[len - 1] + rd.pst[len - 1],
+            rd.pl[len - 1],
+        );
+        let pc = self.penalised(c, l, t);
+        let rd = &mut self.routes[r];
+        rd.time = t;
+        rd.load = l;
+        rd.cost = pc;
         rd.modified = self.clock;
         for k in 1..len - 1 {
             self.pos[ArcMatrix::task(rd.arcs[k])] = (r as u32, k as u32);
@@ -220,15 +264,7 @@ impl<'m> LocalSearch<'m> {
             acc.load += s.load;
             acc.last = s.last;
         }
-        if acc.load > m.capacity {
-            return INFEASIBLE;
-        }
-        if let Some(sh) = m.shift {
-            if acc.time > sh {
-                return INFEASIBLE;
-            }
-        }
-        acc.cost
+        self.penalised(acc.cost, acc.load, acc.time)
     }
 
     fn materialize(&mut self, pieces: &[Piece]) -> Vec<u32> {
@@ -320,13 +356,21 @@ impl<'m> LocalSearch<'m> {
             .collect()
     }
 
-    /// Current total cost.
-    pub fn cost(&self) -> i64 {
-        self.routes.iter().map(|r| r.cost).sum()
+    /// Current total cost (unpenalised) and whether every route is feasible.
+    pub fn cost(&self) -> (i64, bool) {
+        let mut total = 0;
+        let mut ok = true;
+        for r in &self.routes {
+            let len = r.arcs.len();
+            total += r.pd[len - 1] + r.ps[len - 1];
+            ok &= r.load <= self.m.capacity && self.m.shift.map_or(true, |s| r.time <= s);
+        }
+        (total, ok)
     }
 
-    /// Improves `routes` until no move improves; returns the routes and cost.
-    pub fn run<R: Rng>(&mut self, routes: &[Vec<u32>], rng: &mut R) -> (Vec<Vec<u32>>, i64) {
+    /// Improves `routes` until no move improves the (penalised) cost; returns
+    /// the routes, their true cost and whether all are feasible.
+    pub fn run<R: Rng>(&mut self, routes: &[Vec<u32>], rng: &mut R) -> (Vec<Vec<u32>>, i64, bool) {
         self.load(routes);
         self.moves = 0;
         self.last_tested.iter_mut().for_each(|x| *x = 0);
@@ -372,7 +416,8 @@ impl<'m> LocalSearch<'m> {
         }
         self.order = order;
         self.ensure_empty();
-        (self.routes(), self.cost())
+        let (c, ok) = self.cost();
+        (self.routes(), c, ok)
     }
 
     fn empty_route(&self) -> Option<usize> {
@@ -483,7 +528,9 @@ impl<'m> LocalSearch<'m> {
         } else {
             0
         };
-        if ru_d.load - load_a + load_b > cap || rv_d.load - load_b + load_a > cap {
+        if self.pen_load == 0
+            && (ru_d.load - load_a + load_b > cap || rv_d.load - load_b + load_a > cap)
+        {
             return false;
         }
         let old = ru_d.cost + rv_d.cost;

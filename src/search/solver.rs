@@ -40,11 +40,11 @@ use rand_chacha::ChaCha12Rng;
 use rayon::prelude::*;
 
 use crate::bounds::{bound, LowerBound};
-use crate::construct::arcs::ArcMatrix;
+use crate::construct::arcs::{ArcMatrix, BIG};
 use crate::construct::giant;
 use crate::construct::path_scanning::{path_scan, Rule, RULES};
 use crate::construct::split::{split, SplitFailure};
-use crate::improve::local_search::{neighbour_lists, LocalSearch, DEFAULT_NEIGHBOURS};
+use crate::improve::local_search::{neighbour_lists, LocalSearch, DEFAULT_NEIGHBOURS, SCALE};
 use crate::improve::merge_split::merge_split;
 use crate::model::{Cost, Instance};
 use crate::paths::{DistanceError, Distances};
@@ -307,7 +307,7 @@ impl<'a> Solver<'a> {
             .map(|k| {
                 let mut rng = ChaCha12Rng::seed_from_u64(self.seed);
                 rng.set_stream(k as u64 + 1);
-                Island::new(rng)
+                Island::new(rng, &m)
             })
             .collect();
         pool.install(|| islands.par_iter_mut().for_each(|isl| isl.init(&ctx)));
@@ -434,6 +434,7 @@ impl Ctx<'_> {
 /// Search parameters of one island.
 const RESTART_AFTER: u64 = 3000;
 const MS_RATE: f64 = 0.2;
+const TARGET_FEASIBLE: f64 = 0.2;
 
 struct Island {
     rng: ChaCha12Rng,
@@ -444,11 +445,28 @@ struct Island {
     iterations: u64,
     since_improvement: u64,
     initialised: bool,
+    pen_load: f64,
+    pen_time: f64,
+    feasible_window: (u64, u64),
 }
 
 impl Island {
-    fn new(rng: ChaCha12Rng) -> Self {
+    fn new(rng: ChaCha12Rng, m: &ArcMatrix) -> Self {
+        let mut max_d = 1i64;
+        for a in (0..m.arcs as u32).step_by(7) {
+            for b in (0..m.arcs as u32).step_by(5) {
+                let d = m.d(a, b);
+                if d < BIG as i64 {
+                    max_d = max_d.max(d);
+                }
+            }
+        }
+        let max_q = m.demand.iter().copied().max().unwrap_or(1).max(1);
+        let w = (max_d as f64 / max_q as f64).clamp(0.1, 1000.0);
         Island {
+            pen_load: w,
+            pen_time: 1.0,
+            feasible_window: (0, 0),
             rng,
             pop: Population::new(Params::default()),
             best: None,
@@ -460,7 +478,8 @@ impl Island {
         }
     }
 
-    /// Split + local search (+ Merge-Split) of a giant tour.
+    /// Split + local search with penalised excess (+ repair, + Merge-Split)
+    /// of a giant tour; returns a feasible individual or `None`.
     fn educate(&mut self, ctx: &Ctx, tour: &[usize], ls: &mut LocalSearch) -> Option<Individual> {
         let s = match split(ctx.m, tour) {
             Ok(s) => s,
@@ -471,14 +490,49 @@ impl Island {
             Err(SplitFailure::Infeasible) => return None,
         };
         self.fewest = self.fewest.min(s.routes.len());
-        let (mut routes, mut cost) = ls.run(&s.routes, &mut self.rng);
+        let scaled = |w: f64| ((w * SCALE as f64).round() as i64).max(1);
+        ls.set_penalties(scaled(self.pen_load), scaled(self.pen_time));
+        let (mut routes, mut cost, mut ok) = ls.run(&s.routes, &mut self.rng);
+        self.feasible_window.0 += u64::from(ok);
+        self.feasible_window.1 += 1;
+        let mut factor = 10.0;
+        while !ok && factor <= 1000.0 {
+            ls.set_penalties(
+                scaled(self.pen_load * factor),
+                scaled(self.pen_time * factor),
+            );
+            (routes, cost, ok) = ls.run(&routes, &mut self.rng);
+            factor *= 10.0;
+        }
+        if !ok {
+            return None;
+        }
         if self.rng.gen_bool(MS_RATE) {
             let gain = merge_split(ctx.m, ctx.neigh, &mut routes, 3, &mut self.rng);
             if gain > 0 {
-                (routes, cost) = ls.run(&routes, &mut self.rng);
+                ls.set_penalties(0, 0);
+                (routes, cost, _) = ls.run(&routes, &mut self.rng);
             }
         }
         Some(Individual::new(ctx.m.n, routes, cost))
+    }
+
+    /// Adapts the penalty weights towards the target share of feasible
+    /// local-search outcomes (as in hybrid genetic search).
+    fn adapt_penalties(&mut self) {
+        let (f, t) = self.feasible_window;
+        if t < 100 {
+            return;
+        }
+        let share = f as f64 / t as f64;
+        if share < TARGET_FEASIBLE - 0.05 {
+            self.pen_load = (self.pen_load * 1.2).min(1e5);
+            self.pen_time = (self.pen_time * 1.2).min(1e5);
+        } else if share > TARGET_FEASIBLE + 0.05 {
+            self.pen_load = (self.pen_load * 0.85).max(0.1);
+            self.pen_time = (self.pen_time * 0.85).max(0.1);
+        }
+        self.feasible_window = (0, 0);
     }
 
     fn offer(&mut self, ctx: &Ctx, ind: Individual) {
@@ -559,6 +613,7 @@ impl Island {
             }
             done += 1;
             self.iterations += 1;
+            self.adapt_penalties();
             self.since_improvement += 1;
             if self.since_improvement > RESTART_AFTER {
                 let keep = self.best.clone();
