@@ -26,7 +26,7 @@ fn shared() -> Option<PathBuf> {
 }
 
 /// instance -> (lower bound, best known, proven optimal)
-fn reference(dir: &PathBuf) -> HashMap<String, (i64, i64, bool)> {
+fn reference(dir: &std::path::Path) -> HashMap<String, (i64, i64, bool)> {
     let text = std::fs::read_to_string(dir.join("reference.csv")).unwrap();
     text.lines()
         .skip(1)
