@@ -419,6 +419,45 @@ impl<'m> LocalSearch<'m> {
         (self.routes(), c, ok)
     }
 
+    /// Loads `routes` and evaluates, without applying any, every relocation
+    /// of one task (both directions) right after each of its neighbours in
+    /// another route; returns the number of candidates evaluated and the
+    /// best (most negative) change of total cost. For benchmarks of the
+    /// constant-time evaluation.
+    pub fn scan_relocations(&mut self, routes: &[Vec<u32>]) -> (usize, i64) {
+        self.load(routes);
+        let mut count = 0;
+        let mut best = 0;
+        for u in 0..self.m.n {
+            let (ru, i) = self.pos[u];
+            let (ru, i) = (ru as usize, i as usize);
+            let lu = self.routes[ru].arcs.len();
+            let pu = [piece(ru, 0, i - 1, false), piece(ru, i + 1, lu - 1, false)];
+            let cu = self.eval(&pu) - self.routes[ru].cost;
+            for &v in &self.neigh[u] {
+                let (rv, j) = self.pos[v as usize];
+                let (rv, j) = (rv as usize, j as usize);
+                if rv == ru {
+                    continue;
+                }
+                let lv = self.routes[rv].arcs.len();
+                for rev in [false, true] {
+                    let pv = [
+                        piece(rv, 0, j, false),
+                        piece(ru, i, i, rev),
+                        piece(rv, j + 1, lv - 1, false),
+                    ];
+                    let c = self.eval(&pv);
+                    count += 1;
+                    if c < INFEASIBLE {
+                        best = best.min(cu + c - self.routes[rv].cost);
+                    }
+                }
+            }
+        }
+        (count, best / SCALE)
+    }
+
     fn empty_route(&self) -> Option<usize> {
         self.routes.iter().position(|r| r.arcs.len() == 2)
     }
