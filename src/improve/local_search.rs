@@ -33,7 +33,7 @@ use crate::construct::arcs::ArcMatrix;
 const EXCHANGES: &[(usize, usize)] = &[(1, 0), (2, 0), (1, 1), (2, 1), (1, 2), (2, 2), (3, 0)];
 
 /// Default neighbour-list size.
-pub const DEFAULT_NEIGHBOURS: usize = 12;
+pub const DEFAULT_NEIGHBOURS: usize = 8;
 
 /// For each task, its `k` nearest other tasks by [`ArcMatrix::task_gap`].
 pub fn neighbour_lists(m: &ArcMatrix, k: usize) -> Vec<Vec<u32>> {
@@ -293,9 +293,22 @@ impl<'m> LocalSearch<'m> {
             .collect();
         self.clock += 1;
         self.moves += 1;
+        let mut filled = false;
         for (r, arcs) in new {
+            filled |= self.routes[r].arcs.len() == 2 && arcs.len() > 2;
             self.routes[r].arcs = arcs;
             self.rebuild(r);
+        }
+        if filled && self.empty_route().is_none() {
+            let used = self.routes.len();
+            if self.m.max_routes.map_or(true, |k| used < k) {
+                self.routes.push(RouteData {
+                    arcs: vec![self.m.depot, self.m.depot],
+                    ..Default::default()
+                });
+                let r = self.routes.len() - 1;
+                self.rebuild(r);
+            }
         }
     }
 
@@ -496,7 +509,7 @@ impl<'m> LocalSearch<'m> {
         if ru != rv {
             for &(l1, l2) in EXCHANGES {
                 if self.try_exchange(ru, i, l1, rv, j, l2, true)
-                    || self.try_exchange(ru, i, l1, rv, j, l2, false)
+                    || (l2 <= l1.min(1) && self.try_exchange(ru, i, l1, rv, j, l2, false))
                 {
                     return true;
                 }
