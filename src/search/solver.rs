@@ -434,7 +434,7 @@ impl Ctx<'_> {
 /// Search parameters of one island.
 const RESTART_AFTER: u64 = 3000;
 const MS_RATE: f64 = 0.2;
-const TARGET_FEASIBLE: f64 = 0.2;
+const TARGET_FEASIBLE: f64 = 0.5;
 
 struct Island {
     rng: ChaCha12Rng,
