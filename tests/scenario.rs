@@ -1,0 +1,81 @@
+//! The JSON scenario format: a hand-written file reads as written, and
+//! read -> write -> read gives an equal instance, for that file and for every
+//! public benchmark instance in ../shared/instances.
+
+use std::path::Path;
+
+use arcwright::io::{read_dat_file, read_scenario, read_scenario_file, write_scenario};
+use arcwright::model::{Dir, ServeDirection};
+
+#[test]
+fn tiny_scenario_reads_as_written() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/tiny.json");
+    let inst = read_scenario_file(&path).unwrap();
+    assert_eq!(inst.name, "tiny town");
+    let net = inst.network();
+    assert_eq!(
+        net.junctions.iter().map(|j| j.id).collect::<Vec<_>>(),
+        [101, 102, 103, 104]
+    );
+    assert_eq!(net.junctions[2].y, Some(-80.25));
+    assert_eq!(net.junctions[3].x, None);
+    assert_eq!(net.links.len(), 5);
+    let l1 = &net.links[1];
+    assert_eq!(
+        (l1.from, l1.to, l1.oneway, l1.cost, l1.time),
+        (1, 2, true, 4, Some(5))
+    );
+    assert_eq!(net.links[0].name.as_deref(), Some("Mill Lane"));
+    let s0 = net.links[0].service.as_ref().unwrap();
+    assert_eq!((s0.demand, s0.cost, s0.time), (2, 4, Some(6)));
+    assert_eq!(s0.direction, ServeDirection::Either);
+    assert!(net.links[4].service.is_none());
+    assert_eq!(inst.depot(), 0);
+    assert_eq!(inst.fleet().capacity, 10);
+    assert_eq!(inst.fleet().shift_limit, Some(480));
+    assert_eq!(inst.fleet().max_vehicles, Some(2));
+    // Four tasks: only Mill Lane may be served both ways; the two sides of
+    // Station Road are separate forward-only tasks.
+    let t = inst.tasks();
+    assert_eq!(t.len(), 4);
+    assert_eq!(
+        t.iter().map(|t| t.either).collect::<Vec<_>>(),
+        [true, false, false, false]
+    );
+    assert_eq!(t[0].time, 6);
+    assert_eq!(t[1].time, 4, "service time defaults to service cost");
+    assert_eq!(t[2].ends(Dir::Forward), (2, 0));
+    assert_eq!(t[3].ends(Dir::Forward), (0, 2));
+
+    let text = write_scenario(&inst);
+    let again = read_scenario(&text, "written.json").unwrap();
+    assert_eq!(again, inst);
+    assert_eq!(write_scenario(&again), text, "writing is deterministic");
+}
+
+#[test]
+fn public_instances_round_trip() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
+    if !root.is_dir() {
+        println!("SKIPPED: {} is absent", root.display());
+        return;
+    }
+    let mut n = 0;
+    for set in ["gdb", "val", "egl"] {
+        let mut files: Vec<_> = std::fs::read_dir(root.join(set))
+            .unwrap()
+            .map(|e| e.unwrap().path())
+            .filter(|p| p.extension().is_some_and(|x| x == "dat"))
+            .collect();
+        files.sort();
+        for f in files {
+            let inst = read_dat_file(&f).unwrap().instance;
+            let text = write_scenario(&inst);
+            let again = read_scenario(&text, &f.display().to_string()).unwrap();
+            assert_eq!(again, inst, "{}", f.display());
+            n += 1;
+        }
+    }
+    println!("{n} instances written and read back equal");
+    assert_eq!(n, 81);
+}
