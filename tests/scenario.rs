@@ -79,3 +79,106 @@ fn public_instances_round_trip() {
     println!("{n} instances written and read back equal");
     assert_eq!(n, 81);
 }
+
+mod random {
+    use arcwright::io::{read_scenario, write_scenario};
+    use arcwright::model::{Fleet, Instance, Junction, Link, Network, ServeDirection, ServiceSpec};
+    use proptest::prelude::*;
+
+    fn opt<T: std::fmt::Debug + Clone>(
+        s: impl Strategy<Value = T>,
+    ) -> impl Strategy<Value = Option<T>> {
+        prop_oneof![Just(None), s.prop_map(Some)]
+    }
+
+    fn link(n: usize) -> impl Strategy<Value = Link> {
+        let service = opt(
+            (0..=5i64, 0..=50i64, opt(0..=80i64), any::<bool>()).prop_map(
+                |(demand, cost, time, fwd)| ServiceSpec {
+                    demand,
+                    cost,
+                    time,
+                    direction: if fwd {
+                        ServeDirection::Forward
+                    } else {
+                        ServeDirection::Either
+                    },
+                },
+            ),
+        );
+        (
+            0..n,
+            0..n,
+            any::<bool>(),
+            0..=1_000_000i64,
+            opt(0..=1_000_000i64),
+            service,
+            opt("[ -~]{0,12}|Straße [0-9]{1,3}|\"quoted\\\\\""),
+        )
+            .prop_map(|(from, to, oneway, cost, time, service, name)| Link {
+                from,
+                to,
+                oneway,
+                cost,
+                time,
+                service,
+                name,
+            })
+    }
+
+    /// Random valid instances: a two-way ring through all junctions keeps every
+    /// task reachable; extra links are arbitrary.
+    fn instance() -> impl Strategy<Value = Instance> {
+        (2..12usize).prop_flat_map(|n| {
+            (
+                prop::collection::vec(
+                    (
+                        any::<u64>(),
+                        opt(any::<f64>().prop_filter("finite", |x| x.is_finite())),
+                        opt(-1e7..1e7f64),
+                    ),
+                    n,
+                ),
+                prop::collection::vec(link(n), 0..20),
+                0..n,
+                (5..=20i64, opt(0..=10_000i64), opt(1..10usize)),
+                "[a-z ]{0,10}",
+            )
+                .prop_filter_map(
+                    "distinct ids, valid",
+                    move |(js, extra, depot, (capacity, shift, max), name)| {
+                        let mut ids: Vec<u64> = js.iter().map(|j| j.0).collect();
+                        ids.sort_unstable();
+                        ids.dedup();
+                        if ids.len() != n {
+                            return None;
+                        }
+                        let mut net = Network {
+                            junctions: js.iter().map(|&(id, x, y)| Junction { id, x, y }).collect(),
+                            links: Vec::new(),
+                        };
+                        for v in 0..n {
+                            net.add_edge(v, (v + 1) % n, 1);
+                        }
+                        net.links.extend(extra);
+                        let fleet = Fleet {
+                            capacity,
+                            shift_limit: shift,
+                            max_vehicles: max,
+                        };
+                        Instance::new(name, net, fleet, depot).ok()
+                    },
+                )
+        })
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+        #[test]
+        fn random_instances_round_trip(inst in instance()) {
+            let text = write_scenario(&inst);
+            let again = read_scenario(&text, "random.json").map_err(|e| TestCaseError::fail(e.to_string()))?;
+            prop_assert_eq!(again, inst);
+        }
+    }
+}
