@@ -51,6 +51,9 @@ fn tiny_scenario_reads_as_written() {
     let again = read_scenario(&text, "written.json").unwrap();
     assert_eq!(again, inst);
     assert_eq!(write_scenario(&again), text, "writing is deterministic");
+    // A leading byte-order mark is accepted.
+    let bom = format!("\u{feff}{text}");
+    assert_eq!(read_scenario(&bom, "bom.json").unwrap(), inst);
 }
 
 #[test]
