@@ -1,0 +1,1 @@
+//! Rural postman (placeholder while being written).
