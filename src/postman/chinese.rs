@@ -49,7 +49,12 @@ fn prepare(g: &Multigraph, start: usize) -> Result<(), PostmanError> {
 }
 
 /// Shortest-path cost rows from each of `from` to each of `to`.
-fn distance_rows(g: &Multigraph, from: &[usize], to: &[usize], directed: bool) -> Vec<Vec<Cost>> {
+pub(crate) fn distance_rows(
+    g: &Multigraph,
+    from: &[usize],
+    to: &[usize],
+    directed: bool,
+) -> Vec<Vec<Cost>> {
     let (start, adj) = g.adjacency(directed);
     from.par_iter()
         .map(|&s| {

@@ -188,9 +188,15 @@ pub fn check_tour(
     let mut seen = vec![false; g.edges.len()];
     let mut at = start;
     for (k, t) in tour.iter().enumerate() {
-        let e = g.edges.get(t.edge).ok_or(format!("step {k}: no edge {}", t.edge))?;
+        let e = g
+            .edges
+            .get(t.edge)
+            .ok_or(format!("step {k}: no edge {}", t.edge))?;
         if t.from != at {
-            return Err(format!("step {k} starts at {} but the walk is at {at}", t.from));
+            return Err(format!(
+                "step {k} starts at {} but the walk is at {at}",
+                t.from
+            ));
         }
         let ok = (e.u == t.from && e.v == t.to) || (!directed && e.v == t.from && e.u == t.to);
         if !ok || e.id != t.id {

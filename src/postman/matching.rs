@@ -42,7 +42,9 @@ impl PerfectMatching for DenseBlossom {
                 let c = cost(i, j);
                 if !(0..=COST_LIMIT).contains(&c) {
                     return Err(if c < 0 {
-                        PostmanError::Solver(format!("negative matching cost {c} for pair ({i}, {j})"))
+                        PostmanError::Solver(format!(
+                            "negative matching cost {c} for pair ({i}, {j})"
+                        ))
                     } else {
                         PostmanError::CostTooLarge {
                             value: c,
@@ -56,7 +58,9 @@ impl PerfectMatching for DenseBlossom {
         let mate = integer_blossom::min_weight_perfect_matching(&m, n);
         // Defensive: the result must be a perfect matching.
         if mate.len() != n || (0..n).any(|i| mate[i] >= n || mate[mate[i]] != i || mate[i] == i) {
-            return Err(PostmanError::Solver("matching solver returned an invalid matching".into()));
+            return Err(PostmanError::Solver(
+                "matching solver returned an invalid matching".into(),
+            ));
         }
         Ok(mate)
     }
@@ -97,7 +101,9 @@ mod tests {
     fn agrees_with_brute_force() {
         let mut seed = 7u64;
         let mut rnd = move || {
-            seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
             (seed >> 33) as Cost % 50
         };
         for n in [0, 2, 4, 6, 8, 10] {
@@ -108,7 +114,11 @@ mod tests {
                 assert_eq!(matching_cost(&mate, &c), brute(n, &c));
             }
         }
-        assert!(DenseBlossom.min_cost_perfect_matching(3, &|_, _| 1).is_err());
-        assert!(DenseBlossom.min_cost_perfect_matching(2, &|_, _| -1).is_err());
+        assert!(DenseBlossom
+            .min_cost_perfect_matching(3, &|_, _| 1)
+            .is_err());
+        assert!(DenseBlossom
+            .min_cost_perfect_matching(2, &|_, _| -1)
+            .is_err());
     }
 }

@@ -60,7 +60,11 @@ pub enum PostmanError {
     },
     /// A vertex or edge end is out of range.
     #[error("edge {edge} refers to vertex {vertex}, but the graph has {n}")]
-    VertexOutOfRange { edge: usize, vertex: usize, n: usize },
+    VertexOutOfRange {
+        edge: usize,
+        vertex: usize,
+        n: usize,
+    },
     /// The start vertex is out of range.
     #[error("start vertex {start} is out of range (the graph has {n})")]
     StartOutOfRange { start: usize, n: usize },
