@@ -32,6 +32,7 @@ pub mod graph;
 pub mod matching;
 pub mod rural;
 
+pub use chinese::PostmanTour;
 pub use flow::{FlowArc, SuccessiveShortestPaths, Transport};
 pub use graph::{Edge, Multigraph, Traversal};
 pub use matching::{DenseBlossom, PerfectMatching};
