@@ -575,3 +575,90 @@ fn one_route_per_task_on_gdb() {
         );
     }
 }
+
+/// The checker (its own Dijkstra) and the crate's evaluation (`paths` +
+/// `plan`) are two independent computations: on random instances and random
+/// plans they must agree on every load, cost and time, and the walks written
+/// by `plan::walk` must pass the walk checker with the same loads and times.
+#[test]
+fn agrees_with_the_crate_on_random_plans() {
+    use rand::seq::SliceRandom;
+    use rand::{Rng, SeedableRng};
+    let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(7);
+    let mut checked = 0;
+    let mut limits_hit = 0;
+    for _ in 0..300 {
+        let n = rng.gen_range(2..10);
+        let mut net = Network::with_junctions(n);
+        for v in 0..n {
+            let t = rng.gen_bool(0.5).then(|| rng.gen_range(0..9));
+            net.add_link(link(v, (v + 1) % n, false, rng.gen_range(0..9), t));
+        }
+        for _ in 0..rng.gen_range(1..3 * n) {
+            let (a, b) = (rng.gen_range(0..n), rng.gen_range(0..n));
+            let t = rng.gen_bool(0.5).then(|| rng.gen_range(0..9));
+            let mut l = link(a, b, rng.gen_bool(0.4), rng.gen_range(0..9), t);
+            if rng.gen_bool(0.7) {
+                let dir = if rng.gen_bool(0.3) {
+                    ServeDirection::Forward
+                } else {
+                    ServeDirection::Either
+                };
+                let st = rng.gen_bool(0.5).then(|| rng.gen_range(0..12));
+                l = serve(l, rng.gen_range(0..6), st, dir);
+                if let Some(s) = l.service.as_mut() {
+                    s.cost = rng.gen_range(0..9);
+                }
+            }
+            net.add_link(l);
+        }
+        let fleet = Fleet {
+            capacity: rng.gen_range(5..15),
+            shift_limit: Some(rng.gen_range(10..60)),
+            max_vehicles: None,
+        };
+        let inst = Instance::new("random", net, fleet.clone(), rng.gen_range(0..n)).unwrap();
+        let dist = Distances::new(&inst).unwrap();
+        let mut visits: Vec<Visit> = inst
+            .tasks()
+            .iter()
+            .enumerate()
+            .map(|(i, t)| Visit::new(i, if t.either && rng.gen_bool(0.5) { B } else { F }))
+            .collect();
+        visits.shuffle(&mut rng);
+        let k = rng.gen_range(1..=visits.len().max(1));
+        let mut routes: Vec<Vec<Visit>> = vec![Vec::new(); k];
+        for v in visits {
+            routes[rng.gen_range(0..k)].push(v);
+        }
+        let p = Plan::from_visits(&inst, &dist, routes);
+        let mut expected = Vec::new();
+        for (r, route) in p.routes.iter().enumerate() {
+            if route.load > fleet.capacity {
+                expected.push(Violation::OverCapacity {
+                    route: r,
+                    load: route.load,
+                    capacity: fleet.capacity,
+                });
+            }
+            if route.time > fleet.shift_limit.unwrap() {
+                expected.push(Violation::OverShift {
+                    route: r,
+                    time: route.time,
+                    limit: fleet.shift_limit.unwrap(),
+                });
+            }
+        }
+        limits_hit += usize::from(!expected.is_empty());
+        let got = check_plan(&inst, &p).err().unwrap_or_default();
+        assert_eq!(got, expected, "{inst:?}\n{p:?}");
+        let walks: Vec<_> = (0..p.routes.len())
+            .map(|r| p.walk(&inst, &dist, r))
+            .collect();
+        let got = check_walks(&inst, &walks).err().unwrap_or_default();
+        assert_eq!(got, expected, "walks {inst:?}\n{p:?}");
+        checked += 1;
+    }
+    println!("{checked} random plans agree; {limits_hit} of them break a limit");
+    assert!(limits_hit > 10 && limits_hit < checked - 10);
+}

@@ -198,14 +198,7 @@ impl Scan<'_> {
 
     fn ws(&mut self) {
         while let Some(c) = self.peek() {
-            if !(c == b' '
-                || c == b'\t'
-                || c == b'\r'
-                || c == b'\n'
-                || c == 0xEF
-                || c == 0xBB
-                || c == 0xBF)
-            {
+            if !matches!(c, b' ' | b'\t' | b'\r' | b'\n') {
                 break;
             }
             if c == b'\n' {
