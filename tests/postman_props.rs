@@ -38,7 +38,7 @@ fn doubled(g: &Multigraph) -> Multigraph {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(64))]
+    #![proptest_config(ProptestConfig::with_cases(128))]
 
     #[test]
     fn euler_tour_uses_every_link_once_and_is_closed(n in 2usize..60, extra in 0usize..80, seed: u64) {
@@ -91,7 +91,12 @@ proptest! {
             for v in 1..n { net.add_link(Link { from: v - 1, to: v, oneway: false, cost: r.gen_range(1..60), time: None, service: None, name: None }); }
         }
         let cap = r.gen_range(5..15);
-        let Ok(inst) = Instance::new("random", net, Fleet::with_capacity(cap), r.gen_range(0..n)) else {
+        let mut fleet = Fleet::with_capacity(cap);
+        if r.gen_bool(0.3) {
+            fleet.shift_limit = Some(r.gen_range(100..400));
+        }
+        let shift = fleet.shift_limit;
+        let Ok(inst) = Instance::new("random", net, fleet, r.gen_range(0..n)) else {
             return Ok(());
         };
         let dist = Distances::new(&inst).unwrap();
@@ -120,12 +125,16 @@ proptest! {
             }
             plans.push(routes);
         }
-        for routes in plans {
+        'plans: for routes in plans {
             let mut total = 0;
             for rt in routes.iter().filter(|rt| !rt.is_empty()) {
-                let (load, cost, _) = evaluate(&inst, &dist, rt);
+                let (load, cost, time) = evaluate(&inst, &dist, rt);
                 prop_assert!(load <= cap);
-                if cost >= UNREACHABLE { return Ok(()); }
+                prop_assert!(cost < UNREACHABLE);
+                if shift.is_some_and(|l| time > l) {
+                    // Not feasible under the shift limit: no claim.
+                    continue 'plans;
+                }
                 total += cost;
             }
             for b in all_bounds(&inst, &dist) {
