@@ -2,11 +2,13 @@
 //! graphs and instances (proptest), and two facts of the trade.
 
 use arcwright::bounds::{all_bounds, bound};
+use arcwright::check::check_walks;
 use arcwright::model::{Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec};
 use arcwright::paths::{Distances, UNREACHABLE};
 use arcwright::plan::{evaluate, Visit};
 use arcwright::postman::chinese::undirected_postman;
 use arcwright::postman::euler::{check_tour, euler_tour, is_eulerian};
+use arcwright::postman::rural::{rural_lower_bound, rural_tour};
 use arcwright::postman::Multigraph;
 use proptest::prelude::*;
 use rand::seq::SliceRandom;
@@ -39,6 +41,30 @@ fn doubled(g: &Multigraph) -> Multigraph {
 
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(128))]
+
+    #[test]
+    fn rural_tour_checks_and_respects_its_bound(n in 2usize..40, extra in 0usize..50, seed: u64) {
+        let mut r = ChaCha8Rng::seed_from_u64(seed ^ 0x5eed);
+        let g = connected(n, extra, seed);
+        let mut net = Network::with_junctions(n);
+        for e in &g.edges {
+            if r.gen_bool(0.4) {
+                net.add_required_edge(e.u, e.v, e.cost, 1);
+            } else {
+                net.add_edge(e.u, e.v, e.cost);
+            }
+        }
+        let inst = Instance::new("rural", net, Fleet::with_capacity(1000), r.gen_range(0..n)).unwrap();
+        let t = rural_tour(&inst).unwrap();
+        // The independent checker: a closed walk from the depot serving
+        // every required link once in an allowed direction.
+        if !inst.tasks().is_empty() {
+            prop_assert!(check_walks(&inst, std::slice::from_ref(&t.steps)).is_ok());
+        }
+        let walked: i64 = t.steps.iter().map(|s| inst.network().links[s.link].cost).sum();
+        prop_assert_eq!(walked, t.cost);
+        prop_assert!(rural_lower_bound(&inst).unwrap() <= t.cost);
+    }
 
     #[test]
     fn euler_tour_uses_every_link_once_and_is_closed(n in 2usize..60, extra in 0usize..80, seed: u64) {

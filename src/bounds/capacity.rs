@@ -126,16 +126,30 @@ pub fn depot_degree_bound(
 /// (Adding a matching on the leftover costs `c − |Δdist|` gains nothing:
 /// the shortest-path tree from the depot has leftover cost zero.)
 pub fn depot_cut_bound(inst: &Instance) -> Cost {
+    depot_cuts(inst, true)
+}
+
+/// [`depot_cut_bound`], or with `capacity_aware = false` its single-tour
+/// form (one route crosses each cut that has work beyond it twice).
+pub(crate) fn depot_cuts(inst: &Instance, capacity_aware: bool) -> Cost {
     let g = crate::postman::Multigraph::from_network(inst.network());
     let (dist, _) = g.dijkstra(&[inst.depot()], false);
-    inst.total_service_cost() + cut_crossings(inst, &dist)
+    inst.total_service_cost() + cut_crossings(inst, &dist, capacity_aware)
 }
 
 /// The deadhead part of [`depot_cut_bound`]: needed deadhead crossings of the
 /// cuts `δ(S_t)`, summed over `t`.
-fn cut_crossings(inst: &Instance, dist: &[Cost]) -> Cost {
-    let q = inst.fleet().capacity;
-    let shift = inst.fleet().shift_limit.filter(|&l| l > 0);
+fn cut_crossings(inst: &Instance, dist: &[Cost], capacity_aware: bool) -> Cost {
+    // Without capacity: one truck of unbounded load and shift.
+    let q = if capacity_aware {
+        inst.fleet().capacity
+    } else {
+        Cost::MAX / 4
+    };
+    let shift = inst
+        .fleet()
+        .shift_limit
+        .filter(|&l| l > 0 && capacity_aware);
     let mut values: Vec<Cost> = vec![0];
     for t in inst.tasks() {
         values.push(dist[t.tail]);
