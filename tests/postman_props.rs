@@ -98,6 +98,9 @@ proptest! {
     #[test]
     fn bounds_never_exceed_feasible_plans(n in 2usize..14, extra in 0usize..20, seed: u64, mixed: bool) {
         let mut r = ChaCha8Rng::seed_from_u64(seed);
+        // A third of the mixed cases fix every service direction, so the
+        // directed imbalance-flow bound applies.
+        let all_forward = seed % 3 == 0;
         let g = connected(n, extra, seed);
         let mut net = Network::with_junctions(n);
         for e in &g.edges {
@@ -108,7 +111,7 @@ proptest! {
                 // Service cost may differ from the deadhead cost.
                 cost: e.cost + r.gen_range(-(e.cost.min(3))..4),
                 time: None,
-                direction: if mixed && r.gen_bool(0.3) { ServeDirection::Forward } else { ServeDirection::Either },
+                direction: if mixed && (all_forward || r.gen_bool(0.3)) { ServeDirection::Forward } else { ServeDirection::Either },
             });
             net.add_link(Link { from: e.u, to: e.v, oneway, cost: e.cost, time: None, service, name: None });
         }
@@ -204,4 +207,50 @@ fn two_odd_junctions_cost_their_distance() {
         assert_eq!(t.extra_cost, d[b]);
         assert_eq!(t.cost, g.total_cost() + d[b]);
     }
+}
+
+/// On a one-way network where every link is required (service cost =
+/// deadhead cost), the imbalance-flow bound is the directed Chinese postman
+/// value (itself checked against networkx in tests/postman_networkx.rs).
+#[test]
+fn imbalance_flow_is_the_directed_postman_value_when_all_is_required() {
+    use arcwright::bounds::imbalance_flow_bound;
+    use arcwright::postman::chinese::directed_postman;
+    let mut applied = 0;
+    for seed in 0..40u64 {
+        let mut r = ChaCha8Rng::seed_from_u64(seed);
+        let n = r.gen_range(2..25);
+        let mut g = Multigraph::new(n);
+        for v in 0..n {
+            g.add(v, (v + 1) % n, r.gen_range(1..30));
+        }
+        for _ in 0..r.gen_range(0..2 * n) {
+            g.add(r.gen_range(0..n), r.gen_range(0..n), r.gen_range(0..30));
+        }
+        let mut net = Network::with_junctions(n);
+        for e in &g.edges {
+            net.add_link(Link {
+                from: e.u,
+                to: e.v,
+                oneway: true,
+                cost: e.cost,
+                time: None,
+                service: Some(ServiceSpec {
+                    demand: 1,
+                    cost: e.cost,
+                    time: None,
+                    direction: ServeDirection::Forward,
+                }),
+                name: None,
+            });
+        }
+        let inst = Instance::new("directed", net, Fleet::with_capacity(10_000), 0).unwrap();
+        let dist = Distances::new(&inst).unwrap();
+        let v = imbalance_flow_bound(&inst, &dist)
+            .expect("applies")
+            .unwrap();
+        assert_eq!(v, directed_postman(&g, 0).unwrap().cost, "seed {seed}");
+        applied += 1;
+    }
+    assert_eq!(applied, 40);
 }
