@@ -93,6 +93,32 @@ pub enum ParseProblem {
         value: u64,
         max: u64,
     },
+    /// A plan file serves a (from, to) pair that is not the required link it names.
+    #[error("route {route}, service {position}: ({from}, {to}) with link {link} is not a required link of the instance in an allowed direction")]
+    NotARequiredLink {
+        route: usize,
+        position: usize,
+        from: u64,
+        to: u64,
+        link: i64,
+    },
+    /// A plan file serves the same required link twice.
+    #[error("route {route}, service {position}: link {link} is already served earlier")]
+    ServedTwice {
+        route: usize,
+        position: usize,
+        link: usize,
+    },
+    /// A plan file is for another instance.
+    #[error("the plan is for instance `{found}`, not `{expected}`")]
+    WrongInstance { expected: String, found: String },
+    /// A cost or load stated in a plan file differs from the recomputed one.
+    #[error("{what}: the file states {stated}, recomputed {computed}")]
+    Mismatch {
+        what: String,
+        stated: i64,
+        computed: i64,
+    },
 }
 
 impl ParseProblem {

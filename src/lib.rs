@@ -27,3 +27,4 @@ pub mod report;
 pub mod search;
 
 pub use error::{Error, Result};
+pub use search::{Progress, Solution, SolveError, Solver, Stats};

@@ -10,8 +10,13 @@
 //! All problems found are returned, not only the first, as typed
 //! [`Violation`]s whose `Display` names the route, task, link and numbers.
 //! Indices are 0-based, as in [`Plan::routes`], [`Instance::tasks`] and
-//! [`crate::model::Network::links`]; junctions are given by index and by
-//! their external id.
+//! [`crate::model::Network::links`]; junctions are given by index into
+//! [`crate::model::Network::junctions`] ([`Violation::NoPath`] also gives
+//! their external ids).
+//!
+//! For an instance built by [`Instance::new`] every task can be reached from
+//! the depot and back, so [`Violation::NoPath`] cannot occur with allowed
+//! directions; the check stays as a guard.
 //!
 //! ```
 //! use arcwright::check::{check_plan, Violation};

@@ -348,6 +348,8 @@ pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
 
 /// Parses scenario JSON text. `file` names the source in errors.
 pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
+    // A byte-order mark, as some editors write, is not JSON: skip it.
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     let rec: FileRec = serde_json::from_str(text).map_err(|e| {
         let line = (e.line() > 0).then_some(e.line());
         Error::parse(

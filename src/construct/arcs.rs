@@ -1,0 +1,205 @@
+//! Dense per-arc matrices for the solver's hot loops.
+//!
+//! An *arc* is a task served in one direction: task `t` gives arc `2t`
+//! (forward, [`Dir::Forward`]) and arc `2t + 1` (backward). Two extra arcs,
+//! `2n` and `2n + 1`, both stand for the depot, so that reversing an arc is
+//! always `a ^ 1`. The matrix entry `d(a, b)` is the shortest deadhead cost
+//! from the end of arc `a` to the start of arc `b`; with a shift limit a
+//! second matrix holds the driving times along the same paths.
+//!
+//! Entries are `i32` (the deadheads of one instance fit comfortably); a
+//! missing path is stored as [`BIG`], which no feasible route ever pays.
+
+use crate::model::{Cost, Dir, Instance};
+use crate::paths::{Distances, UNREACHABLE};
+use crate::plan::Visit;
+
+/// Stored for a missing path: large enough to dominate any feasible route,
+/// small enough that sums of a few never overflow `i64`.
+pub const BIG: i32 = 1 << 29;
+
+/// Dense arc-to-arc deadhead costs (and times) plus per-task data.
+#[derive(Clone, Debug)]
+pub struct ArcMatrix {
+    /// Number of tasks `n`.
+    pub n: usize,
+    /// Number of arcs (`2n + 2`).
+    pub arcs: usize,
+    /// The depot arc (`2n`; `2n + 1` is its twin).
+    pub depot: u32,
+    cost: Vec<i32>,
+    time: Option<Vec<i32>>,
+    /// Service cost per arc (0 for the depot).
+    pub serve_cost: Vec<i64>,
+    /// Service time per arc (0 for the depot).
+    pub serve_time: Vec<i64>,
+    /// Demand per arc (0 for the depot).
+    pub demand: Vec<i64>,
+    /// Whether the arc is an allowed service direction (depot arcs: true).
+    pub allowed: Vec<bool>,
+    /// Truck capacity.
+    pub capacity: i64,
+    /// Shift limit, if any.
+    pub shift: Option<i64>,
+    /// Fleet bound, if any.
+    pub max_routes: Option<usize>,
+}
+
+/// The deadheads do not fit the solver's 32-bit matrix.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct MatrixOverflow {
+    /// The offending value.
+    pub value: Cost,
+}
+
+impl ArcMatrix {
+    /// Builds the matrices from the instance's shortest paths.
+    pub fn new(inst: &Instance, dist: &Distances) -> Result<Self, MatrixOverflow> {
+        let tasks = inst.tasks();
+        let n = tasks.len();
+        let arcs = 2 * n + 2;
+        let depot = inst.depot();
+        let mut start = vec![depot; arcs];
+        let mut end = vec![depot; arcs];
+        let mut serve_cost = vec![0; arcs];
+        let mut serve_time = vec![0; arcs];
+        let mut demand = vec![0; arcs];
+        let mut allowed = vec![true; arcs];
+        for (i, t) in tasks.iter().enumerate() {
+            for (k, dir) in [Dir::Forward, Dir::Backward].into_iter().enumerate() {
+                let a = 2 * i + k;
+                let (s, e) = t.ends(dir);
+                start[a] = s;
+                end[a] = e;
+                serve_cost[a] = t.cost;
+                serve_time[a] = t.time;
+                demand[a] = t.demand;
+                allowed[a] = t.allows(dir);
+            }
+        }
+        let timed = inst.fleet().shift_limit.is_some();
+        let conv = |x: Cost| -> Result<i32, MatrixOverflow> {
+            if x >= UNREACHABLE {
+                Ok(BIG)
+            } else if x >= BIG as Cost {
+                Err(MatrixOverflow { value: x })
+            } else {
+                Ok(x as i32)
+            }
+        };
+        let mut cost = vec![0i32; arcs * arcs];
+        let mut time = if timed {
+            vec![0i32; arcs * arcs]
+        } else {
+            Vec::new()
+        };
+        // Arcs share ends; compute per key pair once via the Distances lookups.
+        for a in 0..arcs {
+            for b in 0..arcs {
+                cost[a * arcs + b] = conv(dist.cost(end[a], start[b]))?;
+                if timed {
+                    time[a * arcs + b] = conv(dist.time(end[a], start[b]))?;
+                }
+            }
+        }
+        Ok(ArcMatrix {
+            n,
+            arcs,
+            depot: (2 * n) as u32,
+            cost,
+            time: timed.then_some(time),
+            serve_cost,
+            serve_time,
+            demand,
+            allowed,
+            capacity: inst.fleet().capacity,
+            shift: inst.fleet().shift_limit,
+            max_routes: inst.fleet().max_vehicles,
+        })
+    }
+
+    /// Deadhead cost from the end of `a` to the start of `b`.
+    #[inline(always)]
+    pub fn d(&self, a: u32, b: u32) -> i64 {
+        // SAFETY-free indexing: bounds are checked in debug builds only by the slice.
+        self.cost[a as usize * self.arcs + b as usize] as i64
+    }
+
+    /// Deadhead time from the end of `a` to the start of `b` (the cost when
+    /// there is no shift limit).
+    #[inline(always)]
+    pub fn t(&self, a: u32, b: u32) -> i64 {
+        match &self.time {
+            Some(t) => t[a as usize * self.arcs + b as usize] as i64,
+            None => self.d(a, b),
+        }
+    }
+
+    /// Whether route times must be checked.
+    #[inline(always)]
+    pub fn timed(&self) -> bool {
+        self.shift.is_some()
+    }
+
+    /// The arc of task `t` in direction `dir`.
+    #[inline(always)]
+    pub fn arc(t: usize, dir: Dir) -> u32 {
+        (2 * t + (dir == Dir::Backward) as usize) as u32
+    }
+
+    /// The task of arc `a` (`n` for the depot).
+    #[inline(always)]
+    pub fn task(a: u32) -> usize {
+        (a >> 1) as usize
+    }
+
+    /// The visit of a task arc.
+    pub fn visit(a: u32) -> Visit {
+        let dir = if a & 1 == 0 {
+            Dir::Forward
+        } else {
+            Dir::Backward
+        };
+        Visit::new(Self::task(a), dir)
+    }
+
+    /// Cost, time and load of a route given as task arcs (no depot arcs),
+    /// driven from the depot and back.
+    pub fn route_eval(&self, arcs: &[u32]) -> (i64, i64, i64) {
+        let (mut c, mut t, mut l) = (0, 0, 0);
+        let mut prev = self.depot;
+        for &a in arcs {
+            c += self.d(prev, a) + self.serve_cost[a as usize];
+            t += self.t(prev, a) + self.serve_time[a as usize];
+            l += self.demand[a as usize];
+            prev = a;
+        }
+        if !arcs.is_empty() {
+            c += self.d(prev, self.depot);
+            t += self.t(prev, self.depot);
+        }
+        (c, t, l)
+    }
+
+    /// Whether a route (task arcs) respects capacity and shift limit.
+    pub fn route_feasible(&self, arcs: &[u32]) -> bool {
+        let (c, t, l) = self.route_eval(arcs);
+        c < BIG as i64
+            && l <= self.capacity
+            && self.shift.map_or(true, |s| t <= s)
+            && arcs.iter().all(|&a| self.allowed[a as usize])
+    }
+
+    /// Minimum deadhead between two tasks in any allowed directions, both ways.
+    pub fn task_gap(&self, u: usize, v: usize) -> i64 {
+        let mut best = i64::MAX;
+        for a in [2 * u as u32, 2 * u as u32 + 1] {
+            for b in [2 * v as u32, 2 * v as u32 + 1] {
+                if self.allowed[a as usize] && self.allowed[b as usize] {
+                    best = best.min(self.d(a, b)).min(self.d(b, a));
+                }
+            }
+        }
+        best
+    }
+}

@@ -1,0 +1,341 @@
+//! Route-first, cluster-second: Ulusoy's (1985) split of a giant tour.
+//!
+//! A *giant tour* is an order of all tasks, ignoring capacity. The split cuts
+//! it into consecutive routes by a shortest path on an auxiliary acyclic
+//! graph: node `i` stands for "the first `i` tasks are served", and an edge
+//! `i -> j` for one route serving tasks `i..j` in tour order, weighted by the
+//! route's cost; it exists when the route respects capacity and shift limit.
+//!
+//! The service direction of every task is chosen optimally inside each route
+//! by a small dynamic program over the two directions of each task (the
+//! tour's directions are only an order, not a commitment).
+//!
+//! With a shift limit the direction program keeps two labels, cheapest first
+//! (ties: quickest) and quickest first (ties: cheapest); a route is accepted
+//! with the cheapest label if it fits the shift, else with the quickest one
+//! if that fits. This is exact without a shift limit and a sound (always
+//! feasible, possibly not cheapest) rule with one.
+//!
+//! With a fleet bound `K` the split is a shortest path with at most `K`
+//! edges (a dynamic program over the number of routes, `O(K·n·w)` for
+//! routes of at most `w` tasks).
+
+use super::arcs::{ArcMatrix, BIG};
+
+const INF: i64 = i64::MAX / 4;
+
+/// Orientation labels of a route prefix: per direction of the last task,
+/// (cost, time) of the cheapest and of the quickest chain.
+#[derive(Clone, Copy)]
+struct Labels {
+    cheap: [(i64, i64); 2],
+    quick: [(i64, i64); 2],
+}
+
+impl Labels {
+    fn start(m: &ArcMatrix, task: usize) -> Labels {
+        let mut l = Labels {
+            cheap: [(INF, INF); 2],
+            quick: [(INF, INF); 2],
+        };
+        for k in 0..2 {
+            let a = (2 * task + k) as u32;
+            if !m.allowed[a as usize] {
+                continue;
+            }
+            let c = m.d(m.depot, a) + m.serve_cost[a as usize];
+            let t = m.t(m.depot, a) + m.serve_time[a as usize];
+            l.cheap[k] = (c, t);
+            l.quick[k] = (c, t);
+        }
+        l
+    }
+
+    fn extend(&self, m: &ArcMatrix, prev: usize, task: usize) -> Labels {
+        let mut l = Labels {
+            cheap: [(INF, INF); 2],
+            quick: [(INF, INF); 2],
+        };
+        let timed = m.timed();
+        for k in 0..2 {
+            let b = (2 * task + k) as u32;
+            if !m.allowed[b as usize] {
+                continue;
+            }
+            for p in 0..2 {
+                let a = (2 * prev + p) as u32;
+                let (c0, t0) = self.cheap[p];
+                if c0 < INF {
+                    let c = c0 + m.d(a, b) + m.serve_cost[b as usize];
+                    let t = if timed {
+                        t0 + m.t(a, b) + m.serve_time[b as usize]
+                    } else {
+                        c
+                    };
+                    if (c, t) < l.cheap[k] {
+                        l.cheap[k] = (c, t);
+                    }
+                }
+                if timed {
+                    let (c0, t0) = self.quick[p];
+                    if t0 < INF {
+                        let c = c0 + m.d(a, b) + m.serve_cost[b as usize];
+                        let t = t0 + m.t(a, b) + m.serve_time[b as usize];
+                        if (t, c) < (l.quick[k].1, l.quick[k].0) {
+                            l.quick[k] = (c, t);
+                        }
+                    }
+                }
+            }
+        }
+        if !timed {
+            l.quick = l.cheap;
+        }
+        l
+    }
+
+    /// Closed route cost with the rule of the module docs; `None` if the
+    /// route fits no label. Returns (cost, uses the quick label).
+    fn close(&self, m: &ArcMatrix, last: usize) -> Option<(i64, bool)> {
+        let mut best_cheap = (INF, INF);
+        let mut best_quick = (INF, INF);
+        for k in 0..2 {
+            let a = (2 * last + k) as u32;
+            let (c, t) = self.cheap[k];
+            if c < INF {
+                let v = (c + m.d(a, m.depot), t + m.t(a, m.depot));
+                if v < best_cheap {
+                    best_cheap = v;
+                }
+            }
+            let (c, t) = self.quick[k];
+            if c < INF {
+                let v = (c + m.d(a, m.depot), t + m.t(a, m.depot));
+                if (v.1, v.0) < (best_quick.1, best_quick.0) {
+                    best_quick = v;
+                }
+            }
+        }
+        if best_cheap.0 >= BIG as i64 {
+            return None;
+        }
+        match m.shift {
+            None => Some((best_cheap.0, false)),
+            Some(s) if best_cheap.1 <= s => Some((best_cheap.0, false)),
+            Some(s) if best_quick.1 <= s && best_quick.0 < BIG as i64 => Some((best_quick.0, true)),
+            _ => None,
+        }
+    }
+}
+
+/// Best directions for a fixed task order served as one route; returns the
+/// arcs, or `None` if no direction choice makes it feasible under the rule
+/// of the module docs (capacity is not checked here).
+#[allow(clippy::needless_range_loop)]
+pub fn orient(m: &ArcMatrix, tasks: &[usize], quick: bool) -> Vec<u32> {
+    // Forward DP storing back-pointers, in the chosen criterion.
+    let n = tasks.len();
+    let key = |c: i64, t: i64| if quick { (t, c) } else { (c, t) };
+    let mut lab = vec![[(INF, INF); 2]; n];
+    let mut back = vec![[0u8; 2]; n];
+    for k in 0..2 {
+        let a = (2 * tasks[0] + k) as u32;
+        if m.allowed[a as usize] {
+            lab[0][k] = (
+                m.d(m.depot, a) + m.serve_cost[a as usize],
+                m.t(m.depot, a) + m.serve_time[a as usize],
+            );
+        }
+    }
+    for i in 1..n {
+        for k in 0..2 {
+            let b = (2 * tasks[i] + k) as u32;
+            if !m.allowed[b as usize] {
+                continue;
+            }
+            for p in 0..2 {
+                let (c0, t0) = lab[i - 1][p];
+                if c0 >= INF {
+                    continue;
+                }
+                let a = (2 * tasks[i - 1] + p) as u32;
+                let c = c0 + m.d(a, b) + m.serve_cost[b as usize];
+                let t = t0 + m.t(a, b) + m.serve_time[b as usize];
+                let (oc, ot) = lab[i][k];
+                if key(c, t) < key(oc, ot) {
+                    lab[i][k] = (c, t);
+                    back[i][k] = p as u8;
+                }
+            }
+        }
+    }
+    let mut best = (INF, INF);
+    let mut bk = 0;
+    for k in 0..2 {
+        let (c, t) = lab[n - 1][k];
+        if c >= INF {
+            continue;
+        }
+        let a = (2 * tasks[n - 1] + k) as u32;
+        let v = (c + m.d(a, m.depot), t + m.t(a, m.depot));
+        if key(v.0, v.1) < key(best.0, best.1) {
+            best = v;
+            bk = k;
+        }
+    }
+    let mut out = vec![0u32; n];
+    let mut k = bk;
+    for i in (0..n).rev() {
+        out[i] = (2 * tasks[i] + k) as u32;
+        k = back[i][k] as usize;
+    }
+    out
+}
+
+/// Why a giant tour could not be split.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum SplitFailure {
+    /// Some task cannot be served on a route of its own.
+    Infeasible,
+    /// Every split needs more routes than the fleet bound; `fewest` is the
+    /// smallest number of routes a split of this tour needs.
+    TooFewVehicles { fewest: usize },
+}
+
+/// A split: total cost and routes as task arcs.
+#[derive(Clone, Debug)]
+pub struct Split {
+    /// Total cost (service plus deadhead).
+    pub cost: i64,
+    /// Routes as task arcs in driving order.
+    pub routes: Vec<Vec<u32>>,
+}
+
+/// Splits the giant tour `tour` (task indices; any order of any subset of
+/// tasks) into feasible routes of least total cost, honouring
+/// `max_routes` when given (else the matrix's fleet bound).
+pub fn split(m: &ArcMatrix, tour: &[usize]) -> Result<Split, SplitFailure> {
+    split_bounded(m, tour, m.max_routes)
+}
+
+/// [`split`] with an explicit fleet bound (`None`: unlimited).
+pub fn split_bounded(
+    m: &ArcMatrix,
+    tour: &[usize],
+    max_routes: Option<usize>,
+) -> Result<Split, SplitFailure> {
+    let n = tour.len();
+    if n == 0 {
+        return Ok(Split {
+            cost: 0,
+            routes: Vec::new(),
+        });
+    }
+    // Edges i -> j (route tour[i..j]) with cost and label choice.
+    let mut edges: Vec<Vec<(u32, i64, bool)>> = vec![Vec::new(); n];
+    for i in 0..n {
+        let mut load = 0;
+        let mut lab = Labels::start(m, tour[i]);
+        for j in i..n {
+            if j > i {
+                lab = lab.extend(m, tour[j - 1], tour[j]);
+            }
+            load += m.demand[2 * tour[j]];
+            if load > m.capacity {
+                break;
+            }
+            if let Some((c, q)) = lab.close(m, tour[j]) {
+                edges[i].push(((j + 1) as u32, c, q));
+            }
+        }
+    }
+    // Unbounded shortest path, with route counts as tie-break (fewest routes).
+    let mut v = vec![(INF, usize::MAX); n + 1];
+    let mut pred = vec![(usize::MAX, false); n + 1];
+    v[0] = (0, 0);
+    for i in 0..n {
+        if v[i].0 >= INF {
+            continue;
+        }
+        for &(j, c, q) in &edges[i] {
+            let j = j as usize;
+            let cand = (v[i].0 + c, v[i].1 + 1);
+            if cand < v[j] {
+                v[j] = cand;
+                pred[j] = (i, q);
+            }
+        }
+    }
+    if v[n].0 >= INF {
+        return Err(SplitFailure::Infeasible);
+    }
+    let mut cuts: Vec<(usize, usize, bool)> = Vec::new();
+    match max_routes {
+        Some(k) if v[n].1 > k => {
+            // Fewest routes of any split: BFS-like DP on counts.
+            let mut fewest = vec![usize::MAX; n + 1];
+            fewest[0] = 0;
+            for i in 0..n {
+                if fewest[i] == usize::MAX {
+                    continue;
+                }
+                for &(j, _, _) in &edges[i] {
+                    let j = j as usize;
+                    fewest[j] = fewest[j].min(fewest[i] + 1);
+                }
+            }
+            if fewest[n] > k {
+                return Err(SplitFailure::TooFewVehicles { fewest: fewest[n] });
+            }
+            // Layered DP: best[r][j] = cheapest cover of tour[..j] by r routes.
+            let mut best = vec![vec![INF; n + 1]; k + 1];
+            let mut bp = vec![vec![(usize::MAX, false); n + 1]; k + 1];
+            best[0][0] = 0;
+            for r in 0..k {
+                for i in 0..n {
+                    let b = best[r][i];
+                    if b >= INF {
+                        continue;
+                    }
+                    for &(j, c, q) in &edges[i] {
+                        let j = j as usize;
+                        if b + c < best[r + 1][j] {
+                            best[r + 1][j] = b + c;
+                            bp[r + 1][j] = (i, q);
+                        }
+                    }
+                }
+            }
+            let (mut r, _) = (1..=k)
+                .map(|r| (r, best[r][n]))
+                .min_by_key(|&(r, c)| (c, r))
+                .expect("k >= 1");
+            let mut j = n;
+            while j > 0 {
+                let (i, q) = bp[r][j];
+                cuts.push((i, j, q));
+                j = i;
+                r -= 1;
+            }
+        }
+        _ => {
+            let mut j = n;
+            while j > 0 {
+                let (i, q) = pred[j];
+                cuts.push((i, j, q));
+                j = i;
+            }
+        }
+    }
+    cuts.reverse();
+    let mut cost = 0;
+    let routes: Vec<Vec<u32>> = cuts
+        .into_iter()
+        .map(|(i, j, q)| {
+            let r = orient(m, &tour[i..j], q);
+            cost += m.route_eval(&r).0;
+            r
+        })
+        .collect();
+    Ok(Split { cost, routes })
+}
