@@ -14,6 +14,7 @@ use std::time::{Duration, Instant};
 use arcwright::bounds::{all_bounds, bound};
 use arcwright::io::dat::read_dat_file;
 use arcwright::paths::Distances;
+use arcwright::postman::rural::{rural_lower_bound, rural_tour};
 
 /// Time taken by each bound, by name.
 type Timings = Vec<(&'static str, Duration)>;
@@ -26,6 +27,8 @@ fn main() {
     };
     // (set, bound) -> (sum of ratios, count, equal to best known)
     let mut stats: BTreeMap<(String, &'static str), (f64, usize, usize)> = BTreeMap::new();
+    // set -> (sum of tour / bound, count, equal)
+    let mut rural: BTreeMap<String, (f64, usize, usize)> = BTreeMap::new();
     let mut largest: Option<(usize, String, Timings)> = None;
     for line in csv.lines().skip(1) {
         let f: Vec<&str> = line.splitn(7, ',').collect();
@@ -34,6 +37,12 @@ fn main() {
         let inst = dat.instance;
         let dist = Distances::new(&inst).expect("distances");
         let all = all_bounds(&inst, &dist);
+        let tour = rural_tour(&inst).expect("rural tour");
+        let lb = rural_lower_bound(&inst).expect("rural bound");
+        let e = rural.entry(set.to_string()).or_default();
+        e.0 += tour.cost as f64 / lb as f64;
+        e.1 += 1;
+        e.2 += usize::from(tour.cost == lb);
         let best_of = bound(&inst, &dist);
         for b in all
             .iter()
@@ -71,6 +80,16 @@ fn main() {
             "{:<5} {:<24} {:>8.4} {:>10} {:>6}",
             set,
             by,
+            sum / *n as f64,
+            eq,
+            n
+        );
+    }
+    println!("\nrural postman tour (one truck) / rural lower bound");
+    for (set, (sum, n, eq)) in &rural {
+        println!(
+            "{:<5} {:>8.4}  tour = bound on {} of {}",
+            set,
             sum / *n as f64,
             eq,
             n

@@ -2,11 +2,13 @@
 //! graphs and instances (proptest), and two facts of the trade.
 
 use arcwright::bounds::{all_bounds, bound};
+use arcwright::check::check_walks;
 use arcwright::model::{Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec};
 use arcwright::paths::{Distances, UNREACHABLE};
 use arcwright::plan::{evaluate, Visit};
 use arcwright::postman::chinese::undirected_postman;
 use arcwright::postman::euler::{check_tour, euler_tour, is_eulerian};
+use arcwright::postman::rural::{rural_lower_bound, rural_tour};
 use arcwright::postman::Multigraph;
 use proptest::prelude::*;
 use rand::seq::SliceRandom;
@@ -38,7 +40,31 @@ fn doubled(g: &Multigraph) -> Multigraph {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(64))]
+    #![proptest_config(ProptestConfig::with_cases(128))]
+
+    #[test]
+    fn rural_tour_checks_and_respects_its_bound(n in 2usize..40, extra in 0usize..50, seed: u64) {
+        let mut r = ChaCha8Rng::seed_from_u64(seed ^ 0x5eed);
+        let g = connected(n, extra, seed);
+        let mut net = Network::with_junctions(n);
+        for e in &g.edges {
+            if r.gen_bool(0.4) {
+                net.add_required_edge(e.u, e.v, e.cost, 1);
+            } else {
+                net.add_edge(e.u, e.v, e.cost);
+            }
+        }
+        let inst = Instance::new("rural", net, Fleet::with_capacity(1000), r.gen_range(0..n)).unwrap();
+        let t = rural_tour(&inst).unwrap();
+        // The independent checker: a closed walk from the depot serving
+        // every required link once in an allowed direction.
+        if !inst.tasks().is_empty() {
+            prop_assert!(check_walks(&inst, std::slice::from_ref(&t.steps)).is_ok());
+        }
+        let walked: i64 = t.steps.iter().map(|s| inst.network().links[s.link].cost).sum();
+        prop_assert_eq!(walked, t.cost);
+        prop_assert!(rural_lower_bound(&inst).unwrap() <= t.cost);
+    }
 
     #[test]
     fn euler_tour_uses_every_link_once_and_is_closed(n in 2usize..60, extra in 0usize..80, seed: u64) {
@@ -72,6 +98,9 @@ proptest! {
     #[test]
     fn bounds_never_exceed_feasible_plans(n in 2usize..14, extra in 0usize..20, seed: u64, mixed: bool) {
         let mut r = ChaCha8Rng::seed_from_u64(seed);
+        // A third of the mixed cases fix every service direction, so the
+        // directed imbalance-flow bound applies.
+        let all_forward = seed % 3 == 0;
         let g = connected(n, extra, seed);
         let mut net = Network::with_junctions(n);
         for e in &g.edges {
@@ -82,7 +111,7 @@ proptest! {
                 // Service cost may differ from the deadhead cost.
                 cost: e.cost + r.gen_range(-(e.cost.min(3))..4),
                 time: None,
-                direction: if mixed && r.gen_bool(0.3) { ServeDirection::Forward } else { ServeDirection::Either },
+                direction: if mixed && (all_forward || r.gen_bool(0.3)) { ServeDirection::Forward } else { ServeDirection::Either },
             });
             net.add_link(Link { from: e.u, to: e.v, oneway, cost: e.cost, time: None, service, name: None });
         }
@@ -91,7 +120,12 @@ proptest! {
             for v in 1..n { net.add_link(Link { from: v - 1, to: v, oneway: false, cost: r.gen_range(1..60), time: None, service: None, name: None }); }
         }
         let cap = r.gen_range(5..15);
-        let Ok(inst) = Instance::new("random", net, Fleet::with_capacity(cap), r.gen_range(0..n)) else {
+        let mut fleet = Fleet::with_capacity(cap);
+        if r.gen_bool(0.3) {
+            fleet.shift_limit = Some(r.gen_range(100..400));
+        }
+        let shift = fleet.shift_limit;
+        let Ok(inst) = Instance::new("random", net, fleet, r.gen_range(0..n)) else {
             return Ok(());
         };
         let dist = Distances::new(&inst).unwrap();
@@ -120,12 +154,16 @@ proptest! {
             }
             plans.push(routes);
         }
-        for routes in plans {
+        'plans: for routes in plans {
             let mut total = 0;
             for rt in routes.iter().filter(|rt| !rt.is_empty()) {
-                let (load, cost, _) = evaluate(&inst, &dist, rt);
+                let (load, cost, time) = evaluate(&inst, &dist, rt);
                 prop_assert!(load <= cap);
-                if cost >= UNREACHABLE { return Ok(()); }
+                prop_assert!(cost < UNREACHABLE);
+                if shift.is_some_and(|l| time > l) {
+                    // Not feasible under the shift limit: no claim.
+                    continue 'plans;
+                }
                 total += cost;
             }
             for b in all_bounds(&inst, &dist) {
@@ -169,4 +207,50 @@ fn two_odd_junctions_cost_their_distance() {
         assert_eq!(t.extra_cost, d[b]);
         assert_eq!(t.cost, g.total_cost() + d[b]);
     }
+}
+
+/// On a one-way network where every link is required (service cost =
+/// deadhead cost), the imbalance-flow bound is the directed Chinese postman
+/// value (itself checked against networkx in tests/postman_networkx.rs).
+#[test]
+fn imbalance_flow_is_the_directed_postman_value_when_all_is_required() {
+    use arcwright::bounds::imbalance_flow_bound;
+    use arcwright::postman::chinese::directed_postman;
+    let mut applied = 0;
+    for seed in 0..40u64 {
+        let mut r = ChaCha8Rng::seed_from_u64(seed);
+        let n = r.gen_range(2..25);
+        let mut g = Multigraph::new(n);
+        for v in 0..n {
+            g.add(v, (v + 1) % n, r.gen_range(1..30));
+        }
+        for _ in 0..r.gen_range(0..2 * n) {
+            g.add(r.gen_range(0..n), r.gen_range(0..n), r.gen_range(0..30));
+        }
+        let mut net = Network::with_junctions(n);
+        for e in &g.edges {
+            net.add_link(Link {
+                from: e.u,
+                to: e.v,
+                oneway: true,
+                cost: e.cost,
+                time: None,
+                service: Some(ServiceSpec {
+                    demand: 1,
+                    cost: e.cost,
+                    time: None,
+                    direction: ServeDirection::Forward,
+                }),
+                name: None,
+            });
+        }
+        let inst = Instance::new("directed", net, Fleet::with_capacity(10_000), 0).unwrap();
+        let dist = Distances::new(&inst).unwrap();
+        let v = imbalance_flow_bound(&inst, &dist)
+            .expect("applies")
+            .unwrap();
+        assert_eq!(v, directed_postman(&g, 0).unwrap().cost, "seed {seed}");
+        applied += 1;
+    }
+    assert_eq!(applied, 40);
 }

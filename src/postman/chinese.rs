@@ -199,6 +199,33 @@ mod tests {
     use crate::postman::euler::check_tour;
 
     #[test]
+    fn undirected_errors_and_empty_graphs() {
+        let mut g = Multigraph::new(4);
+        assert_eq!(undirected_postman(&g, 3).unwrap().cost, 0);
+        g.add(0, 1, 2);
+        g.add(2, 3, 2);
+        assert!(matches!(
+            undirected_postman(&g, 0),
+            Err(PostmanError::Disconnected { .. })
+        ));
+        g.add(1, 2, 1);
+        // Path 0-1-2-3: odd ends 0 and 3, distance 5.
+        assert_eq!(undirected_postman(&g, 0).unwrap().cost, 10);
+        // Start off the edges.
+        let mut h = g.clone();
+        h.n = 5;
+        assert!(matches!(
+            undirected_postman(&h, 4),
+            Err(PostmanError::Disconnected { .. })
+        ));
+        h.add(0, 9, 1);
+        assert!(matches!(
+            undirected_postman(&h, 0),
+            Err(PostmanError::VertexOutOfRange { .. })
+        ));
+    }
+
+    #[test]
     fn directed_triangle_with_chord() {
         // Cycle 0->1->2->0 (cost 1 each) plus chord 0->2 (cost 5): vertex 2
         // has one arc in too many, so 2->0 (cost 1) is repeated.

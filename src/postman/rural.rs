@@ -254,11 +254,62 @@ pub fn rural_tour_with(
     })
 }
 
-/// A lower bound on every closed walk from the depot serving all tasks: the
-/// larger of [`crate::bounds::odd_matching_bound`] and
-/// [`crate::bounds::connection_bound`]. Valid for mixed networks too (both
-/// work on the undirected relaxation).
+/// A lower bound on every closed walk from the depot serving all tasks
+/// (capacity ignored): the largest of [`crate::bounds::odd_matching_bound`],
+/// [`crate::bounds::connection_bound`] and the single-tour form of
+/// [`crate::bounds::depot_cut_bound`] (each cut around the depot with work
+/// beyond it is crossed at least twice). Valid for mixed networks too (all
+/// three work on the undirected relaxation).
 pub fn rural_lower_bound(inst: &Instance) -> Result<Cost, PostmanError> {
     let m = crate::bounds::odd_matching_bound(inst, &DenseBlossom)?;
-    Ok(m.max(crate::bounds::connection_bound(inst)))
+    Ok(m.max(crate::bounds::connection_bound(inst))
+        .max(crate::bounds::depot_cuts(inst, false)))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{Fleet, Link, Network};
+
+    #[test]
+    fn one_way_networks_are_refused_not_guessed() {
+        let mut net = Network::with_junctions(2);
+        net.add_required_edge(0, 1, 3, 1);
+        net.add_link(Link {
+            from: 1,
+            to: 0,
+            oneway: true,
+            cost: 1,
+            time: None,
+            service: None,
+            name: None,
+        });
+        let inst = Instance::new("oneway", net, Fleet::with_capacity(5), 0).unwrap();
+        assert!(matches!(
+            rural_tour(&inst),
+            Err(PostmanError::Unsupported(_))
+        ));
+        // The bound still applies (undirected relaxation): 3 + 1 back.
+        assert_eq!(rural_lower_bound(&inst).unwrap(), 4);
+    }
+
+    #[test]
+    fn depot_away_from_the_work() {
+        // Depot 0 —(4)— 1; required triangle 1-2-3 (costs 1, 1, 1).
+        let mut net = Network::with_junctions(4);
+        net.add_edge(0, 1, 4);
+        net.add_required_edge(1, 2, 1, 1);
+        net.add_required_edge(2, 3, 1, 1);
+        net.add_required_edge(3, 1, 1, 1);
+        let inst = Instance::new("away", net, Fleet::with_capacity(5), 0).unwrap();
+        let t = rural_tour(&inst).unwrap();
+        assert_eq!(t.cost, 3 + 8);
+        // Connection alone gives 3 + 4; the cuts around the depot give the
+        // exact 3 + 8 (the 4-cost link is crossed out and back).
+        assert_eq!(crate::bounds::connection_bound(&inst), 3 + 4);
+        assert_eq!(rural_lower_bound(&inst).unwrap(), 3 + 8);
+        assert_eq!(t.steps.first().unwrap().from, 0);
+        assert_eq!(t.steps.last().unwrap().to, 0);
+        assert_eq!(t.steps.iter().filter(|s| s.serve).count(), 3);
+    }
 }
