@@ -97,11 +97,15 @@ fn main() {
     std::fs::create_dir_all(out.join("plans")).expect("create output folder");
     let mut rows: Vec<Row> = Vec::new();
     for dir in &dirs {
-        let mut files: Vec<PathBuf> = std::fs::read_dir(dir)
-            .unwrap_or_else(|e| panic!("{}: {e}", dir.display()))
-            .filter_map(|e| e.ok().map(|e| e.path()))
-            .filter(|p| p.extension().is_some_and(|x| x == "dat"))
-            .collect();
+        let mut files: Vec<PathBuf> = if dir.is_file() {
+            vec![dir.clone()]
+        } else {
+            std::fs::read_dir(dir)
+                .unwrap_or_else(|e| panic!("{}: {e}", dir.display()))
+                .filter_map(|e| e.ok().map(|e| e.path()))
+                .filter(|p| p.extension().is_some_and(|x| x == "dat"))
+                .collect()
+        };
         // Natural order: gdb2 before gdb10.
         files.sort_by_key(|p| {
             let s = p.file_stem().unwrap().to_string_lossy().to_string();
@@ -113,7 +117,12 @@ fn main() {
                 s,
             )
         });
-        let set_name = dir.file_name().unwrap().to_string_lossy().to_string();
+        let set_name = if dir.is_file() {
+            dir.parent().and_then(|p| p.file_name())
+        } else {
+            dir.file_name()
+        }
+        .map_or("set".into(), |s| s.to_string_lossy().to_string());
         for f in files {
             let dat = match read_dat_file(&f) {
                 Ok(d) => d,

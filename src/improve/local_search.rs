@@ -29,8 +29,11 @@ use rand::Rng;
 
 use crate::construct::arcs::ArcMatrix;
 
+/// Segment lengths (moved from `u`'s route, displaced at `v`) of the exchange moves.
+const EXCHANGES: &[(usize, usize)] = &[(1, 0), (2, 0), (1, 1), (2, 1), (1, 2), (2, 2), (3, 0)];
+
 /// Default neighbour-list size.
-pub const DEFAULT_NEIGHBOURS: usize = 12;
+pub const DEFAULT_NEIGHBOURS: usize = 8;
 
 /// For each task, its `k` nearest other tasks by [`ArcMatrix::task_gap`].
 pub fn neighbour_lists(m: &ArcMatrix, k: usize) -> Vec<Vec<u32>> {
@@ -77,21 +80,29 @@ fn piece(r: usize, i: usize, j: usize, rev: bool) -> Piece {
     }
 }
 
+/// Prefix sums at one position of a route (one cache line).
+#[derive(Clone, Copy, Debug, Default)]
+struct Pre {
+    /// Deadhead cost a0->a1->..->ak.
+    pd: i64,
+    /// Sum over m=1..=k of d(rev a_m, rev a_{m-1}).
+    rpd: i64,
+    /// Service cost of a0..=ak.
+    ps: i64,
+    /// The same three for times.
+    td: i64,
+    rtd: i64,
+    pst: i64,
+    /// Load of a0..=ak.
+    pl: i64,
+    /// Number of one-direction tasks among a0..=ak.
+    pf: i64,
+}
+
 #[derive(Clone, Debug, Default)]
 struct RouteData {
     arcs: Vec<u32>,
-    /// pd[k] = deadhead cost a0->a1->..->ak.
-    pd: Vec<i64>,
-    /// rpd[k] = sum over m=1..=k of d(rev a_m, rev a_{m-1}).
-    rpd: Vec<i64>,
-    /// ps[k] = service cost of a0..=ak.
-    ps: Vec<i64>,
-    td: Vec<i64>,
-    rtd: Vec<i64>,
-    pst: Vec<i64>,
-    pl: Vec<i64>,
-    /// pf[k] = number of one-direction tasks among a0..=ak.
-    pf: Vec<u32>,
+    pre: Vec<Pre>,
     cost: i64,
     time: i64,
     load: i64,
@@ -169,35 +180,23 @@ impl<'m> LocalSearch<'m> {
         let m = self.m;
         let rd = &mut self.routes[r];
         let len = rd.arcs.len();
-        for v in [
-            &mut rd.pd,
-            &mut rd.rpd,
-            &mut rd.ps,
-            &mut rd.td,
-            &mut rd.rtd,
-            &mut rd.pst,
-            &mut rd.pl,
-        ] {
-            v.clear();
-            v.resize(len, 0);
-        }
-        rd.pf.clear();
-        rd.pf.resize(len, 0);
+        rd.pre.clear();
+        rd.pre.resize(len, Pre::default());
         for k in 1..len {
             let (a, b) = (rd.arcs[k - 1], rd.arcs[k]);
-            rd.pd[k] = rd.pd[k - 1] + m.d(a, b);
-            rd.rpd[k] = rd.rpd[k - 1] + m.d(b ^ 1, a ^ 1);
-            rd.ps[k] = rd.ps[k - 1] + m.serve_cost[b as usize];
-            rd.td[k] = rd.td[k - 1] + m.t(a, b);
-            rd.rtd[k] = rd.rtd[k - 1] + m.t(b ^ 1, a ^ 1);
-            rd.pst[k] = rd.pst[k - 1] + m.serve_time[b as usize];
-            rd.pl[k] = rd.pl[k - 1] + m.demand[b as usize];
-            rd.pf[k] = rd.pf[k - 1] + (!m.allowed[(b ^ 1) as usize]) as u32;
+            rd.pre[k].pd = rd.pre[k - 1].pd + m.d(a, b);
+            rd.pre[k].rpd = rd.pre[k - 1].rpd + m.d(b ^ 1, a ^ 1);
+            rd.pre[k].ps = rd.pre[k - 1].ps + m.serve_cost[b as usize];
+            rd.pre[k].td = rd.pre[k - 1].td + m.t(a, b);
+            rd.pre[k].rtd = rd.pre[k - 1].rtd + m.t(b ^ 1, a ^ 1);
+            rd.pre[k].pst = rd.pre[k - 1].pst + m.serve_time[b as usize];
+            rd.pre[k].pl = rd.pre[k - 1].pl + m.demand[b as usize];
+            rd.pre[k].pf = rd.pre[k - 1].pf + (!m.allowed[(b ^ 1) as usize]) as i64;
         }
         let (c, t, l) = (
-            rd.pd[len - 1] + rd.ps[len - 1],
-            rd.td[len - 1] + rd.pst[len - 1],
-            rd.pl[len - 1],
+            rd.pre[len - 1].pd + rd.pre[len - 1].ps,
+            rd.pre[len - 1].td + rd.pre[len - 1].pst,
+            rd.pre[len - 1].pl,
         );
         let pc = self.penalised(c, l, t);
         let rd = &mut self.routes[r];
@@ -216,26 +215,26 @@ impl<'m> LocalSearch<'m> {
         let (i, j) = (p.i as usize, p.j as usize);
         let m = self.m;
         let (fa, la) = (rd.arcs[i], rd.arcs[j]);
-        let serv = rd.ps[j] - rd.ps[i] + m.serve_cost[fa as usize];
-        let stime = rd.pst[j] - rd.pst[i] + m.serve_time[fa as usize];
-        let load = rd.pl[j] - rd.pl[i] + m.demand[fa as usize];
+        let serv = rd.pre[j].ps - rd.pre[i].ps + m.serve_cost[fa as usize];
+        let stime = rd.pre[j].pst - rd.pre[i].pst + m.serve_time[fa as usize];
+        let load = rd.pre[j].pl - rd.pre[i].pl + m.demand[fa as usize];
         if !p.rev {
             Some(Seg {
                 first: fa,
                 last: la,
-                cost: rd.pd[j] - rd.pd[i] + serv,
-                time: rd.td[j] - rd.td[i] + stime,
+                cost: rd.pre[j].pd - rd.pre[i].pd + serv,
+                time: rd.pre[j].td - rd.pre[i].td + stime,
                 load,
             })
         } else {
-            if rd.pf[j] - rd.pf[i] + (!m.allowed[(fa ^ 1) as usize]) as u32 > 0 {
+            if rd.pre[j].pf - rd.pre[i].pf + (!m.allowed[(fa ^ 1) as usize]) as i64 > 0 {
                 return None;
             }
             Some(Seg {
                 first: la ^ 1,
                 last: fa ^ 1,
-                cost: rd.rpd[j] - rd.rpd[i] + serv,
-                time: rd.rtd[j] - rd.rtd[i] + stime,
+                cost: rd.pre[j].rpd - rd.pre[i].rpd + serv,
+                time: rd.pre[j].rtd - rd.pre[i].rtd + stime,
                 load,
             })
         }
@@ -294,9 +293,22 @@ impl<'m> LocalSearch<'m> {
             .collect();
         self.clock += 1;
         self.moves += 1;
+        let mut filled = false;
         for (r, arcs) in new {
+            filled |= self.routes[r].arcs.len() == 2 && arcs.len() > 2;
             self.routes[r].arcs = arcs;
             self.rebuild(r);
+        }
+        if filled && self.empty_route().is_none() {
+            let used = self.routes.len();
+            if self.m.max_routes.map_or(true, |k| used < k) {
+                self.routes.push(RouteData {
+                    arcs: vec![self.m.depot, self.m.depot],
+                    ..Default::default()
+                });
+                let r = self.routes.len() - 1;
+                self.rebuild(r);
+            }
         }
     }
 
@@ -362,7 +374,7 @@ impl<'m> LocalSearch<'m> {
         let mut ok = true;
         for r in &self.routes {
             let len = r.arcs.len();
-            total += r.pd[len - 1] + r.ps[len - 1];
+            total += r.pre[len - 1].pd + r.pre[len - 1].ps;
             ok &= r.load <= self.m.capacity && self.m.shift.map_or(true, |s| r.time <= s);
         }
         (total, ok)
@@ -420,6 +432,45 @@ impl<'m> LocalSearch<'m> {
         (self.routes(), c, ok)
     }
 
+    /// Loads `routes` and evaluates, without applying any, every relocation
+    /// of one task (both directions) right after each of its neighbours in
+    /// another route; returns the number of candidates evaluated and the
+    /// best (most negative) change of total cost. For benchmarks of the
+    /// constant-time evaluation.
+    pub fn scan_relocations(&mut self, routes: &[Vec<u32>]) -> (usize, i64) {
+        self.load(routes);
+        let mut count = 0;
+        let mut best = 0;
+        for u in 0..self.m.n {
+            let (ru, i) = self.pos[u];
+            let (ru, i) = (ru as usize, i as usize);
+            let lu = self.routes[ru].arcs.len();
+            let pu = [piece(ru, 0, i - 1, false), piece(ru, i + 1, lu - 1, false)];
+            let cu = self.eval(&pu) - self.routes[ru].cost;
+            for &v in &self.neigh[u] {
+                let (rv, j) = self.pos[v as usize];
+                let (rv, j) = (rv as usize, j as usize);
+                if rv == ru {
+                    continue;
+                }
+                let lv = self.routes[rv].arcs.len();
+                for rev in [false, true] {
+                    let pv = [
+                        piece(rv, 0, j, false),
+                        piece(ru, i, i, rev),
+                        piece(rv, j + 1, lv - 1, false),
+                    ];
+                    let c = self.eval(&pv);
+                    count += 1;
+                    if c < INFEASIBLE {
+                        best = best.min(cu + c - self.routes[rv].cost);
+                    }
+                }
+            }
+        }
+        (count, best / SCALE)
+    }
+
     fn empty_route(&self) -> Option<usize> {
         self.routes.iter().position(|r| r.arcs.len() == 2)
     }
@@ -456,22 +507,9 @@ impl<'m> LocalSearch<'m> {
         let (rv, j) = self.pos[v];
         let (ru, i, rv, j) = (ru as usize, i as usize, rv as usize, j as usize);
         if ru != rv {
-            for &(l1, l2) in &[
-                (1, 0),
-                (2, 0),
-                (1, 1),
-                (2, 1),
-                (1, 2),
-                (2, 2),
-                (3, 0),
-                (3, 1),
-                (3, 2),
-                (1, 3),
-                (3, 3),
-                (2, 3),
-            ] {
+            for &(l1, l2) in EXCHANGES {
                 if self.try_exchange(ru, i, l1, rv, j, l2, true)
-                    || self.try_exchange(ru, i, l1, rv, j, l2, false)
+                    || (l2 <= l1.min(1) && self.try_exchange(ru, i, l1, rv, j, l2, false))
                 {
                     return true;
                 }
@@ -522,9 +560,9 @@ impl<'m> LocalSearch<'m> {
         // Quick load test.
         let cap = self.m.capacity;
         let (ru_d, rv_d) = (&self.routes[ru], &self.routes[rv]);
-        let load_a = ru_d.pl[a1] - ru_d.pl[a0 - 1];
+        let load_a = ru_d.pre[a1].pl - ru_d.pre[a0 - 1].pl;
         let load_b = if l2 > 0 {
-            rv_d.pl[b1] - rv_d.pl[b0 - 1]
+            rv_d.pre[b1].pl - rv_d.pre[b0 - 1].pl
         } else {
             0
         };

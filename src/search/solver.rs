@@ -496,7 +496,7 @@ impl Island {
         self.feasible_window.0 += u64::from(ok);
         self.feasible_window.1 += 1;
         let mut factor = 10.0;
-        while !ok && factor <= 1000.0 {
+        while !ok && factor <= 10000.0 {
             ls.set_penalties(
                 scaled(self.pen_load * factor),
                 scaled(self.pen_time * factor),
@@ -560,7 +560,7 @@ impl Island {
             let r = path_scan(m, &all, Rule::Random, Some(&mut self.rng), 10, false);
             tours.push(giant::of_routes(&r));
         }
-        while tours.len() < 2 * p.mu {
+        while tours.len() < p.mu + 8 {
             tours.push(giant::random(m.n, &mut self.rng));
         }
         for t in tours {

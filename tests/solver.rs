@@ -1,0 +1,274 @@
+//! Solver tests against the public benchmark sets in `../shared/instances`
+//! (published values from `reference.csv`: the CARPData.jl compilation,
+//! R. Martinelli 2021, of Belenguer & Benavent 2003, Bode & Irnich 2012,
+//! Bartolini, Cordeau & Laporte 2013 and the heuristic literature) and
+//! against small hand-computed cases. All runs use iteration limits.
+
+use std::collections::HashMap;
+use std::path::PathBuf;
+
+use arcwright::construct::arcs::ArcMatrix;
+use arcwright::construct::split::{split, split_bounded, SplitFailure};
+use arcwright::io::read_dat_file;
+use arcwright::model::{Dir, Fleet, Instance, Network};
+use arcwright::paths::Distances;
+use arcwright::plan::{self, Plan};
+use arcwright::{SolveError, Solver};
+
+fn shared() -> Option<PathBuf> {
+    let p = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
+    if p.join("reference.csv").exists() {
+        Some(p)
+    } else {
+        eprintln!("SKIPPED: ../shared/instances not found");
+        None
+    }
+}
+
+/// instance -> (lower bound, best known, proven optimal)
+fn reference(dir: &std::path::Path) -> HashMap<String, (i64, i64, bool)> {
+    let text = std::fs::read_to_string(dir.join("reference.csv")).unwrap();
+    text.lines()
+        .skip(1)
+        .filter_map(|l| {
+            let f: Vec<&str> = l.splitn(7, ',').collect();
+            Some((
+                f[1].to_string(),
+                (f[3].parse().ok()?, f[4].parse().ok()?, f[5] == "yes"),
+            ))
+        })
+        .collect()
+}
+
+/// Independent verification from the instance alone: every task served once
+/// in an allowed direction, loads within capacity, route costs and times
+/// recomputed by walking the shortest paths, shift limit respected.
+fn verify(inst: &Instance, plan: &Plan) {
+    let dist = Distances::new(inst).unwrap();
+    let mut seen = vec![0; inst.tasks().len()];
+    let mut total = 0;
+    for r in &plan.routes {
+        assert!(!r.visits.is_empty());
+        for v in &r.visits {
+            seen[v.task] += 1;
+            assert!(inst.tasks()[v.task].allows(v.dir));
+        }
+        let (load, cost, time) = plan::evaluate(inst, &dist, &r.visits);
+        assert_eq!((load, cost, time), (r.load, r.cost, r.time));
+        assert!(load <= inst.fleet().capacity, "overloaded route");
+        if let Some(s) = inst.fleet().shift_limit {
+            assert!(time <= s, "route time {time} over the shift limit {s}");
+        }
+        // The explicit walk costs the same as the route.
+        let walk = plan::walk(inst, &dist, &r.visits);
+        let walk_cost: i64 = walk
+            .iter()
+            .map(|s| {
+                let l = &inst.network().links[s.link];
+                if s.serve {
+                    l.service.as_ref().unwrap().cost
+                } else {
+                    l.cost
+                }
+            })
+            .sum();
+        assert_eq!(walk_cost, r.cost);
+        total += cost;
+    }
+    assert!(
+        seen.iter().all(|&c| c == 1),
+        "a task is not served exactly once"
+    );
+    assert_eq!(total, plan.cost);
+    if let Some(k) = inst.fleet().max_vehicles {
+        assert!(plan.routes.len() <= k);
+    }
+}
+
+#[test]
+fn sample_plans_are_feasible_and_not_below_published_bounds() {
+    let Some(dir) = shared() else { return };
+    let refs = reference(&dir);
+    for (file, iters) in [
+        ("gdb/gdb1.dat", 100),
+        ("gdb/gdb8.dat", 100),
+        ("gdb/gdb13.dat", 100),
+        ("val/val1A.dat", 60),
+        ("val/val5C.dat", 60),
+        ("val/val10D.dat", 40),
+        ("egl/egl-e1-A.dat", 20),
+        ("egl/egl-s1-B.dat", 10),
+    ] {
+        let dat = read_dat_file(dir.join(file)).unwrap();
+        let inst = &dat.instance;
+        let sol = Solver::new(inst)
+            .max_iterations(iters)
+            .workers(2)
+            .solve()
+            .unwrap();
+        verify(inst, &sol.plan);
+        let stem = file.rsplit('/').next().unwrap().trim_end_matches(".dat");
+        let (lb, _, _) = refs[stem];
+        assert!(
+            sol.cost >= lb,
+            "{stem}: {} below the published lower bound {lb}",
+            sol.cost
+        );
+        assert!(sol.cost >= sol.lower_bound.value);
+        assert_eq!(sol.cost, sol.plan.cost);
+    }
+}
+
+#[test]
+fn small_gdb_instances_reach_their_proven_optimum() {
+    let Some(dir) = shared() else { return };
+    let refs = reference(&dir);
+    for name in ["gdb1", "gdb2", "gdb10", "gdb14", "gdb19"] {
+        let dat = read_dat_file(dir.join(format!("gdb/{name}.dat"))).unwrap();
+        let (lb, best, proven) = refs[name];
+        assert!(proven && lb == best);
+        let sol = Solver::new(&dat.instance)
+            .max_iterations(300)
+            .target(best)
+            .solve()
+            .unwrap();
+        verify(&dat.instance, &sol.plan);
+        assert_eq!(sol.cost, best, "{name}: proven optimum {best} not reached");
+    }
+}
+
+#[test]
+fn same_seed_and_workers_give_the_same_plan() {
+    let Some(dir) = shared() else { return };
+    let dat = read_dat_file(dir.join("val/val4A.dat")).unwrap();
+    for workers in [1, 2] {
+        let run = || {
+            Solver::new(&dat.instance)
+                .seed(7)
+                .workers(workers)
+                .max_iterations(150)
+                .epoch(20)
+                .solve()
+                .unwrap()
+        };
+        let (a, b) = (run(), run());
+        assert_eq!(a.plan, b.plan, "workers = {workers}");
+        assert_eq!(a.stats.iterations, b.stats.iterations);
+    }
+}
+
+/// A square of junctions 0-1-2-3 (depot 0), every side costing 1. Required:
+/// e0 = (0,1), e1 = (1,2), e2 = (2,3), each of demand 1; (3,0) may only be
+/// deadheaded. Capacity 2. Giant tour [e2, e1, e0].
+///
+/// Routes of consecutive tasks (service 1 per task plus shortest deadheads):
+/// - {e2}: 0->3 (1) serve 3->2 (1) 2->0 (2) = 4 (the other direction also 4);
+/// - {e2,e1}: 0->3 (1), serve 3->2, serve 2->1, 1->0 (1) = 4 (both backward);
+/// - {e1}: 4; {e1,e0}: 0->2 (2) serve 2->1, serve 1->0 = 4; {e0}: 2;
+/// - {e2,e1,e0} would need load 3 > 2.
+///
+/// Shortest path on the auxiliary graph: V1 = 4, V2 = min(4+4, 4) = 4,
+/// V3 = min(V1 + {e1,e0} = 8, V2 + {e0} = 6) = 6. So the split is
+/// [e2 backward, e1 backward], [e0], cost 6.
+#[test]
+fn split_of_a_hand_made_tour() {
+    let mut net = Network::with_junctions(4);
+    net.add_required_edge(0, 1, 1, 1);
+    net.add_required_edge(1, 2, 1, 1);
+    net.add_required_edge(2, 3, 1, 1);
+    net.add_edge(3, 0, 1);
+    let inst = Instance::new("square", net, Fleet::with_capacity(2), 0).unwrap();
+    let dist = Distances::new(&inst).unwrap();
+    let m = ArcMatrix::new(&inst, &dist).unwrap();
+    let s = split(&m, &[2, 1, 0]).unwrap();
+    assert_eq!(s.cost, 6);
+    assert_eq!(s.routes.len(), 2);
+    let r0: Vec<_> = s.routes[0].iter().map(|&a| ArcMatrix::visit(a)).collect();
+    assert_eq!(r0[0].task, 2);
+    assert_eq!(r0[0].dir, Dir::Backward);
+    assert_eq!(r0[1].task, 1);
+    assert_eq!(r0[1].dir, Dir::Backward);
+    assert_eq!(ArcMatrix::task(s.routes[1][0]), 0);
+    // One truck cannot carry demand 3 with capacity 2.
+    assert_eq!(
+        split_bounded(&m, &[2, 1, 0], Some(1)).unwrap_err(),
+        SplitFailure::TooFewVehicles { fewest: 2 }
+    );
+}
+
+#[test]
+fn bounded_fleet_split_and_impossible_fleet() {
+    let Some(dir) = shared() else { return };
+    let dat = read_dat_file(dir.join("gdb/gdb1.dat")).unwrap();
+    let inst = &dat.instance;
+    // gdb1: 22 tasks of demand 1, capacity 5: at least 5 trucks.
+    let small = inst
+        .with_fleet(Fleet {
+            capacity: 5,
+            shift_limit: None,
+            max_vehicles: Some(4),
+        })
+        .unwrap();
+    match Solver::new(&small).max_iterations(10).solve() {
+        Err(SolveError::FleetTooSmall {
+            needed_at_least,
+            max_vehicles,
+        }) => assert_eq!((needed_at_least, max_vehicles), (5, 4)),
+        other => panic!("expected FleetTooSmall, got {other:?}"),
+    }
+    let msg = SolveError::FleetTooSmall {
+        needed_at_least: 5,
+        max_vehicles: 4,
+    }
+    .to_string();
+    assert!(msg.contains("at least 5") && msg.contains("at most 4"));
+    // Exactly 5 trucks: feasible, and the bounded split never uses more.
+    let five = inst
+        .with_fleet(Fleet {
+            capacity: 5,
+            shift_limit: None,
+            max_vehicles: Some(5),
+        })
+        .unwrap();
+    let dist = Distances::new(&five).unwrap();
+    let m = ArcMatrix::new(&five, &dist).unwrap();
+    let tour: Vec<usize> = (0..22).collect();
+    let free = split_bounded(&m, &tour, None).unwrap();
+    let bounded = split(&m, &tour).unwrap();
+    assert!(bounded.routes.len() <= 5 && bounded.cost >= free.cost);
+    let sol = Solver::new(&five).max_iterations(100).solve().unwrap();
+    verify(&five, &sol.plan);
+    assert!(sol.plan.routes.len() <= 5);
+}
+
+#[test]
+fn shift_limit_is_respected_with_times() {
+    let Some(dir) = shared() else { return };
+    let dat = read_dat_file(dir.join("gdb/gdb1.dat")).unwrap();
+    // Give every link a driving time different from its cost (3 + cost % 7)
+    // and every service a time of twice its cost.
+    let mut net = dat.instance.network().clone();
+    for l in &mut net.links {
+        l.time = Some(3 + l.cost % 7);
+        if let Some(s) = &mut l.service {
+            s.time = Some(2 * s.cost);
+        }
+    }
+    let free = Instance::new("gdb1-timed", net.clone(), Fleet::with_capacity(5), 0).unwrap();
+    assert!(free.has_times());
+    let sol_free = Solver::new(&free).max_iterations(100).solve().unwrap();
+    let longest = sol_free.plan.routes.iter().map(|r| r.time).max().unwrap();
+    let limit = longest * 3 / 4;
+    let timed = free
+        .with_fleet(Fleet {
+            capacity: 5,
+            shift_limit: Some(limit),
+            max_vehicles: None,
+        })
+        .unwrap();
+    let sol = Solver::new(&timed).max_iterations(100).solve().unwrap();
+    verify(&timed, &sol.plan);
+    assert!(sol.plan.routes.iter().all(|r| r.time <= limit));
+    // The limit binds: the unconstrained plan breaks it.
+    assert!(longest > limit);
+}
