@@ -45,6 +45,58 @@ pub fn fmt_time(secs: Cost) -> String {
     format!("{sign}{}:{:02}:{:02}", s / 3600, s / 60 % 60, s % 60)
 }
 
+/// One output file: a name (no folder) and its contents.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct OutputFile {
+    /// File name, e.g. `truck-1.csv`.
+    pub name: String,
+    /// Contents.
+    pub contents: String,
+}
+
+/// Every report of a plan, ready to be written into one folder:
+/// `summary.txt`, `sheets.md`, one `truck-N.csv` per route (numbers padded
+/// to equal width when there are ten or more), and `plan.geojson` and
+/// `plan.svg` when the scenario has coordinates. The plan file itself
+/// (`plan.json`) is written by the caller, who has checked the plan.
+pub fn bundle(
+    inst: &Instance,
+    dist: &crate::paths::Distances,
+    plan: &Plan,
+    extras: &SummaryExtras,
+) -> Vec<OutputFile> {
+    let mut out = vec![
+        OutputFile {
+            name: "summary.txt".into(),
+            contents: summary_table(inst, plan, extras),
+        },
+        OutputFile {
+            name: "sheets.md".into(),
+            contents: sheets::markdown(inst, dist, plan),
+        },
+    ];
+    let width = plan.routes.len().to_string().len();
+    for r in 0..plan.routes.len() {
+        out.push(OutputFile {
+            name: format!("truck-{:0width$}.csv", r + 1),
+            contents: sheets::route_csv(inst, dist, plan, r),
+        });
+    }
+    if let Some(g) = geo::feature_collection(inst, dist, plan, None) {
+        out.push(OutputFile {
+            name: "plan.geojson".into(),
+            contents: g,
+        });
+    }
+    if let Some(m) = svg::map(inst, dist, plan) {
+        out.push(OutputFile {
+            name: "plan.svg".into(),
+            contents: m,
+        });
+    }
+    out
+}
+
 /// Extra figures for [`summary_table`] that come from the solver.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct SummaryExtras {
