@@ -3,6 +3,7 @@
 
 use std::path::PathBuf;
 
+use arcwright::check::{check_plan, check_walks};
 use arcwright::demo::{town, TownSpec};
 use arcwright::model::{Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec};
 use arcwright::paths::Distances;
@@ -88,7 +89,20 @@ fn demo() -> (Instance, Distances, Plan) {
     let inst = town(&TownSpec::demo()).unwrap();
     let dist = Distances::new(&inst).unwrap();
     let plan = greedy(&inst, &dist);
+    valid(&inst, &dist, &plan);
     (inst, dist, plan)
+}
+
+/// The test plans are themselves valid (independent checker), so the sheets
+/// are made from real plans.
+fn valid(inst: &Instance, dist: &Distances, plan: &Plan) {
+    check_plan(inst, plan).unwrap();
+    let walks: Vec<_> = plan
+        .routes
+        .iter()
+        .map(|r| walk(inst, dist, &r.visits))
+        .collect();
+    check_walks(inst, &walks).unwrap();
 }
 
 #[test]
@@ -242,6 +256,7 @@ fn awkward_names_survive_csv_markdown_and_svg() {
     let inst = Instance::new("awkward", net, Fleet::with_capacity(10), 0).unwrap();
     let dist = Distances::new(&inst).unwrap();
     let plan = greedy(&inst, &dist);
+    valid(&inst, &dist, &plan);
     let csv = sheets::route_csv(&inst, &dist, &plan, 0);
     let rows = csv_rows(&csv);
     assert!(rows.iter().any(|r| r[1] == name));
@@ -264,6 +279,7 @@ fn research_files_without_coordinates_get_sheets_but_no_maps() {
     let inst = arcwright::io::read_dat_file(p).unwrap().instance;
     let dist = Distances::new(&inst).unwrap();
     let plan = greedy(&inst, &dist);
+    valid(&inst, &dist, &plan);
     assert!(geo::feature_collection(&inst, &dist, &plan, None).is_none());
     assert!(svg::map(&inst, &dist, &plan).is_none());
     let total: i64 = (0..plan.routes.len())
