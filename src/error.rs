@@ -73,6 +73,26 @@ pub enum ParseProblem {
     /// The text read fine but the model it describes is invalid.
     #[error("{0}")]
     Model(ModelError),
+    /// A problem at a place inside a structured (JSON) document, given as a
+    /// path such as `streets[12].to`.
+    #[error("at `{path}`: {problem}")]
+    AtPath {
+        path: String,
+        problem: Box<ParseProblem>,
+    },
+    /// A junction id that no junction has.
+    #[error("no junction has id {id}")]
+    UnknownJunction { id: u64 },
+    /// Two junctions with the same id.
+    #[error("junction id {id} given twice (first at junctions[{first}])")]
+    DuplicateJunction { id: u64, first: usize },
+    /// A number beyond what the crate accepts (see [`crate::io::MAX_NUMBER`]).
+    #[error("{what} {value} is too large (at most {max})")]
+    TooLarge {
+        what: &'static str,
+        value: u64,
+        max: u64,
+    },
     /// A plan file serves a (from, to) pair that is not the required link it names.
     #[error("route {route}, service {position}: ({from}, {to}) with link {link} is not a required link of the instance in an allowed direction")]
     NotARequiredLink {
@@ -99,6 +119,24 @@ pub enum ParseProblem {
         stated: i64,
         computed: i64,
     },
+}
+
+impl ParseProblem {
+    /// The problem itself, with any [`ParseProblem::AtPath`] wrappers removed.
+    pub fn innermost(&self) -> &ParseProblem {
+        match self {
+            ParseProblem::AtPath { problem, .. } => problem.innermost(),
+            p => p,
+        }
+    }
+
+    /// The JSON path of the problem, when it has one.
+    pub fn path(&self) -> Option<&str> {
+        match self {
+            ParseProblem::AtPath { path, .. } => Some(path),
+            _ => None,
+        }
+    }
 }
 
 /// The error type of the crate's readers and writers.

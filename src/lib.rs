@@ -10,8 +10,10 @@
 //! [`check`] (independent plan checker), [`postman`] and [`bounds`]
 //! (single-tour routes and lower bounds), [`construct`], [`improve`] and
 //! [`search`] (the fleet solver), [`demo`] and [`report`] (demo towns and
-//! outputs for people).
+//! outputs for people), and [`app`] (the logic of the `planner` example
+//! program).
 
+pub mod app;
 pub mod bounds;
 pub mod check;
 pub mod construct;

@@ -1,1 +1,728 @@
 //! Independent plan checker: verifies a plan from the instance alone.
+//!
+//! Nothing here trusts the solver or the crate's shortest-path module
+//! ([`crate::paths`]): [`check_plan`] recomputes every shortest deadhead with
+//! its own lexicographic Dijkstra search (least cost, ties broken by least
+//! time, the convention documented in [`crate::model::Fleet::shift_limit`]),
+//! and recomputes every load, cost and time from scratch. [`check_walks`]
+//! checks explicit street-by-street walks ([`Step`]s) against the network.
+//!
+//! All problems found are returned, not only the first, as typed
+//! [`Violation`]s whose `Display` names the route, task, link and numbers.
+//! Indices are 0-based, as in [`Plan::routes`], [`Instance::tasks`] and
+//! [`crate::model::Network::links`]; junctions are given by index into
+//! [`crate::model::Network::junctions`] ([`Violation::NoPath`] also gives
+//! their external ids).
+//!
+//! For an instance built by [`Instance::new`] every task can be reached from
+//! the depot and back, so [`Violation::NoPath`] cannot occur with allowed
+//! directions; the check stays as a guard.
+//!
+//! ```
+//! use arcwright::check::{check_plan, Violation};
+//! use arcwright::model::{Dir, Fleet, Instance, Network};
+//! use arcwright::plan::{Plan, Route, Visit};
+//!
+//! // A triangle: two required streets and one street to drive back on.
+//! let mut net = Network::with_junctions(3);
+//! net.add_required_edge(0, 1, 4, 2);
+//! net.add_required_edge(1, 2, 5, 3);
+//! net.add_edge(2, 0, 7);
+//! let inst = Instance::new("triangle", net, Fleet::with_capacity(10), 0).unwrap();
+//!
+//! // One truck serves both streets and drives back: 4 + 5 + 7 = 16.
+//! let visits = vec![Visit::new(0, Dir::Forward), Visit::new(1, Dir::Forward)];
+//! let good = Plan { routes: vec![Route { visits, load: 5, cost: 16, time: 16 }], cost: 16 };
+//! assert!(check_plan(&inst, &good).is_ok());
+//!
+//! // A plan that reports a wrong cost is rejected with the numbers involved.
+//! let mut bad = good.clone();
+//! bad.routes[0].cost = 15;
+//! bad.cost = 15;
+//! let v = check_plan(&inst, &bad).unwrap_err();
+//! assert!(v.contains(&Violation::WrongCost { route: 0, reported: 15, actual: 16 }));
+//! assert_eq!(v[0].to_string(), "route 0: reported cost 15, but it recomputes to 16");
+//! ```
+
+use std::cmp::Reverse;
+use std::collections::{BTreeMap, BinaryHeap};
+use std::fmt;
+
+use crate::model::{Cost, Dir, Instance};
+use crate::plan::{Plan, Step};
+
+/// Where a task was served: route index and position in the route (for
+/// walks: the step index).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct At {
+    /// Route (or walk) index.
+    pub route: usize,
+    /// Position of the visit in the route, or index of the step in the walk.
+    pub pos: usize,
+}
+
+impl fmt::Display for At {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "route {} position {}", self.route, self.pos)
+    }
+}
+
+/// One thing wrong with a plan or a walk.
+#[derive(Clone, Debug, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Violation {
+    /// A visit names a task index that does not exist.
+    UnknownTask {
+        /// Where.
+        at: At,
+        /// The task index given.
+        task: usize,
+        /// Number of tasks of the instance.
+        tasks: usize,
+    },
+    /// A task is served backward although only forward service is allowed
+    /// (a one-way street, or one side of a street).
+    DirectionNotAllowed {
+        /// Where.
+        at: At,
+        /// Task index.
+        task: usize,
+        /// Link index of the task.
+        link: usize,
+    },
+    /// A task is served more than once.
+    ServedTwice {
+        /// Task index.
+        task: usize,
+        /// Link index.
+        link: usize,
+        /// The first service.
+        first: At,
+        /// A later service.
+        again: At,
+    },
+    /// A task is not served at all.
+    NotServed {
+        /// Task index.
+        task: usize,
+        /// Link index.
+        link: usize,
+    },
+    /// No path leads from one junction to the next in a route.
+    NoPath {
+        /// Route index.
+        route: usize,
+        /// Junction index where the leg starts.
+        from: usize,
+        /// Its external id.
+        from_id: u64,
+        /// Junction index where it should end.
+        to: usize,
+        /// Its external id.
+        to_id: u64,
+    },
+    /// A route carries more than a truck holds.
+    OverCapacity {
+        /// Route index.
+        route: usize,
+        /// Load of the route (recomputed).
+        load: Cost,
+        /// The truck capacity.
+        capacity: Cost,
+    },
+    /// A route takes longer than the shift limit.
+    OverShift {
+        /// Route index.
+        route: usize,
+        /// Time of the route (recomputed).
+        time: Cost,
+        /// The shift limit.
+        limit: Cost,
+    },
+    /// The plan uses more trucks than the fleet has.
+    TooManyRoutes {
+        /// Number of routes.
+        routes: usize,
+        /// The fleet's maximum.
+        max: usize,
+    },
+    /// A route serves nothing.
+    EmptyRoute {
+        /// Route index.
+        route: usize,
+    },
+    /// A route's reported load differs from the recomputed one.
+    WrongLoad {
+        /// Route index.
+        route: usize,
+        /// Value in the plan.
+        reported: Cost,
+        /// Recomputed value.
+        actual: Cost,
+    },
+    /// A route's reported cost differs from the recomputed one.
+    WrongCost {
+        /// Route index.
+        route: usize,
+        /// Value in the plan.
+        reported: Cost,
+        /// Recomputed value.
+        actual: Cost,
+    },
+    /// A route's reported time differs from the recomputed one.
+    WrongTime {
+        /// Route index.
+        route: usize,
+        /// Value in the plan.
+        reported: Cost,
+        /// Recomputed value.
+        actual: Cost,
+    },
+    /// The plan's reported total cost differs from the sum of the
+    /// recomputed route costs.
+    WrongTotal {
+        /// Value in the plan.
+        reported: Cost,
+        /// Recomputed value.
+        actual: Cost,
+    },
+    /// A walk step names a link index that does not exist.
+    UnknownLink {
+        /// Where.
+        at: At,
+        /// The link index given.
+        link: usize,
+        /// Number of links of the network.
+        links: usize,
+    },
+    /// A walk step's junctions are not the two ends of its link.
+    NotOnLink {
+        /// Where.
+        at: At,
+        /// Link index.
+        link: usize,
+        /// Junction index the step starts at.
+        from: usize,
+        /// Junction index it ends at.
+        to: usize,
+    },
+    /// A walk step drives a one-way link against its direction.
+    AgainstOneWay {
+        /// Where.
+        at: At,
+        /// Link index.
+        link: usize,
+    },
+    /// A walk step does not start where the previous one ended.
+    Disconnected {
+        /// Where (the step that does not connect).
+        at: At,
+        /// Junction index where the previous step ended.
+        expected: usize,
+        /// Junction index where this step starts.
+        found: usize,
+    },
+    /// A walk does not start at the depot.
+    NotFromDepot {
+        /// Walk index.
+        route: usize,
+        /// Junction index where it starts.
+        junction: usize,
+    },
+    /// A walk does not end at the depot.
+    NotToDepot {
+        /// Walk index.
+        route: usize,
+        /// Junction index where it ends.
+        junction: usize,
+    },
+    /// A walk serves a link that is not required.
+    ServesNonRequired {
+        /// Where.
+        at: At,
+        /// Link index.
+        link: usize,
+    },
+}
+
+impl fmt::Display for Violation {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        use Violation::*;
+        match self {
+            UnknownTask { at, task, tasks } => write!(
+                f,
+                "{at}: task {task} does not exist (the instance has {tasks} tasks)"
+            ),
+            DirectionNotAllowed { at, task, link } => write!(
+                f,
+                "{at}: task {task} (link {link}) is served backward, but only forward service is allowed"
+            ),
+            ServedTwice {
+                task,
+                link,
+                first,
+                again,
+            } => write!(
+                f,
+                "task {task} (link {link}) is served twice: at {first} and again at {again}"
+            ),
+            NotServed { task, link } => write!(f, "task {task} (link {link}) is not served"),
+            NoPath {
+                route,
+                from,
+                from_id,
+                to,
+                to_id,
+            } => write!(
+                f,
+                "route {route}: no path from junction {from} (id {from_id}) to junction {to} (id {to_id})"
+            ),
+            OverCapacity {
+                route,
+                load,
+                capacity,
+            } => write!(
+                f,
+                "route {route}: load {load} exceeds the capacity {capacity} by {}",
+                load - capacity
+            ),
+            OverShift { route, time, limit } => write!(
+                f,
+                "route {route}: time {time} exceeds the shift limit {limit} by {}",
+                time - limit
+            ),
+            TooManyRoutes { routes, max } => write!(
+                f,
+                "the plan uses {routes} routes, but the fleet has only {max} trucks"
+            ),
+            EmptyRoute { route } => write!(f, "route {route} serves nothing"),
+            WrongLoad {
+                route,
+                reported,
+                actual,
+            } => write!(
+                f,
+                "route {route}: reported load {reported}, but it recomputes to {actual}"
+            ),
+            WrongCost {
+                route,
+                reported,
+                actual,
+            } => write!(
+                f,
+                "route {route}: reported cost {reported}, but it recomputes to {actual}"
+            ),
+            WrongTime {
+                route,
+                reported,
+                actual,
+            } => write!(
+                f,
+                "route {route}: reported time {reported}, but it recomputes to {actual}"
+            ),
+            WrongTotal { reported, actual } => write!(
+                f,
+                "plan: reported total cost {reported}, but the routes add up to {actual}"
+            ),
+            UnknownLink { at, link, links } => write!(
+                f,
+                "{at}: link {link} does not exist (the network has {links} links)"
+            ),
+            NotOnLink { at, link, from, to } => write!(
+                f,
+                "{at}: a step from junction {from} to junction {to} does not follow link {link}"
+            ),
+            AgainstOneWay { at, link } => {
+                write!(f, "{at}: one-way link {link} is driven against its direction")
+            }
+            Disconnected {
+                at,
+                expected,
+                found,
+            } => write!(
+                f,
+                "{at}: the step starts at junction {found}, but the previous one ended at junction {expected}"
+            ),
+            NotFromDepot { route, junction } => write!(
+                f,
+                "route {route}: starts at junction {junction}, not at the depot"
+            ),
+            NotToDepot { route, junction } => write!(
+                f,
+                "route {route}: ends at junction {junction}, not at the depot"
+            ),
+            ServesNonRequired { at, link } => {
+                write!(f, "{at}: link {link} is served but it is not required")
+            }
+        }
+    }
+}
+
+impl std::error::Error for Violation {}
+
+/// Forward adjacency of the deadhead graph: for each junction, (to, cost, time).
+fn adjacency(inst: &Instance) -> Vec<Vec<(usize, Cost, Cost)>> {
+    let net = inst.network();
+    let mut adj = vec![Vec::new(); net.junctions.len()];
+    for l in &net.links {
+        let t = l.time.unwrap_or(l.cost);
+        adj[l.from].push((l.to, l.cost, t));
+        if !l.oneway {
+            adj[l.to].push((l.from, l.cost, t));
+        }
+    }
+    adj
+}
+
+/// Lexicographic (cost, time) Dijkstra from `s`; `None` for unreachable.
+fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost, Cost)>> {
+    let mut best: Vec<Option<(Cost, Cost)>> = vec![None; adj.len()];
+    let mut done = vec![false; adj.len()];
+    let mut heap = BinaryHeap::new();
+    best[s] = Some((0, 0));
+    heap.push(Reverse((0 as Cost, 0 as Cost, s)));
+    while let Some(Reverse((c, t, v))) = heap.pop() {
+        if done[v] {
+            continue;
+        }
+        done[v] = true;
+        for &(w, lc, lt) in &adj[v] {
+            let cand = (c.saturating_add(lc), t.saturating_add(lt));
+            if !done[w] && best[w].map_or(true, |b| cand < b) {
+                best[w] = Some(cand);
+                heap.push(Reverse((cand.0, cand.1, w)));
+            }
+        }
+    }
+    best
+}
+
+/// Checks a plan against an instance, recomputing everything from scratch.
+///
+/// Checks: every visit names a real task, served in an allowed direction;
+/// every task served exactly once; every leg (depot to first task, task to
+/// task, last task to depot) has a path; no empty route; every route's load
+/// within the capacity and time within the shift limit; at most
+/// `max_vehicles` routes; and each route's reported load, cost and time and
+/// the plan's total cost equal the recomputed values.
+///
+/// Route cost is service cost plus the least deadhead cost of every leg;
+/// route time is service time plus the driving time along those least-cost
+/// legs (ties between equally cheap paths broken by least time).
+///
+/// Returns every violation found (in a deterministic order).
+pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
+    let tasks = inst.tasks();
+    let fleet = inst.fleet();
+    let depot = inst.depot();
+    let mut out = Vec::new();
+
+    if let Some(max) = fleet.max_vehicles {
+        if plan.routes.len() > max {
+            out.push(Violation::TooManyRoutes {
+                routes: plan.routes.len(),
+                max,
+            });
+        }
+    }
+
+    // Service coverage.
+    let mut seen: Vec<Option<At>> = vec![None; tasks.len()];
+    for (r, route) in plan.routes.iter().enumerate() {
+        if route.visits.is_empty() {
+            out.push(Violation::EmptyRoute { route: r });
+        }
+        for (p, v) in route.visits.iter().enumerate() {
+            let at = At { route: r, pos: p };
+            let Some(t) = tasks.get(v.task) else {
+                out.push(Violation::UnknownTask {
+                    at,
+                    task: v.task,
+                    tasks: tasks.len(),
+                });
+                continue;
+            };
+            if v.dir == Dir::Backward && !t.either {
+                out.push(Violation::DirectionNotAllowed {
+                    at,
+                    task: v.task,
+                    link: t.link,
+                });
+            }
+            match seen[v.task] {
+                Some(first) => out.push(Violation::ServedTwice {
+                    task: v.task,
+                    link: t.link,
+                    first,
+                    again: at,
+                }),
+                None => seen[v.task] = Some(at),
+            }
+        }
+    }
+    for (i, s) in seen.iter().enumerate() {
+        if s.is_none() {
+            out.push(Violation::NotServed {
+                task: i,
+                link: tasks[i].link,
+            });
+        }
+    }
+
+    // Legs of every route, as (from, to) junction pairs, skipping unknown tasks.
+    let mut legs: Vec<Vec<(usize, usize)>> = Vec::with_capacity(plan.routes.len());
+    for route in &plan.routes {
+        let mut at = depot;
+        let mut l = Vec::new();
+        for v in &route.visits {
+            if let Some(t) = tasks.get(v.task) {
+                let (s, e) = t.ends(v.dir);
+                l.push((at, s));
+                at = e;
+            }
+        }
+        if !route.visits.is_empty() {
+            l.push((at, depot));
+        }
+        legs.push(l);
+    }
+    // One search per distinct leg start.
+    let adj = adjacency(inst);
+    let mut by_source: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
+    for l in legs.iter().flatten() {
+        by_source.entry(l.0).or_default().push(l.1);
+    }
+    let mut leg_dist: BTreeMap<(usize, usize), Option<(Cost, Cost)>> = BTreeMap::new();
+    for (s, targets) in by_source {
+        let d = shortest_from(&adj, s);
+        for t in targets {
+            leg_dist.insert((s, t), d[t]);
+        }
+    }
+
+    let ids = |j: usize| inst.network().junctions[j].id;
+    let mut total: Cost = 0;
+    let mut total_known = true;
+    for (r, route) in plan.routes.iter().enumerate() {
+        let (mut load, mut cost, mut time) = (0 as Cost, 0 as Cost, 0 as Cost);
+        for v in &route.visits {
+            if let Some(t) = tasks.get(v.task) {
+                load = load.saturating_add(t.demand);
+                cost = cost.saturating_add(t.cost);
+                time = time.saturating_add(t.time);
+            }
+        }
+        let mut reachable = true;
+        for &(a, b) in &legs[r] {
+            match leg_dist[&(a, b)] {
+                Some((c, t)) => {
+                    cost = cost.saturating_add(c);
+                    time = time.saturating_add(t);
+                }
+                None => {
+                    reachable = false;
+                    out.push(Violation::NoPath {
+                        route: r,
+                        from: a,
+                        from_id: ids(a),
+                        to: b,
+                        to_id: ids(b),
+                    });
+                }
+            }
+        }
+        if load > fleet.capacity {
+            out.push(Violation::OverCapacity {
+                route: r,
+                load,
+                capacity: fleet.capacity,
+            });
+        }
+        if route.load != load {
+            out.push(Violation::WrongLoad {
+                route: r,
+                reported: route.load,
+                actual: load,
+            });
+        }
+        if !reachable {
+            total_known = false;
+            continue;
+        }
+        if let Some(limit) = fleet.shift_limit {
+            if time > limit {
+                out.push(Violation::OverShift {
+                    route: r,
+                    time,
+                    limit,
+                });
+            }
+        }
+        if route.cost != cost {
+            out.push(Violation::WrongCost {
+                route: r,
+                reported: route.cost,
+                actual: cost,
+            });
+        }
+        if route.time != time {
+            out.push(Violation::WrongTime {
+                route: r,
+                reported: route.time,
+                actual: time,
+            });
+        }
+        total = total.saturating_add(cost);
+    }
+    if total_known && plan.cost != total {
+        out.push(Violation::WrongTotal {
+            reported: plan.cost,
+            actual: total,
+        });
+    }
+    if out.is_empty() {
+        Ok(())
+    } else {
+        Err(out)
+    }
+}
+
+/// Checks explicit walks, one per truck, street by street.
+///
+/// Checks: every step names a real link and follows it between its two ends,
+/// never against a one-way link; each step starts where the previous ended;
+/// each walk starts and ends at the depot and serves something; served steps
+/// are on required links, in an allowed direction, and every task is served
+/// exactly once; nothing else is served. Also the fleet limits: load within
+/// capacity, time (service time of served steps plus driving time of the
+/// others) within the shift limit, and at most `max_vehicles` walks.
+pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Violation>> {
+    let net = inst.network();
+    let tasks = inst.tasks();
+    let fleet = inst.fleet();
+    let depot = inst.depot();
+    let mut task_of = vec![None; net.links.len()];
+    for (i, t) in tasks.iter().enumerate() {
+        task_of[t.link] = Some(i);
+    }
+    let mut out = Vec::new();
+    if let Some(max) = fleet.max_vehicles {
+        if walks.len() > max {
+            out.push(Violation::TooManyRoutes {
+                routes: walks.len(),
+                max,
+            });
+        }
+    }
+    let mut seen: Vec<Option<At>> = vec![None; tasks.len()];
+    for (r, walk) in walks.iter().enumerate() {
+        let (mut load, mut time, mut served) = (0 as Cost, 0 as Cost, 0usize);
+        if let (Some(first), Some(last)) = (walk.first(), walk.last()) {
+            if first.from != depot {
+                out.push(Violation::NotFromDepot {
+                    route: r,
+                    junction: first.from,
+                });
+            }
+            if last.to != depot {
+                out.push(Violation::NotToDepot {
+                    route: r,
+                    junction: last.to,
+                });
+            }
+        }
+        for (p, s) in walk.iter().enumerate() {
+            let at = At { route: r, pos: p };
+            if p > 0 && walk[p - 1].to != s.from {
+                out.push(Violation::Disconnected {
+                    at,
+                    expected: walk[p - 1].to,
+                    found: s.from,
+                });
+            }
+            let Some(l) = net.links.get(s.link) else {
+                out.push(Violation::UnknownLink {
+                    at,
+                    link: s.link,
+                    links: net.links.len(),
+                });
+                continue;
+            };
+            let forward = (s.from, s.to) == (l.from, l.to);
+            let backward = (s.from, s.to) == (l.to, l.from);
+            if !forward && !backward {
+                out.push(Violation::NotOnLink {
+                    at,
+                    link: s.link,
+                    from: s.from,
+                    to: s.to,
+                });
+                continue;
+            }
+            if !forward && l.oneway {
+                out.push(Violation::AgainstOneWay { at, link: s.link });
+            }
+            if !s.serve {
+                time = time.saturating_add(l.time.unwrap_or(l.cost));
+                continue;
+            }
+            let Some(ti) = task_of[s.link] else {
+                out.push(Violation::ServesNonRequired { at, link: s.link });
+                continue;
+            };
+            let t = &tasks[ti];
+            served += 1;
+            load = load.saturating_add(t.demand);
+            time = time.saturating_add(t.time);
+            // A loop link (from == to) is forward either way.
+            if !forward && !t.either {
+                out.push(Violation::DirectionNotAllowed {
+                    at,
+                    task: ti,
+                    link: s.link,
+                });
+            }
+            match seen[ti] {
+                Some(first) => out.push(Violation::ServedTwice {
+                    task: ti,
+                    link: s.link,
+                    first,
+                    again: at,
+                }),
+                None => seen[ti] = Some(at),
+            }
+        }
+        if served == 0 {
+            out.push(Violation::EmptyRoute { route: r });
+        }
+        if load > fleet.capacity {
+            out.push(Violation::OverCapacity {
+                route: r,
+                load,
+                capacity: fleet.capacity,
+            });
+        }
+        if let Some(limit) = fleet.shift_limit {
+            if time > limit {
+                out.push(Violation::OverShift {
+                    route: r,
+                    time,
+                    limit,
+                });
+            }
+        }
+    }
+    for (i, s) in seen.iter().enumerate() {
+        if s.is_none() {
+            out.push(Violation::NotServed {
+                task: i,
+                link: tasks[i].link,
+            });
+        }
+    }
+    if out.is_empty() {
+        Ok(())
+    } else {
+        Err(out)
+    }
+}

@@ -22,6 +22,7 @@
 
 use std::path::Path;
 
+use super::{MAX_JUNCTIONS, MAX_NUMBER};
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Fleet, Instance, Network};
 
@@ -91,6 +92,17 @@ fn nonneg(file: &str, line: usize, tok: &str, what: &'static str) -> Result<i64>
             file,
             Some(line),
             ParseProblem::Negative { what, value: v },
+        ));
+    }
+    if v > MAX_NUMBER {
+        return Err(Error::parse(
+            file,
+            Some(line),
+            ParseProblem::TooLarge {
+                what,
+                value: v as u64,
+                max: MAX_NUMBER as u64,
+            },
         ));
     }
     Ok(v)
@@ -181,8 +193,25 @@ pub fn read_dat(text: &str, file: &str) -> Result<DatInstance> {
         }
     };
 
+    let total_lines = text.lines().count();
+    // A file cut off in the middle of its last line: a bad last line is then
+    // reported as truncation.
+    let cut = !text.ends_with('\n');
     for (idx, raw) in text.lines().enumerate() {
         let line = idx + 1;
+        let cut_here = |e: Error| {
+            if cut && line == total_lines {
+                Error::parse(
+                    file,
+                    Some(line),
+                    ParseProblem::Truncated {
+                        expected: format!("the rest of line {line}"),
+                    },
+                )
+            } else {
+                e
+            }
+        };
         last_line = line;
         let s = raw.trim_matches(|c: char| c.is_whitespace() || c == '\u{feff}');
         if s.is_empty() {
@@ -211,11 +240,11 @@ pub fn read_dat(text: &str, file: &str) -> Result<DatInstance> {
                     ))
                 }
                 Section::Required => {
-                    edges.push(parse_edge(file, line, s, true, nv)?);
+                    edges.push(parse_edge(file, line, s, true, nv).map_err(cut_here)?);
                     n_req_listed += 1;
                 }
                 Section::Other => {
-                    edges.push(parse_edge(file, line, s, false, nv)?);
+                    edges.push(parse_edge(file, line, s, false, nv).map_err(cut_here)?);
                     n_other_listed += 1;
                 }
             }
@@ -252,7 +281,7 @@ pub fn read_dat(text: &str, file: &str) -> Result<DatInstance> {
                         ParseProblem::MissingKey { key: "VERTICES" },
                     )
                 })?;
-                let d = num(file, line, &value, "the depot vertex")?;
+                let d = num(file, line, &value, "the depot vertex").map_err(cut_here)?;
                 if d < 1 || d as usize > nv {
                     return Err(Error::parse(
                         file,
@@ -287,6 +316,17 @@ pub fn read_dat(text: &str, file: &str) -> Result<DatInstance> {
                 header.insert(key.clone(), (value, line));
                 if key == "VERTICES" {
                     n = get_usize(&header, "VERTICES")?;
+                    if let Some(v) = n.filter(|&v| v > MAX_JUNCTIONS) {
+                        return Err(Error::parse(
+                            file,
+                            Some(line),
+                            ParseProblem::TooLarge {
+                                what: "VERTICES",
+                                value: v as u64,
+                                max: MAX_JUNCTIONS as u64,
+                            },
+                        ));
+                    }
                 }
             }
         }
@@ -360,8 +400,7 @@ pub fn read_dat(text: &str, file: &str) -> Result<DatInstance> {
     let required_cost: Cost = edges
         .iter()
         .filter(|e| e.demand.is_some())
-        .map(|e| e.cost)
-        .sum();
+        .fold(0, |acc: Cost, e| acc.saturating_add(e.cost));
 
     let mut net = Network::with_junctions(nv);
     let mut link_lines = Vec::with_capacity(edges.len());

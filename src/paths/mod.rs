@@ -131,6 +131,9 @@ pub enum DistanceError {
     Overflow { from: usize, to: usize, value: Cost },
 }
 
+/// One source's rows of the cost and (optional) time matrices.
+type Row<'a> = (usize, &'a mut [u32], Option<&'a mut [u32]>);
+
 /// All-pairs shortest deadhead costs and times between key junctions.
 #[derive(Clone, Debug)]
 pub struct Distances {
@@ -174,8 +177,7 @@ impl Distances {
         } else {
             Vec::new()
         };
-        #[allow(clippy::type_complexity)]
-        let rows: Vec<(usize, &mut [u32], Option<&mut [u32]>)> = if with_times {
+        let rows: Vec<Row<'_>> = if with_times {
             cost.chunks_mut(k.max(1))
                 .zip(time.chunks_mut(k.max(1)))
                 .enumerate()

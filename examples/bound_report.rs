@@ -1,0 +1,131 @@
+//! Runs every lower bound on the public instances in `../shared/instances`
+//! and prints, per set and per bound, the average ratio bound / best known
+//! (from `reference.csv`), how often the bound equals the best known value,
+//! and the time of the slowest bound on the largest egl instance.
+//!
+//! ```text
+//! cargo run --release --example bound_report
+//! ```
+
+use std::collections::BTreeMap;
+use std::path::Path;
+use std::time::{Duration, Instant};
+
+use arcwright::bounds::{all_bounds, bound};
+use arcwright::io::dat::read_dat_file;
+use arcwright::paths::Distances;
+use arcwright::postman::rural::{rural_lower_bound, rural_tour};
+
+/// Time taken by each bound, by name.
+type Timings = Vec<(&'static str, Duration)>;
+
+fn main() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
+    let Ok(csv) = std::fs::read_to_string(root.join("reference.csv")) else {
+        println!("skipped: {} not found", root.display());
+        return;
+    };
+    // (set, bound) -> (sum of ratios, count, equal to best known)
+    let mut stats: BTreeMap<(String, &'static str), (f64, usize, usize)> = BTreeMap::new();
+    // set -> (sum of tour / bound, count, equal)
+    let mut rural: BTreeMap<String, (f64, usize, usize)> = BTreeMap::new();
+    let mut largest: Option<(usize, String, Timings)> = None;
+    for line in csv.lines().skip(1) {
+        let f: Vec<&str> = line.splitn(7, ',').collect();
+        let (set, name, file, best) = (f[0], f[1], f[2], f[4].parse::<i64>().unwrap());
+        let dat = read_dat_file(root.join(file)).expect("readable instance");
+        let inst = dat.instance;
+        let dist = Distances::new(&inst).expect("distances");
+        let all = all_bounds(&inst, &dist);
+        let tour = rural_tour(&inst).expect("rural tour");
+        let lb = rural_lower_bound(&inst).expect("rural bound");
+        let e = rural.entry(set.to_string()).or_default();
+        e.0 += tour.cost as f64 / lb as f64;
+        e.1 += 1;
+        e.2 += usize::from(tour.cost == lb);
+        let best_of = bound(&inst, &dist);
+        for b in all
+            .iter()
+            .chain(std::iter::once(&arcwright::bounds::LowerBound {
+                value: best_of.value,
+                by: "best of all (bound())",
+            }))
+        {
+            assert!(
+                b.value <= best,
+                "{name}: {} = {} > best known {best}",
+                b.by,
+                b.value
+            );
+            let e = stats.entry((set.to_string(), b.by)).or_default();
+            e.0 += b.value as f64 / best as f64;
+            e.1 += 1;
+            e.2 += usize::from(b.value == best);
+        }
+        if set == "egl" {
+            let size = inst.network().links.len() * 1000 + inst.tasks().len();
+            if largest.as_ref().map_or(true, |l| size > l.0) {
+                // Time each bound on its own.
+                let times = time_each(&inst, &dist);
+                largest = Some((size, name.to_string(), times));
+            }
+        }
+    }
+    println!(
+        "{:<5} {:<24} {:>8} {:>10} {:>6}",
+        "set", "bound", "ratio", "= best", "of"
+    );
+    for ((set, by), (sum, n, eq)) in &stats {
+        println!(
+            "{:<5} {:<24} {:>8.4} {:>10} {:>6}",
+            set,
+            by,
+            sum / *n as f64,
+            eq,
+            n
+        );
+    }
+    println!("\nrural postman tour (one truck) / rural lower bound");
+    for (set, (sum, n, eq)) in &rural {
+        println!(
+            "{:<5} {:>8.4}  tour = bound on {} of {}",
+            set,
+            sum / *n as f64,
+            eq,
+            n
+        );
+    }
+    if let Some((_, name, times)) = largest {
+        println!("\nlargest egl instance: {name}");
+        for (by, t) in &times {
+            println!("  {:<24} {:>10.3} ms", by, t.as_secs_f64() * 1e3);
+        }
+        let slow = times.iter().max_by_key(|x| x.1).unwrap();
+        println!("  slowest: {} {:.3} ms", slow.0, slow.1.as_secs_f64() * 1e3);
+    }
+}
+
+fn time_each(inst: &arcwright::model::Instance, dist: &Distances) -> Timings {
+    use arcwright::bounds::*;
+    use arcwright::postman::DenseBlossom;
+    let mut out = Vec::new();
+    let t = Instant::now();
+    let _ = odd_matching_bound(inst, &DenseBlossom);
+    out.push((ODD_MATCHING, t.elapsed()));
+    let t = Instant::now();
+    let _ = connection_bound(inst);
+    out.push((CONNECTION, t.elapsed()));
+    let t = Instant::now();
+    let _ = imbalance_flow_bound(inst, dist);
+    out.push((IMBALANCE_FLOW, t.elapsed()));
+    let t = Instant::now();
+    let _ = depot_degree_bound(inst, &DenseBlossom);
+    out.push((DEPOT_DEGREE, t.elapsed()));
+    let t = Instant::now();
+    let _ = depot_cut_bound(inst);
+    out.push((DEPOT_CUTS, t.elapsed()));
+    let t = Instant::now();
+    let _ = all_bounds(inst, dist);
+    out.push(("all_bounds", t.elapsed()));
+    out
+}

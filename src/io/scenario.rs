@@ -1,0 +1,593 @@
+//! Our own JSON scenario format: a street network, the yard and the fleet.
+//!
+//! A scenario is one JSON object:
+//!
+//! | field | type | meaning |
+//! |---|---|---|
+//! | `format` | string | always `"arcwright-scenario"` |
+//! | `version` | integer | always `1` |
+//! | `name` | string, optional | a name for reports (default `""`) |
+//! | `junctions` | array | `{ "id": integer, "x": number?, "y": number? }`; ids are any distinct non-negative integers (OSM node ids, say) |
+//! | `streets` | array | see below |
+//! | `yard` | integer | id of the junction the trucks leave from and return to (the depot) |
+//! | `fleet` | object | `{ "capacity": integer, "shift_limit": integer?, "max_trucks": integer? }` |
+//!
+//! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
+//! "drive_time": integer?, "name": string?, "service": {...}? }`:
+//! `one_way` (default `false`) means it may only be driven from `from` to
+//! `to`; `cost` is paid each time it is driven without serving
+//! (deadheading); `drive_time` defaults to `cost`. A street with a `service`
+//! block is *required*: `{ "demand": integer, "cost": integer, "time":
+//! integer?, "directions": "either" | "forward" }` (`time` defaults to the
+//! service cost, `directions` to `"either"`). A street whose two sides are
+//! served separately is written as two streets with `"directions":
+//! "forward"`, one each way. Omitted `shift_limit` / `max_trucks` mean no
+//! limit. Unknown fields are rejected, so a misspelt field is an error, not
+//! silently ignored.
+//!
+//! All costs, times and demands are exact integers in `0..=`[`MAX_NUMBER`].
+//! Coordinates are decimal numbers (any planar or lon/lat system); a
+//! coordinate that is not finite cannot be written to JSON and is written as
+//! absent.
+//!
+//! ```
+//! use arcwright::io::scenario::{read_scenario, write_scenario};
+//! let text = r#"{
+//!   "format": "arcwright-scenario",
+//!   "version": 1,
+//!   "name": "three streets",
+//!   "junctions": [
+//!     { "id": 10, "x": 0.0, "y": 0.0 },
+//!     { "id": 20, "x": 100.0, "y": 0.0 },
+//!     { "id": 30 }
+//!   ],
+//!   "streets": [
+//!     { "from": 10, "to": 20, "cost": 4, "name": "Mill Lane",
+//!       "service": { "demand": 2, "cost": 6, "time": 9, "directions": "either" } },
+//!     { "from": 20, "to": 30, "one_way": true, "cost": 5, "drive_time": 7,
+//!       "service": { "demand": 3, "cost": 5, "directions": "forward" } },
+//!     { "from": 30, "to": 10, "cost": 7 }
+//!   ],
+//!   "yard": 10,
+//!   "fleet": { "capacity": 10, "shift_limit": 480, "max_trucks": 2 }
+//! }"#;
+//! let inst = read_scenario(text, "three.json").unwrap();
+//! assert_eq!(inst.tasks().len(), 2);
+//! assert_eq!(inst.depot(), 0);
+//! assert_eq!(inst.fleet().max_vehicles, Some(2));
+//! // Writing and reading again gives the same instance.
+//! let again = read_scenario(&write_scenario(&inst), "again.json").unwrap();
+//! assert_eq!(again, inst);
+//! ```
+//!
+//! Errors name the file and a line: for JSON syntax and wrong-type errors
+//! the line (and, in the message, the column) reported by serde_json; for
+//! errors in the meaning (unknown or duplicate junction id, negative cost,
+//! a demand over the capacity, a required street that cannot be reached
+//! from the yard and back) the JSON path, e.g. `streets[12].to`, in a
+//! [`ParseProblem::AtPath`], and the line where that value starts.
+
+use std::collections::HashMap;
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+use super::MAX_NUMBER;
+use crate::error::{Error, ParseProblem, Result};
+use crate::model::{
+    Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection, ServiceSpec,
+};
+
+/// The value of the `format` field.
+pub const FORMAT_TAG: &str = "arcwright-scenario";
+/// The version written and read.
+pub const VERSION: u32 = 1;
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FileRec {
+    format: String,
+    version: u32,
+    #[serde(default)]
+    name: String,
+    junctions: Vec<JunctionRec>,
+    streets: Vec<StreetRec>,
+    yard: u64,
+    fleet: FleetRec,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct JunctionRec {
+    id: u64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    x: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    y: Option<f64>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct StreetRec {
+    from: u64,
+    to: u64,
+    #[serde(default)]
+    one_way: bool,
+    cost: i64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    drive_time: Option<i64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    name: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    service: Option<ServiceRec>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct ServiceRec {
+    demand: i64,
+    cost: i64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    time: Option<i64>,
+    #[serde(default)]
+    directions: Directions,
+}
+
+#[derive(Serialize, Deserialize, Default, Clone, Copy)]
+#[serde(rename_all = "lowercase")]
+enum Directions {
+    #[default]
+    Either,
+    Forward,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FleetRec {
+    capacity: i64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    shift_limit: Option<i64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    max_trucks: Option<usize>,
+}
+
+/// One step of a JSON path.
+#[derive(Clone, Debug)]
+enum Seg {
+    Key(&'static str),
+    Index(usize),
+}
+
+fn path_string(path: &[Seg]) -> String {
+    let mut s = String::new();
+    for seg in path {
+        match seg {
+            Seg::Key(k) => {
+                if !s.is_empty() {
+                    s.push('.');
+                }
+                s.push_str(k);
+            }
+            Seg::Index(i) => s.push_str(&format!("[{i}]")),
+        }
+    }
+    s
+}
+
+/// Finds the line where the value at `path` starts, in text that serde_json
+/// has already accepted. `None` when it cannot be found.
+fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
+    let mut sc = Scan {
+        b: text.as_bytes(),
+        i: 0,
+        line: 1,
+    };
+    sc.find(path)
+}
+
+struct Scan<'a> {
+    b: &'a [u8],
+    i: usize,
+    line: usize,
+}
+
+impl Scan<'_> {
+    fn peek(&self) -> Option<u8> {
+        self.b.get(self.i).copied()
+    }
+
+    fn ws(&mut self) {
+        while let Some(c) = self.peek() {
+            if !matches!(c, b' ' | b'\t' | b'\r' | b'\n') {
+                break;
+            }
+            if c == b'\n' {
+                self.line += 1;
+            }
+            self.i += 1;
+        }
+    }
+
+    /// Reads a string starting at `"`; returns its raw content.
+    fn string(&mut self) -> Option<&[u8]> {
+        if self.peek()? != b'"' {
+            return None;
+        }
+        self.i += 1;
+        let start = self.i;
+        loop {
+            match self.peek()? {
+                b'"' => {
+                    let s = &self.b[start..self.i];
+                    self.i += 1;
+                    return Some(s);
+                }
+                b'\\' => self.i += 2,
+                b'\n' => {
+                    self.line += 1;
+                    self.i += 1
+                }
+                _ => self.i += 1,
+            }
+        }
+    }
+
+    fn skip_value(&mut self) -> Option<()> {
+        self.ws();
+        match self.peek()? {
+            b'"' => {
+                self.string()?;
+            }
+            b'{' | b'[' => {
+                let mut depth = 0usize;
+                loop {
+                    match self.peek()? {
+                        b'"' => {
+                            self.string()?;
+                            continue;
+                        }
+                        b'{' | b'[' => depth += 1,
+                        b'}' | b']' => {
+                            depth -= 1;
+                            if depth == 0 {
+                                self.i += 1;
+                                return Some(());
+                            }
+                        }
+                        b'\n' => self.line += 1,
+                        _ => {}
+                    }
+                    self.i += 1;
+                }
+            }
+            _ => {
+                while let Some(c) = self.peek() {
+                    if matches!(c, b',' | b'}' | b']' | b' ' | b'\t' | b'\r' | b'\n') {
+                        break;
+                    }
+                    self.i += 1;
+                }
+            }
+        }
+        Some(())
+    }
+
+    fn find(&mut self, path: &[Seg]) -> Option<usize> {
+        self.ws();
+        let Some((first, rest)) = path.split_first() else {
+            return Some(self.line);
+        };
+        match (self.peek()?, first) {
+            (b'{', Seg::Key(k)) => {
+                self.i += 1;
+                loop {
+                    self.ws();
+                    if self.peek()? == b'}' {
+                        return None;
+                    }
+                    let key = self.string()?;
+                    let hit = key == k.as_bytes();
+                    self.ws();
+                    if self.peek()? != b':' {
+                        return None;
+                    }
+                    self.i += 1;
+                    if hit {
+                        return self.find(rest);
+                    }
+                    self.skip_value()?;
+                    self.ws();
+                    if self.peek()? != b',' {
+                        return None;
+                    }
+                    self.i += 1;
+                }
+            }
+            (b'[', Seg::Index(n)) => {
+                self.i += 1;
+                let mut idx = 0;
+                loop {
+                    self.ws();
+                    if self.peek()? == b']' {
+                        return None;
+                    }
+                    if idx == *n {
+                        return self.find(rest);
+                    }
+                    self.skip_value()?;
+                    self.ws();
+                    if self.peek()? != b',' {
+                        return None;
+                    }
+                    self.i += 1;
+                    idx += 1;
+                }
+            }
+            _ => None,
+        }
+    }
+}
+
+/// Reads a scenario file from disk.
+pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
+    let path = path.as_ref();
+    let name = path.display().to_string();
+    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
+        file: name.clone(),
+        source,
+    })?;
+    read_scenario(&text, &name)
+}
+
+/// Parses scenario JSON text. `file` names the source in errors.
+pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
+    // A byte-order mark, as some editors write, is not JSON: skip it.
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let rec: FileRec = serde_json::from_str(text).map_err(|e| {
+        let line = (e.line() > 0).then_some(e.line());
+        Error::parse(
+            file,
+            line,
+            ParseProblem::Json {
+                message: e.to_string(),
+            },
+        )
+    })?;
+    let at = |path: Vec<Seg>, problem: ParseProblem| {
+        Error::parse(
+            file,
+            line_of(text, &path),
+            ParseProblem::AtPath {
+                path: path_string(&path),
+                problem: Box::new(problem),
+            },
+        )
+    };
+    if rec.format != FORMAT_TAG {
+        return Err(at(
+            vec![Seg::Key("format")],
+            ParseProblem::Unexpected {
+                expected: "\"arcwright-scenario\"",
+                found: rec.format.clone(),
+            },
+        ));
+    }
+    if rec.version != VERSION {
+        return Err(at(
+            vec![Seg::Key("version")],
+            ParseProblem::Unexpected {
+                expected: "version 1",
+                found: rec.version.to_string(),
+            },
+        ));
+    }
+    let limit = |path: Vec<Seg>, what: &'static str, v: i64| -> Result<()> {
+        if v > MAX_NUMBER {
+            return Err(at(
+                path,
+                ParseProblem::TooLarge {
+                    what,
+                    value: v as u64,
+                    max: MAX_NUMBER as u64,
+                },
+            ));
+        }
+        Ok(())
+    };
+    let mut index: HashMap<u64, usize> = HashMap::with_capacity(rec.junctions.len());
+    let mut junctions = Vec::with_capacity(rec.junctions.len());
+    for (i, j) in rec.junctions.iter().enumerate() {
+        if let Some(&first) = index.get(&j.id) {
+            return Err(at(
+                vec![Seg::Key("junctions"), Seg::Index(i), Seg::Key("id")],
+                ParseProblem::DuplicateJunction { id: j.id, first },
+            ));
+        }
+        index.insert(j.id, i);
+        junctions.push(Junction {
+            id: j.id,
+            x: j.x,
+            y: j.y,
+        });
+    }
+    let lookup = |path: Vec<Seg>, id: u64| -> Result<usize> {
+        index
+            .get(&id)
+            .copied()
+            .ok_or_else(|| at(path, ParseProblem::UnknownJunction { id }))
+    };
+    let mut links = Vec::with_capacity(rec.streets.len());
+    for (i, s) in rec.streets.iter().enumerate() {
+        let p = |k: &'static str| vec![Seg::Key("streets"), Seg::Index(i), Seg::Key(k)];
+        let ps = |k: &'static str| {
+            vec![
+                Seg::Key("streets"),
+                Seg::Index(i),
+                Seg::Key("service"),
+                Seg::Key(k),
+            ]
+        };
+        let from = lookup(p("from"), s.from)?;
+        let to = lookup(p("to"), s.to)?;
+        limit(p("cost"), "cost", s.cost)?;
+        if let Some(t) = s.drive_time {
+            limit(p("drive_time"), "drive time", t)?;
+        }
+        let service = match &s.service {
+            None => None,
+            Some(sv) => {
+                limit(ps("demand"), "demand", sv.demand)?;
+                limit(ps("cost"), "service cost", sv.cost)?;
+                if let Some(t) = sv.time {
+                    limit(ps("time"), "service time", t)?;
+                }
+                Some(ServiceSpec {
+                    demand: sv.demand,
+                    cost: sv.cost,
+                    time: sv.time,
+                    direction: match sv.directions {
+                        Directions::Either => ServeDirection::Either,
+                        Directions::Forward => ServeDirection::Forward,
+                    },
+                })
+            }
+        };
+        links.push(Link {
+            from,
+            to,
+            oneway: s.one_way,
+            cost: s.cost,
+            time: s.drive_time,
+            service,
+            name: s.name.clone(),
+        });
+    }
+    let depot = lookup(vec![Seg::Key("yard")], rec.yard)?;
+    limit(
+        vec![Seg::Key("fleet"), Seg::Key("capacity")],
+        "capacity",
+        rec.fleet.capacity,
+    )?;
+    if let Some(t) = rec.fleet.shift_limit {
+        limit(
+            vec![Seg::Key("fleet"), Seg::Key("shift_limit")],
+            "shift limit",
+            t,
+        )?;
+        if t < 0 {
+            return Err(at(
+                vec![Seg::Key("fleet"), Seg::Key("shift_limit")],
+                ParseProblem::Negative {
+                    what: "shift limit",
+                    value: t,
+                },
+            ));
+        }
+    }
+    let fleet = Fleet {
+        capacity: rec.fleet.capacity,
+        shift_limit: rec.fleet.shift_limit,
+        max_vehicles: rec.fleet.max_trucks,
+    };
+    let network = Network { junctions, links };
+    Instance::new(rec.name, network, fleet, depot).map_err(|m| {
+        let path = model_error_path(&m);
+        at(path, ParseProblem::Model(m))
+    })
+}
+
+/// Where in the file a model error points.
+fn model_error_path(m: &ModelError) -> Vec<Seg> {
+    let street = |link: usize, rest: &[&'static str]| {
+        let mut p = vec![Seg::Key("streets"), Seg::Index(link)];
+        p.extend(rest.iter().map(|k| Seg::Key(k)));
+        p
+    };
+    match m {
+        ModelError::Negative { link, what, .. } => match *what {
+            "cost" => street(*link, &["cost"]),
+            "time" => street(*link, &["drive_time"]),
+            "service cost" => street(*link, &["service", "cost"]),
+            "service time" => street(*link, &["service", "time"]),
+            "demand" => street(*link, &["service", "demand"]),
+            _ => street(*link, &[]),
+        },
+        ModelError::DemandExceedsCapacity { link, .. } => street(*link, &["service", "demand"]),
+        ModelError::BadCapacity { .. } => vec![Seg::Key("fleet"), Seg::Key("capacity")],
+        ModelError::NoVehicles { .. } => vec![Seg::Key("fleet"), Seg::Key("max_trucks")],
+        ModelError::DepotOutOfRange { .. } => vec![Seg::Key("yard")],
+        other => match other.link() {
+            Some(l) => street(l, &[]),
+            None => Vec::new(),
+        },
+    }
+}
+
+/// Writes an instance as pretty-printed scenario JSON (readable by
+/// [`read_scenario`], giving an equal instance back as long as the junction
+/// ids are distinct and the coordinates finite).
+pub fn write_scenario(inst: &Instance) -> String {
+    let net = inst.network();
+    let id = |j: usize| net.junctions[j].id;
+    let finite = |v: Option<f64>| v.filter(|x| x.is_finite());
+    let rec = FileRec {
+        format: FORMAT_TAG.to_string(),
+        version: VERSION,
+        name: inst.name.clone(),
+        junctions: net
+            .junctions
+            .iter()
+            .map(|j| JunctionRec {
+                id: j.id,
+                x: finite(j.x),
+                y: finite(j.y),
+            })
+            .collect(),
+        streets: net
+            .links
+            .iter()
+            .map(|l| StreetRec {
+                from: id(l.from),
+                to: id(l.to),
+                one_way: l.oneway,
+                cost: l.cost,
+                drive_time: l.time,
+                name: l.name.clone(),
+                service: l.service.as_ref().map(|s| ServiceRec {
+                    demand: s.demand,
+                    cost: s.cost,
+                    time: s.time,
+                    directions: match s.direction {
+                        ServeDirection::Either => Directions::Either,
+                        ServeDirection::Forward => Directions::Forward,
+                    },
+                }),
+            })
+            .collect(),
+        yard: id(inst.depot()),
+        fleet: FleetRec {
+            capacity: inst.fleet().capacity as Cost,
+            shift_limit: inst.fleet().shift_limit,
+            max_trucks: inst.fleet().max_vehicles,
+        },
+    };
+    // Plain structs of integers, strings, booleans and finite floats always
+    // serialize; a failure here would be a bug in this function.
+    let mut s = serde_json::to_string_pretty(&rec).expect("scenario records always serialize");
+    s.push('\n');
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn finds_lines_of_paths() {
+        let text = "{\n \"a\": [1,\n {\"b\": \"x,]}\"},\n {\"b\":\n 2}\n ]\n}";
+        let p = [Seg::Key("a"), Seg::Index(2), Seg::Key("b")];
+        assert_eq!(line_of(text, &p), Some(5));
+        assert_eq!(path_string(&p), "a[2].b");
+        assert_eq!(line_of(text, &[Seg::Key("a"), Seg::Index(7)]), None);
+    }
+}

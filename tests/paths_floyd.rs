@@ -1,0 +1,131 @@
+//! Shortest paths against Floyd–Warshall written here, on random mixed graphs
+//! (one-way and two-way links, parallel links, loops, explicit drive times).
+//! Floyd–Warshall runs on (cost, time) pairs ordered lexicographically, the
+//! convention of `arcwright::paths`: least cost, ties broken by least time.
+
+#![allow(clippy::needless_range_loop)] // index loops read like the recurrence itself
+
+use arcwright::model::{Link, Network};
+use arcwright::paths::{Distances, UNREACHABLE};
+use rand::{Rng, SeedableRng};
+use rand_chacha::ChaCha8Rng;
+
+const INF: (i64, i64) = (i64::MAX, i64::MAX);
+
+fn random_network(rng: &mut ChaCha8Rng) -> Network {
+    let n = rng.gen_range(1..=12);
+    let m = rng.gen_range(0..=3 * n);
+    let mut net = Network::with_junctions(n);
+    for _ in 0..m {
+        let from = rng.gen_range(0..n);
+        let to = rng.gen_range(0..n);
+        // Small costs make ties (and so the time tie-break) frequent.
+        let cost = rng.gen_range(0..=6);
+        let time = if rng.gen_bool(0.6) {
+            Some(rng.gen_range(0..=9))
+        } else {
+            None
+        };
+        net.add_link(Link {
+            from,
+            to,
+            oneway: rng.gen_bool(0.5),
+            cost,
+            time,
+            service: None,
+            name: None,
+        });
+    }
+    net
+}
+
+fn floyd(net: &Network, with_times: bool) -> Vec<Vec<(i64, i64)>> {
+    let n = net.junctions.len();
+    let mut d = vec![vec![INF; n]; n];
+    for (v, row) in d.iter_mut().enumerate() {
+        row[v] = (0, 0);
+    }
+    for l in &net.links {
+        let t = if with_times {
+            l.time.unwrap_or(l.cost)
+        } else {
+            l.cost
+        };
+        let w = (l.cost, t);
+        let mut put = |a: usize, b: usize| {
+            if w < d[a][b] {
+                d[a][b] = w;
+            }
+        };
+        put(l.from, l.to);
+        if !l.oneway {
+            put(l.to, l.from);
+        }
+    }
+    for k in 0..n {
+        for i in 0..n {
+            if d[i][k] == INF {
+                continue;
+            }
+            for j in 0..n {
+                if d[k][j] == INF {
+                    continue;
+                }
+                let via = (d[i][k].0 + d[k][j].0, d[i][k].1 + d[k][j].1);
+                if via < d[i][j] {
+                    d[i][j] = via;
+                }
+            }
+        }
+    }
+    d
+}
+
+#[test]
+fn distances_and_paths_agree_with_floyd_warshall() {
+    let mut rng = ChaCha8Rng::seed_from_u64(20261202);
+    let mut pairs = 0;
+    let mut reachable = 0;
+    for _ in 0..400 {
+        let net = random_network(&mut rng);
+        let n = net.len();
+        let with_times = rng.gen_bool(0.7);
+        let fw = floyd(&net, with_times);
+        let dist = Distances::between(&net, (0..n).collect(), with_times).unwrap();
+        for u in 0..n {
+            for v in 0..n {
+                pairs += 1;
+                let (fc, ft) = fw[u][v];
+                let path = dist.path(u, v);
+                if fc == i64::MAX {
+                    assert_eq!(dist.cost(u, v), UNREACHABLE, "{u}->{v} in {net:?}");
+                    assert!(path.is_none());
+                    continue;
+                }
+                reachable += 1;
+                assert_eq!(dist.cost(u, v), fc, "cost {u}->{v} in {net:?}");
+                assert_eq!(dist.time(u, v), ft, "time {u}->{v} in {net:?}");
+                let path = path.expect("a path where Floyd–Warshall finds one");
+                let mut at = u;
+                let (mut c, mut t) = (0, 0);
+                for h in &path {
+                    let l = &net.links[h.link];
+                    assert_eq!(h.from, at, "hops connect");
+                    let forward = (h.from, h.to) == (l.from, l.to);
+                    let backward = (h.from, h.to) == (l.to, l.from);
+                    assert!(forward || (backward && !l.oneway), "hop drivable: {h:?}");
+                    c += l.cost;
+                    t += l.time.unwrap_or(l.cost);
+                    at = h.to;
+                }
+                assert_eq!(at, v);
+                assert_eq!(c, fc, "path cost {u}->{v}");
+                if with_times {
+                    assert_eq!(t, ft, "path time {u}->{v}");
+                }
+            }
+        }
+    }
+    println!("{pairs} pairs compared, {reachable} reachable");
+    assert!(reachable > pairs / 3);
+}
