@@ -393,6 +393,11 @@ impl<'a> Solver<'a> {
             .collect();
         let plan = Plan::from_visits(inst, &dist, visits);
         debug_assert_eq!(plan.cost, best.0, "matrix and plan costs disagree");
+        debug_assert!(
+            crate::check::check_plan(inst, &plan).is_ok(),
+            "the solver's plan fails the checker: {:?}",
+            crate::check::check_plan(inst, &plan)
+        );
         Ok(self.finish(plan, lb, stats0(iterations, best.2)))
     }
 
