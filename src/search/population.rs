@@ -90,8 +90,8 @@ pub struct Params {
 impl Default for Params {
     fn default() -> Self {
         Params {
-            mu: 25,
-            lambda: 40,
+            mu: 12,
+            lambda: 20,
             elite: 4,
             close: 5,
         }
