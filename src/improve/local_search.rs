@@ -54,6 +54,17 @@ pub fn neighbour_lists(m: &ArcMatrix, k: usize) -> Vec<Vec<u32>> {
         .collect()
 }
 
+/// Cheapest deadhead cost of putting stretch `i0..=i1` of `rd` between arcs
+/// `l` and `r`, in its better orientation (internal deadheads included;
+/// reversal allowed or not, this is a lower bound).
+#[inline(always)]
+fn ins_at(m: &ArcMatrix, l: u32, r: u32, rd: &RouteData, i0: usize, i1: usize) -> i64 {
+    let (f, t) = (rd.arcs[i0], rd.arcs[i1]);
+    let fwd = m.d(l, f) + (rd.pre[i1].pd - rd.pre[i0].pd) + m.d(t, r);
+    let rev = m.d(l, t ^ 1) + (rd.pre[i1].rpd - rd.pre[i0].rpd) + m.d(f ^ 1, r);
+    fwd.min(rev)
+}
+
 #[derive(Clone, Copy, Debug)]
 struct Seg {
     first: u32,
@@ -575,6 +586,33 @@ impl<'m> LocalSearch<'m> {
             return false;
         }
         let old = ru_d.cost + rv_d.cost;
+        if !self.m.timed() {
+            // Lower bound on the change (exact without reversals): service
+            // costs only move between routes, so only the deadheads at the
+            // cut points, the internal deadheads (best orientation) and the
+            // load penalties change.
+            let m = self.m;
+            let (ua, va) = (&ru_d.arcs, &rv_d.arcs);
+            let (ul, ur) = (ua[a0 - 1], ua[a1 + 1]);
+            let (vl, vr) = (va[b0 - 1], va[b1 + 1]);
+            let rem_a = m.d(ul, ua[a0]) + (ru_d.pre[a1].pd - ru_d.pre[a0].pd) + m.d(ua[a1], ur);
+            let ins_a = ins_at(m, vl, vr, ru_d, a0, a1);
+            let (rem_b, ins_b) = if l2 == 0 {
+                (m.d(vl, vr), m.d(ul, ur))
+            } else {
+                (
+                    m.d(vl, va[b0]) + (rv_d.pre[b1].pd - rv_d.pre[b0].pd) + m.d(va[b1], vr),
+                    ins_at(m, ul, ur, rv_d, b0, b1),
+                )
+            };
+            let pen = |load: i64| self.pen_load * (load - self.m.capacity).max(0);
+            let dpen = pen(ru_d.load - load_a + load_b) + pen(rv_d.load - load_b + load_a)
+                - pen(ru_d.load)
+                - pen(rv_d.load);
+            if (ins_a + ins_b - rem_a - rem_b) * SCALE + dpen >= 0 {
+                return false;
+            }
+        }
         let mut best_v = INFEASIBLE;
         let mut pv_best = [piece(0, 0, 0, false); 3];
         for rev in [false, true] {
@@ -684,6 +722,20 @@ impl<'m> LocalSearch<'m> {
             return false;
         }
         let old = self.routes[r].cost;
+        if !self.m.timed() {
+            // Lower bound on the change: same load, only cut deadheads change.
+            let m = self.m;
+            let rd = &self.routes[r];
+            let a = &rd.arcs;
+            let rem = m.d(a[a0 - 1], a[a0])
+                + (rd.pre[a1].pd - rd.pre[a0].pd)
+                + m.d(a[a1], a[a1 + 1])
+                + m.d(a[p], a[p + 1]);
+            let add = m.d(a[a0 - 1], a[a1 + 1]) + ins_at(m, a[p], a[p + 1], rd, a0, a1);
+            if add >= rem {
+                return false;
+            }
+        }
         let mut best = INFEASIBLE;
         let mut bp = [piece(0, 0, 0, false); 4];
         for rev in [false, true] {
