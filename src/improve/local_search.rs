@@ -676,8 +676,22 @@ impl<'m> LocalSearch<'m> {
         };
         let (ud, vd) = (&self.routes[ru], &self.routes[rv]);
         let (uh, vh) = (ud.pre[i].pl, vd.pre[j - 1].pl);
+        let m = self.m;
+        let pen = |load: i64| self.pen_load * (load - m.capacity).max(0);
+        let old_pen = pen(ud.load) + pen(vd.load);
+        let (ua, va) = (&ud.arcs, &vd.arcs);
+        let old_dead = ud.pre[lu - 1].pd + vd.pre[lv - 1].pd;
+        // Exact change without times: service costs only move between routes.
+        let gain_a = if m.timed() {
+            -1
+        } else {
+            let nu = ud.pre[i].pd + m.d(ua[i], va[j]) + vd.pre[lv - 1].pd - vd.pre[j].pd;
+            let nv =
+                vd.pre[j - 1].pd + m.d(va[j - 1], ua[i + 1]) + ud.pre[lu - 1].pd - ud.pre[i + 1].pd;
+            (nu + nv - old_dead) * SCALE + pen(uh + vd.load - vh) + pen(vh + ud.load - uh) - old_pen
+        };
         // (a) U[..=i] + V[j..], V[..j) + U[i+1..]
-        if uh + vd.load - vh <= cap && vh + ud.load - uh <= cap {
+        if gain_a < 0 && uh + vd.load - vh <= cap && vh + ud.load - uh <= cap {
             let pa_u = [piece(ru, 0, i, false), piece(rv, j, lv - 1, false)];
             let pa_v = [piece(rv, 0, j - 1, false), piece(ru, i + 1, lu - 1, false)];
             let ca = self.eval(&pa_u);
@@ -694,6 +708,20 @@ impl<'m> LocalSearch<'m> {
         let vh = vd.pre[j].pl;
         if uh + vh > cap || ud.load - uh + vd.load - vh > cap {
             return false;
+        }
+        if !m.timed() {
+            let (ua, va) = (&ud.arcs, &vd.arcs);
+            let nu = ud.pre[i].pd + m.d(ua[i], va[j] ^ 1) + vd.pre[j].rpd;
+            let nv = ud.pre[lu - 1].rpd - ud.pre[i + 1].rpd
+                + m.d(ua[i + 1] ^ 1, va[j + 1])
+                + vd.pre[lv - 1].pd
+                - vd.pre[j + 1].pd;
+            let pen = |load: i64| self.pen_load * (load - m.capacity).max(0);
+            let d = (nu + nv - old_dead) * SCALE + pen(uh + vh) + pen(ud.load - uh + vd.load - vh)
+                - old_pen;
+            if d >= 0 {
+                return false;
+            }
         }
         let pb_u = [piece(ru, 0, i, false), piece(rv, 0, j, true)];
         let pb_v = [
