@@ -193,7 +193,7 @@ impl<'a> Solver<'a> {
             target: None,
             progress: None,
             stop: None,
-            epoch: 100,
+            epoch: 500,
         }
     }
 
@@ -240,7 +240,7 @@ impl<'a> Solver<'a> {
         self
     }
 
-    /// Offspring per island between two exchanges (default 100).
+    /// Offspring per island between two exchanges (default 500).
     pub fn epoch(mut self, n: u64) -> Self {
         self.epoch = n.max(1);
         self
