@@ -320,3 +320,35 @@ fn the_example_program_runs() {
     let out = Command::new(&exe).arg("--bogus").output().unwrap();
     assert_eq!(out.status.code(), Some(2));
 }
+
+#[test]
+fn a_plan_failing_the_checker_is_refused() {
+    let inst = app::load_scenario(&demo_path(), &FleetOverrides::default()).unwrap();
+    let dist = Distances::new(&inst).unwrap();
+    // Every task on its own route: valid except that it needs far more
+    // trucks than the fleet has.
+    let routes: Vec<Vec<Visit>> = (0..inst.tasks().len())
+        .map(|t| vec![Visit::new(t, arcwright::model::Dir::Forward)])
+        .collect();
+    let plan = Plan::from_visits(&inst, &dist, routes);
+    match app::render(&inst, &dist, &plan, &Default::default()) {
+        Err(app::AppError::Refused(v)) => {
+            assert!(
+                v.iter()
+                    .any(|x| x.to_string().contains("trucks") || x.to_string().contains("routes")),
+                "{v:?}"
+            );
+        }
+        other => panic!("not refused: {:?}", other.map(|f| f.len())),
+    }
+    // A plan with a misreported cost is refused too.
+    let run_dir = out_dir("planner-refuse");
+    let run = app::run_plan(&options(demo_path(), &run_dir), Hooks::default()).unwrap();
+    let mut bad = run.solution.plan.clone();
+    bad.routes[0].cost -= 1;
+    bad.cost -= 1;
+    assert!(matches!(
+        app::render(&run.instance, &dist, &bad, &Default::default()),
+        Err(app::AppError::Refused(_))
+    ));
+}
