@@ -25,7 +25,7 @@ fn shared(rel: &str) -> Option<PathBuf> {
     if p.exists() {
         Some(p)
     } else {
-        println!("skipping: {} is absent", p.display());
+        println!("SKIPPED: {} is absent", p.display());
         None
     }
 }
@@ -247,12 +247,21 @@ fn bad_input_is_a_clear_error() {
 fn the_example_program_runs() {
     let cargo = env!("CARGO");
     let root = env!("CARGO_MANIFEST_DIR");
+    // Build the example with the profile this test was built with, so that
+    // `cargo test` and `cargo test --release` reuse what they compiled.
+    let me = std::env::current_exe().unwrap();
+    let profile_dir = me.parent().unwrap().parent().unwrap();
+    let profile = if profile_dir.file_name().is_some_and(|n| n == "release") {
+        "release"
+    } else {
+        "test"
+    };
     let status = Command::new(cargo)
         .args([
             "build",
             "--quiet",
             "--profile",
-            "test",
+            profile,
             "--example",
             "planner",
         ])
@@ -260,21 +269,10 @@ fn the_example_program_runs() {
         .status()
         .unwrap();
     assert!(status.success());
-    let exe = Path::new(root)
-        .join("target/debug/examples/planner")
+    let exe = profile_dir
+        .join("examples/planner")
         .with_extension(std::env::consts::EXE_EXTENSION);
-    let exe = if exe.exists() {
-        exe
-    } else {
-        // A custom target directory: the example sits beside our deps folder.
-        let me = std::env::current_exe().unwrap();
-        me.parent()
-            .unwrap()
-            .parent()
-            .unwrap()
-            .join("examples/planner")
-            .with_extension(std::env::consts::EXE_EXTENSION)
-    };
+    assert!(exe.exists(), "{} not built", exe.display());
     let dir = out_dir("planner-process");
     let out = Command::new(&exe)
         .args(["--iterations", "40", "--workers", "1", "--out"])
@@ -351,4 +349,28 @@ fn a_plan_failing_the_checker_is_refused() {
         app::render(&run.instance, &dist, &bad, &Default::default()),
         Err(app::AppError::Refused(_))
     ));
+}
+
+/// The library snippet of the README, as written there.
+#[test]
+fn readme_library_snippet_runs() {
+    use arcwright::demo::{town, TownSpec};
+    use arcwright::{paths::Distances, report, Solver};
+
+    let inst = town(&TownSpec::new(7, 4)).unwrap();
+    let solution = Solver::new(&inst)
+        .seed(1)
+        .workers(1)
+        .max_iterations(50)
+        .solve()
+        .unwrap();
+    assert!(check_plan(&inst, &solution.plan).is_ok());
+    let dist = Distances::new(&inst).unwrap();
+    let sheets = report::sheets::markdown(&inst, &dist, &solution.plan);
+    let map = report::svg::map(&inst, &dist, &solution.plan);
+    assert!(sheets.contains("## Truck 1"));
+    assert!(map.is_some());
+    let readme =
+        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("README.md")).unwrap();
+    assert!(readme.contains("Solver::new(&inst).seed(1).workers(1).max_iterations(50).solve()"));
 }

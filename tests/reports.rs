@@ -55,7 +55,7 @@ fn shared(rel: &str) -> Option<PathBuf> {
     if p.exists() {
         Some(p)
     } else {
-        println!("skipping: {} is absent", p.display());
+        println!("SKIPPED: {} is absent", p.display());
         None
     }
 }
