@@ -125,6 +125,9 @@ fn time_each(inst: &arcwright::model::Instance, dist: &Distances) -> Timings {
     let _ = depot_cut_bound(inst);
     out.push((DEPOT_CUTS, t.elapsed()));
     let t = Instant::now();
+    let _ = blended_bound(inst, &DenseBlossom);
+    out.push((BLENDED, t.elapsed()));
+    let t = Instant::now();
     let _ = all_bounds(inst, dist);
     out.push(("all_bounds", t.elapsed()));
     out
