@@ -11,8 +11,9 @@
 //! Writes `DIR_OUT/results.csv`, `DIR_OUT/results.md` (per-instance table and
 //! per-set summary) and `DIR_OUT/plans/NAME.json` (each plan, in the schema of
 //! `arcwright::io::plan_json`). Every plan is re-read from its JSON and
-//! verified (each task served once, loads within capacity, costs recomputed)
-//! before it is counted.
+//! verified by `arcwright::check::check_plan` and by a second local check
+//! (each task served once, loads within capacity, costs recomputed) before it
+//! is counted.
 
 use std::collections::HashMap;
 use std::fmt::Write as _;
@@ -154,6 +155,9 @@ fn main() {
             std::fs::write(&jpath, &json).expect("write plan");
             let back = read_plan(&json, &jpath.display().to_string(), inst)
                 .unwrap_or_else(|e| panic!("{stem}: plan does not read back: {e}"));
+            if let Err(v) = arcwright::check::check_plan(inst, &back) {
+                panic!("{stem}: the checker rejects the plan: {v:?}");
+            }
             verify(inst, &back);
             assert_eq!(back.cost, sol.cost, "{stem}: cost changed on read-back");
             if let Some(r) = r {

@@ -40,10 +40,14 @@ fn reference(dir: &std::path::Path) -> HashMap<String, (i64, i64, bool)> {
         .collect()
 }
 
-/// Independent verification from the instance alone: every task served once
+/// Verification by the crate's independent checker, and again here from the
+/// instance alone: every task served once
 /// in an allowed direction, loads within capacity, route costs and times
 /// recomputed by walking the shortest paths, shift limit respected.
 fn verify(inst: &Instance, plan: &Plan) {
+    if let Err(v) = arcwright::check::check_plan(inst, plan) {
+        panic!("{}: the checker rejects the plan: {v:?}", inst.name);
+    }
     let dist = Distances::new(inst).unwrap();
     let mut seen = vec![0; inst.tasks().len()];
     let mut total = 0;

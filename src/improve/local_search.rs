@@ -566,9 +566,12 @@ impl<'m> LocalSearch<'m> {
         } else {
             0
         };
-        if self.pen_load == 0
-            && (ru_d.load - load_a + load_b > cap || rv_d.load - load_b + load_a > cap)
-        {
+        let cap = if self.pen_load == 0 {
+            cap
+        } else {
+            cap + cap / 2
+        };
+        if ru_d.load - load_a + load_b > cap || rv_d.load - load_b + load_a > cap {
             return false;
         }
         let old = ru_d.cost + rv_d.cost;
@@ -627,18 +630,33 @@ impl<'m> LocalSearch<'m> {
         let lu = self.routes[ru].arcs.len();
         let lv = self.routes[rv].arcs.len();
         let old = self.routes[ru].cost + self.routes[rv].cost;
+        let cap = self.m.capacity;
+        let cap = if self.pen_load == 0 {
+            cap
+        } else {
+            cap + cap / 2
+        };
+        let (ud, vd) = (&self.routes[ru], &self.routes[rv]);
+        let (uh, vh) = (ud.pre[i].pl, vd.pre[j - 1].pl);
         // (a) U[..=i] + V[j..], V[..j) + U[i+1..]
-        let pa_u = [piece(ru, 0, i, false), piece(rv, j, lv - 1, false)];
-        let pa_v = [piece(rv, 0, j - 1, false), piece(ru, i + 1, lu - 1, false)];
-        let ca = self.eval(&pa_u);
-        if ca < INFEASIBLE {
-            let cb = self.eval(&pa_v);
-            if cb < INFEASIBLE && ca + cb < old {
-                self.apply(&[(ru, &pa_u), (rv, &pa_v)]);
-                return true;
+        if uh + vd.load - vh <= cap && vh + ud.load - uh <= cap {
+            let pa_u = [piece(ru, 0, i, false), piece(rv, j, lv - 1, false)];
+            let pa_v = [piece(rv, 0, j - 1, false), piece(ru, i + 1, lu - 1, false)];
+            let ca = self.eval(&pa_u);
+            if ca < INFEASIBLE {
+                let cb = self.eval(&pa_v);
+                if cb < INFEASIBLE && ca + cb < old {
+                    self.apply(&[(ru, &pa_u), (rv, &pa_v)]);
+                    return true;
+                }
             }
         }
         // (b) U[..=i] + rev V[..=j], rev U[i+1..] + V[j+1..]
+        let (ud, vd) = (&self.routes[ru], &self.routes[rv]);
+        let vh = vd.pre[j].pl;
+        if uh + vh > cap || ud.load - uh + vd.load - vh > cap {
+            return false;
+        }
         let pb_u = [piece(ru, 0, i, false), piece(rv, 0, j, true)];
         let pb_v = [
             piece(ru, i + 1, lu - 1, true),

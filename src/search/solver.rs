@@ -393,6 +393,11 @@ impl<'a> Solver<'a> {
             .collect();
         let plan = Plan::from_visits(inst, &dist, visits);
         debug_assert_eq!(plan.cost, best.0, "matrix and plan costs disagree");
+        debug_assert!(
+            crate::check::check_plan(inst, &plan).is_ok(),
+            "the solver's plan fails the checker: {:?}",
+            crate::check::check_plan(inst, &plan)
+        );
         Ok(self.finish(plan, lb, stats0(iterations, best.2)))
     }
 
@@ -434,7 +439,7 @@ impl Ctx<'_> {
 /// Search parameters of one island.
 const RESTART_AFTER: u64 = 3000;
 const MS_RATE: f64 = 0.2;
-const TARGET_FEASIBLE: f64 = 0.2;
+const TARGET_FEASIBLE: f64 = 0.5;
 
 struct Island {
     rng: ChaCha12Rng,

@@ -1,0 +1,112 @@
+//! Plan files: round trip and typed errors, on gdb1 (Golden, DeArmon &
+//! Baker 1983, from ../shared/instances).
+
+use std::path::PathBuf;
+
+use arcwright::error::ParseProblem;
+use arcwright::io::{read_dat_file, read_plan, write_plan};
+use arcwright::Solver;
+
+fn gdb1() -> Option<arcwright::model::Instance> {
+    let p = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/instances/gdb/gdb1.dat");
+    if !p.exists() {
+        eprintln!("SKIPPED: {} not found", p.display());
+        return None;
+    }
+    Some(read_dat_file(p).unwrap().instance)
+}
+
+#[test]
+fn round_trip_keeps_the_plan_and_uses_file_vertex_numbers() {
+    let Some(inst) = gdb1() else { return };
+    let sol = Solver::new(&inst).max_iterations(50).solve().unwrap();
+    let text = write_plan(&inst, &sol.plan, Some(sol.lower_bound.value));
+    let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+    assert_eq!(v["instance"], "gdb1");
+    assert_eq!(v["cost"], sol.cost);
+    // Services name the file's 1-based vertices: the first is on a link of
+    // gdb1 whose ends appear in the file as written.
+    let s0 = &v["routes"][0]["services"][0];
+    let link = &inst.network().links[s0["link"].as_u64().unwrap() as usize];
+    let ids = [
+        inst.network().junctions[link.from].id,
+        inst.network().junctions[link.to].id,
+    ];
+    let pair = [s0["from"].as_u64().unwrap(), s0["to"].as_u64().unwrap()];
+    assert!(pair == ids || pair == [ids[1], ids[0]]);
+    let back = read_plan(&text, "plan.json", &inst).unwrap();
+    assert_eq!(back, sol.plan);
+    arcwright::check::check_plan(&inst, &back).unwrap();
+}
+
+#[test]
+fn errors_name_the_file_the_line_and_the_problem() {
+    let Some(inst) = gdb1() else { return };
+    let sol = Solver::new(&inst).max_iterations(20).solve().unwrap();
+    let text = write_plan(&inst, &sol.plan, None);
+
+    // Syntax error: line and column from the JSON parser.
+    let broken = text.replacen("\"routes\": [", "\"routes\": [[", 1);
+    let e = read_plan(&broken, "bad.json", &inst).unwrap_err();
+    assert_eq!(e.location().unwrap().file, "bad.json");
+    assert!(e.location().unwrap().line.is_some());
+    assert!(matches!(e.problem(), Some(ParseProblem::Json { .. })));
+
+    // A (from, to) pair that is not the required link it names. gdb1 has no
+    // vertex 99; the error points at the line of that service.
+    let first = text.lines().position(|l| l.contains("\"link\"")).unwrap() + 1;
+    let wrong = text.replacen("{\"from\": ", "{\"from\": 99, \"was\": ", 1);
+    let e = read_plan(&wrong, "wrong.json", &inst).unwrap_err();
+    assert!(
+        matches!(
+            e.problem(),
+            Some(ParseProblem::NotARequiredLink {
+                route: 0,
+                position: 0,
+                from: 99,
+                ..
+            })
+        ),
+        "{e}"
+    );
+    assert_eq!(e.location().unwrap().line, Some(first));
+    assert!(
+        e.to_string().starts_with(&format!("wrong.json:{first}:")),
+        "{e}"
+    );
+
+    // Wrong instance name.
+    let other = text.replacen("\"gdb1\"", "\"gdb2\"", 1);
+    let e = read_plan(&other, "other.json", &inst).unwrap_err();
+    assert!(matches!(
+        e.problem(),
+        Some(ParseProblem::WrongInstance { .. })
+    ));
+
+    // Stated cost that does not match.
+    let cost = format!("\"cost\": {},", sol.cost);
+    let lied = text.replacen(&cost, &format!("\"cost\": {},", sol.cost - 1), 1);
+    let e = read_plan(&lied, "lied.json", &inst).unwrap_err();
+    assert!(
+        matches!(e.problem(), Some(ParseProblem::Mismatch { .. })),
+        "{e}"
+    );
+}
+
+#[test]
+fn a_link_served_twice_is_refused() {
+    let Some(inst) = gdb1() else { return };
+    let sol = Solver::new(&inst).max_iterations(20).solve().unwrap();
+    let text = write_plan(&inst, &sol.plan, None);
+    // Duplicate the first service line of the first route.
+    let lines: Vec<&str> = text.lines().collect();
+    let k = lines.iter().position(|l| l.contains("\"link\"")).unwrap();
+    let mut dup: Vec<String> = lines.iter().map(|s| s.to_string()).collect();
+    let line = format!("{},", lines[k].trim_end_matches(','));
+    dup.insert(k, line);
+    let e = read_plan(&dup.join("\n"), "dup.json", &inst).unwrap_err();
+    assert!(
+        matches!(e.problem(), Some(ParseProblem::ServedTwice { .. })),
+        "{e}"
+    );
+}
