@@ -55,7 +55,7 @@ fn shared(rel: &str) -> Option<PathBuf> {
     if p.exists() {
         Some(p)
     } else {
-        println!("skipping: {} is absent", p.display());
+        println!("SKIPPED: {} is absent", p.display());
         None
     }
 }
@@ -260,7 +260,7 @@ fn awkward_names_survive_csv_markdown_and_svg() {
     let csv = sheets::route_csv(&inst, &dist, &plan, 0);
     let rows = csv_rows(&csv);
     assert!(rows.iter().any(|r| r[1] == name));
-    assert!(rows.iter().any(|r| r[1] == "link 2"));
+    assert!(rows.iter().any(|r| r[1] == "link 1"));
     assert!(rows[1..].iter().all(|r| r.len() == rows[0].len()));
     let svg_text = svg::map(&inst, &dist, &plan).unwrap();
     let doc = roxmltree::Document::parse(&svg_text).unwrap();

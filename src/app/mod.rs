@@ -13,6 +13,12 @@ use std::time::Duration;
 use crate::model::{Cost, Fleet, Instance, ModelError};
 use crate::report::OutputFile;
 
+mod run;
+pub use run::{
+    load_scenario, render, resolve_scenario, run_check, run_plan, verify, CheckRun, Hooks, PlanRun,
+    ProgressHook,
+};
+
 /// The scenario planned when the program is given no input file.
 pub const DEFAULT_SCENARIO: &str = "instances/demo-town.json";
 
@@ -29,8 +35,10 @@ SCENARIO is our JSON scenario file or a research-format .dat file
 (default: instances/demo-town.json).
 
 OPTIONS:
-    --time-limit SECS    stop searching after SECS seconds (default 10)
-    --iterations N       stop searching after N iterations
+    --time-limit SECS    stop searching after SECS seconds (default 10 when
+                         no --iterations is given)
+    --iterations N       stop searching after N iterations (with no time limit
+                         the run then depends only on --seed and --workers)
     --seed N             random seed (default 1); same seed and workers, same plan
     --workers N          search threads (default: the cores available, at most 8)
     --out DIR            folder for the plan and reports (default out/)
@@ -80,8 +88,8 @@ impl FleetOverrides {
 pub struct PlanOptions {
     /// Scenario file; `None` plans the demo town.
     pub input: Option<PathBuf>,
-    /// Search time limit.
-    pub time_limit: Duration,
+    /// Search time limit; see [`PlanOptions::effective_time_limit`].
+    pub time_limit: Option<Duration>,
     /// Iteration limit.
     pub iterations: Option<u64>,
     /// Random seed.
@@ -103,11 +111,27 @@ pub fn default_workers() -> usize {
         .clamp(1, 8)
 }
 
+/// Time limit of a run given neither a time nor an iteration limit.
+pub const DEFAULT_TIME_LIMIT: Duration = Duration::from_secs(10);
+
+impl PlanOptions {
+    /// The time limit in force: the one given, or [`DEFAULT_TIME_LIMIT`] when
+    /// neither a time nor an iteration limit was given (an iteration limit
+    /// alone gives a run that depends only on the seed and the workers).
+    pub fn effective_time_limit(&self) -> Option<Duration> {
+        match (self.time_limit, self.iterations) {
+            (Some(t), _) => Some(t),
+            (None, None) => Some(DEFAULT_TIME_LIMIT),
+            (None, Some(_)) => None,
+        }
+    }
+}
+
 impl Default for PlanOptions {
     fn default() -> Self {
         PlanOptions {
             input: None,
-            time_limit: Duration::from_secs(10),
+            time_limit: None,
             iterations: None,
             seed: 1,
             workers: default_workers(),
@@ -238,7 +262,7 @@ where
                         "--time-limit must be a positive number of seconds, found `{value}`"
                     )));
                 }
-                opts.time_limit = Duration::from_secs_f64(secs);
+                opts.time_limit = Some(Duration::from_secs_f64(secs));
             }
             "--iterations" => {
                 let n: u64 = number(name, &value)?;
@@ -313,6 +337,12 @@ pub enum AppError {
     Fleet(ModelError),
     /// Shortest paths could not be computed.
     Distances(crate::paths::DistanceError),
+    /// The solver found no plan.
+    Solve(crate::search::SolveError),
+    /// The plan failed the independent checker and was not written.
+    Refused(Vec<crate::check::Violation>),
+    /// Something that should not happen (a bug): named, not hidden.
+    Internal(String),
     /// An output file could not be written.
     Write {
         /// The file.
@@ -328,6 +358,13 @@ impl fmt::Display for AppError {
             AppError::Input(e) => write!(f, "{e}"),
             AppError::Fleet(e) => write!(f, "the fleet options do not fit the scenario: {e}"),
             AppError::Distances(e) => write!(f, "{e}"),
+            AppError::Solve(e) => write!(f, "no plan: {e}"),
+            AppError::Refused(v) => write!(
+                f,
+                "the plan failed the independent checker ({} problem(s)); nothing was written",
+                v.len()
+            ),
+            AppError::Internal(m) => write!(f, "internal error: {m}"),
             AppError::Write { path, source } => {
                 write!(f, "cannot write {}: {source}", path.display())
             }
@@ -368,7 +405,10 @@ mod tests {
 
     #[test]
     fn no_arguments_plan_the_demo_with_defaults() {
-        assert_eq!(plan(&[]), PlanOptions::default());
+        let o = plan(&[]);
+        assert_eq!(o, PlanOptions::default());
+        assert_eq!(o.effective_time_limit(), Some(DEFAULT_TIME_LIMIT));
+        assert_eq!(plan(&["--iterations", "5"]).effective_time_limit(), None);
     }
 
     #[test]
@@ -392,7 +432,8 @@ mod tests {
             "--quiet",
         ]);
         assert_eq!(o.input, Some(PathBuf::from("gdb1.dat")));
-        assert_eq!(o.time_limit, Duration::from_millis(2500));
+        assert_eq!(o.time_limit, Some(Duration::from_millis(2500)));
+        assert_eq!(o.effective_time_limit(), o.time_limit);
         assert_eq!(o.iterations, Some(300));
         assert_eq!((o.seed, o.workers), (9, 2));
         assert_eq!(

@@ -1,8 +1,11 @@
 //! Capacity-aware bounds: they use the least number of vehicles a plan needs.
 
-use super::{relaxed_rows, required_degrees};
+use super::required_degrees;
 use crate::model::{Cost, Instance};
+use crate::postman::chinese::distance_rows;
+use crate::postman::graph::FAR;
 use crate::postman::matching::matching_cost;
+use crate::postman::Multigraph;
 use crate::postman::{PerfectMatching, PostmanError};
 
 /// Least number of routes any plan needs: `ceil(total demand / capacity)`,
@@ -61,6 +64,17 @@ pub fn depot_degree_bound(
     inst: &Instance,
     matcher: &dyn PerfectMatching,
 ) -> Result<Cost, PostmanError> {
+    let g = Multigraph::from_network(inst.network());
+    Ok(inst.total_service_cost() + depot_degree_matching(inst, &g, matcher)?)
+}
+
+/// The deadhead part of [`depot_degree_bound`] with the link costs of `g`
+/// (any non-negative costs; `g` has the network's links in order).
+fn depot_degree_matching(
+    inst: &Instance,
+    g: &Multigraph,
+    matcher: &dyn PerfectMatching,
+) -> Result<Cost, PostmanError> {
     let depot = inst.depot();
     let deg = required_degrees(inst);
     let k = min_vehicles(inst) as i64;
@@ -70,14 +84,14 @@ pub fn depot_degree_bound(
         .collect();
     let real = verts.len();
     verts.push(depot);
-    let rows = relaxed_rows(inst, &verts);
+    let rows = distance_rows(g, &verts, &verts, false);
     let depot_row = real;
     let mut c2 = Cost::MAX;
-    for l in &inst.network().links {
-        if l.from == depot && l.to == depot {
-            c2 = c2.min(l.cost);
-        } else if l.from == depot || l.to == depot {
-            c2 = c2.min(2 * l.cost);
+    for e in &g.edges {
+        if e.u == depot && e.v == depot {
+            c2 = c2.min(e.cost);
+        } else if e.u == depot || e.v == depot {
+            c2 = c2.min(2 * e.cost);
         }
     }
     if r > 0 && c2 == Cost::MAX {
@@ -95,7 +109,46 @@ pub fn depot_degree_bound(
         }
     };
     let mate = matcher.min_cost_perfect_matching(total, &c)?;
-    Ok(inst.total_service_cost() + matching_cost(&mate, &c))
+    Ok(matching_cost(&mate, &c))
+}
+
+/// Blend of [`depot_cut_bound`] and [`depot_degree_bound`]: for a weight
+/// `α ∈ {0, ¼, ½, ¾, 1}`, service cost plus `α` times the cut crossings
+/// plus the depot-degree matching on the costs left over, the best `α` kept.
+///
+/// Method: a Lagrangian-style split of the link costs between the two
+/// arguments above (ours), each of which follows the published methods cited
+/// there.
+///
+/// Why it is a bound. With `dist` the shortest-path costs from the depot
+/// (undirected relaxation) and `Δ_e = |dist(a) − dist(b)|` for a link
+/// `e = (a, b)`, write `c_e = ⌈α Δ_e⌉ + c^α_e`; `c^α_e ≥ 0` since
+/// `Δ_e ≤ c_e`. The deadhead cost of a plan is then
+/// `Σ_D ⌈α Δ_e⌉ + Σ_D c^α_e ≥ α Σ_D Δ_e + Σ_D c^α_e`. The first sum is at
+/// least `α` times the cut crossings of [`depot_cut_bound`] (its proof only
+/// bounds `Σ_D Δ_e`); the second is at least the depot-degree matching with
+/// the costs `c^α` (its proof holds for any non-negative link costs). The
+/// two parts bound disjoint shares of the same cost, so they add; the sum is
+/// rounded up since plan costs are integers.
+pub fn blended_bound(inst: &Instance, matcher: &dyn PerfectMatching) -> Result<Cost, PostmanError> {
+    let g = Multigraph::from_network(inst.network());
+    let (dist, _) = g.dijkstra(&[inst.depot()], false);
+    let cuts = cut_crossings(inst, &dist, true);
+    let mut best = 0;
+    for quarters in 0..=4 {
+        let mut h = g.clone();
+        for e in &mut h.edges {
+            let (a, b) = (dist[e.u], dist[e.v]);
+            if a < FAR && b < FAR {
+                let delta = (a - b).abs();
+                e.cost -= (quarters * delta + 3) / 4;
+                debug_assert!(e.cost >= 0);
+            }
+        }
+        let m = depot_degree_matching(inst, &h, matcher)?;
+        best = best.max(m + (quarters * cuts + 3) / 4);
+    }
+    Ok(inst.total_service_cost() + best)
 }
 
 /// Depot-distance cut bound: service cost plus, summed over the cuts around
@@ -224,6 +277,8 @@ mod tests {
         // No odd vertex; one link of 10 joins the depot to the work.
         assert_eq!(odd_matching_bound(&inst, &DenseBlossom).unwrap(), 2);
         assert_eq!(connection_bound(&inst), 2 + 10);
+        // α = 1: all cuts (42), and the left-over costs are all zero.
+        assert_eq!(blended_bound(&inst, &DenseBlossom).unwrap(), 2 + 42);
     }
 
     #[test]

@@ -21,7 +21,7 @@ mod capacity;
 mod single;
 
 pub(crate) use capacity::depot_cuts;
-pub use capacity::{depot_cut_bound, depot_degree_bound, min_vehicles};
+pub use capacity::{blended_bound, depot_cut_bound, depot_degree_bound, min_vehicles};
 pub use single::{connection_bound, imbalance_flow_bound, odd_matching_bound};
 
 use crate::model::{Cost, Instance};
@@ -53,6 +53,8 @@ pub const IMBALANCE_FLOW: &str = "imbalance flow";
 pub const DEPOT_DEGREE: &str = "depot-degree matching";
 /// Name of [`depot_cut_bound`].
 pub const DEPOT_CUTS: &str = "depot-distance cuts";
+/// Name of [`blended_bound`].
+pub const BLENDED: &str = "cuts + depot-degree blend";
 
 /// The best lower bound known to the crate for `inst`: the largest value of
 /// [`all_bounds`] (the first listed among equals).
@@ -73,7 +75,8 @@ pub fn bound(inst: &Instance, dist: &Distances) -> LowerBound {
 /// 4. [`imbalance_flow_bound`] (single tour, directed), only when every task
 ///    has a fixed service direction;
 /// 5. [`depot_degree_bound`] (fleet, uses the least number of vehicles);
-/// 6. [`depot_cut_bound`] (fleet, capacity cuts at every distance from the depot).
+/// 6. [`depot_cut_bound`] (fleet, capacity cuts at every distance from the depot);
+/// 7. [`blended_bound`] (fleet, 5 and 6 sharing the link costs).
 ///
 /// A bound whose sub-solver fails (e.g. costs beyond the exact solvers'
 /// range) is left out, and so are the two matching bounds when more than
@@ -122,6 +125,14 @@ pub fn all_bounds(inst: &Instance, dist: &Distances) -> Vec<LowerBound> {
         value: depot_cut_bound(inst),
         by: DEPOT_CUTS,
     });
+    if small {
+        if let Ok(v) = blended_bound(inst, &DenseBlossom) {
+            out.push(LowerBound {
+                value: v,
+                by: BLENDED,
+            });
+        }
+    }
     out
 }
 

@@ -89,7 +89,8 @@ pub(crate) fn points(inst: &Instance) -> Option<Vec<(f64, f64)>> {
 /// The plan as a GeoJSON FeatureCollection, or `None` when the scenario has
 /// no coordinates. Each feature is one step of a route's walk (a LineString
 /// from junction to junction) with properties `route` (1-based truck number),
-/// `step`, `action` (`serve` or `deadhead`), `street`, `link` (1-based),
+/// `step`, `action` (`serve` or `deadhead`), `street`, `link` (0-based index in the scenario's
+/// street list, as in plan files and checker messages),
 /// `from`/`to` (junction ids) and `distance`. `coords` says how to read the
 /// coordinates ([`Coordinates::guess`] when `None`).
 pub fn feature_collection(
@@ -117,7 +118,7 @@ pub fn feature_collection(
                     "step": row.step,
                     "action": if row.action == Action::Serve { "serve" } else { "deadhead" },
                     "street": row.street,
-                    "link": row.link + 1,
+                    "link": row.link,
                     "from": row.from,
                     "to": row.to,
                     "distance": row.distance,

@@ -30,11 +30,13 @@ pub const CAUTIONS: [&str; 4] = [
     "Follow local codes (school zones, quiet hours, access times, road works) and the instructions of the road authority.",
 ];
 
-/// The street name of link `link`, or `link N` (1-based) when it has none.
+/// The street name of link `link`, or `link N` when it has none (`N` is the
+/// 0-based index in the scenario's street list, as in plan files and in the
+/// checker's messages).
 pub fn street_label(inst: &Instance, link: usize) -> String {
     match &inst.network().links[link].name {
         Some(n) if !n.trim().is_empty() => n.clone(),
-        _ => format!("link {}", link + 1),
+        _ => format!("link {link}"),
     }
 }
 

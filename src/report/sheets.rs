@@ -45,7 +45,7 @@ pub struct SheetRow {
     pub step: usize,
     /// Link index in the network.
     pub link: usize,
-    /// Street name, or `link N` (1-based) when the link has none.
+    /// Street name, or `link N` (see [`street_label`]) when the link has none.
     pub street: String,
     /// Junction id (as in the source data) where the step starts.
     pub from: u64,
@@ -131,13 +131,15 @@ fn csv_field(s: &str) -> String {
     }
 }
 
-/// Route `r`'s sheet as CSV (RFC 4180 quoting), one row per step. The
-/// cautions come first as `#` comment lines; spreadsheet programs show them as
-/// plain text rows.
+/// Route `r`'s sheet as CSV (RFC 4180 quoting), one row per step, with the
+/// columns `step, street, link` (0-based index in the scenario's street
+/// list), `from_junction, to_junction` (junction ids), `action, distance,
+/// load_after, distance_after, time_after`. The cautions come first as `#`
+/// comment lines; spreadsheet programs show them as plain text rows.
 pub fn route_csv(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> String {
     let mut out = String::new();
     for c in CAUTIONS {
-        let _ = writeln!(out, "# {}", csv_field(c));
+        let _ = writeln!(out, "# {c}");
     }
     out.push_str("step,street,link,from_junction,to_junction,action,distance,load_after,distance_after,time_after\n");
     for row in route_rows(inst, dist, plan, r) {
@@ -146,7 +148,7 @@ pub fn route_csv(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> St
             "{},{},{},{},{},{},{},{},{},{}",
             row.step,
             csv_field(&row.street),
-            row.link + 1,
+            row.link,
             row.from,
             row.to,
             row.action.label(),

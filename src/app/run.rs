@@ -1,0 +1,210 @@
+//! The two things the planner does: plan a scenario and write the reports,
+//! and re-verify a plan file.
+
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
+
+use crate::check::{check_plan, check_walks, Violation};
+use crate::demo::{town, TownSpec};
+use crate::io::plan_json::{read_plan, write_plan};
+use crate::io::{read_dat_file, read_scenario, read_scenario_file};
+use crate::model::Instance;
+use crate::paths::Distances;
+use crate::plan::{walk, Plan};
+use crate::report::{bundle, summary_table, OutputFile, SummaryExtras};
+use crate::search::{Progress, Solution, Solver};
+
+use super::{write_files, AppError, FleetOverrides, PlanOptions, DEFAULT_SCENARIO};
+
+/// Reads a scenario: a research-format file when the name ends in `.dat`
+/// (any case), otherwise our JSON scenario format. Fleet overrides are
+/// applied and the result revalidated.
+pub fn load_scenario(path: &Path, fleet: &FleetOverrides) -> Result<Instance, AppError> {
+    let is_dat = path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("dat"));
+    let inst = if is_dat {
+        read_dat_file(path).map_err(AppError::Input)?.instance
+    } else {
+        read_scenario_file(path).map_err(AppError::Input)?
+    };
+    fleet.apply(inst).map_err(AppError::Fleet)
+}
+
+/// Where the scenario of a run comes from: the file given, or
+/// [`DEFAULT_SCENARIO`] when it exists, or else the demo town generated in
+/// memory (the same town; used when the program runs outside the project
+/// folder). Returns the instance and a description for the summary.
+pub fn resolve_scenario(opts: &PlanOptions) -> Result<(Instance, String), AppError> {
+    if let Some(p) = &opts.input {
+        return Ok((load_scenario(p, &opts.fleet)?, p.display().to_string()));
+    }
+    let default = Path::new(DEFAULT_SCENARIO);
+    if default.exists() {
+        return Ok((
+            load_scenario(default, &opts.fleet)?,
+            DEFAULT_SCENARIO.to_string(),
+        ));
+    }
+    let inst = town(&TownSpec::demo()).map_err(AppError::Fleet)?;
+    // Going through the scenario text keeps this path identical to reading the file.
+    let inst =
+        read_scenario(&crate::io::write_scenario(&inst), "<demo town>").map_err(AppError::Input)?;
+    let inst = opts.fleet.apply(inst).map_err(AppError::Fleet)?;
+    Ok((inst, "the demo town (generated)".to_string()))
+}
+
+/// A progress callback.
+pub type ProgressHook<'a> = Box<dyn Fn(&Progress) + Send + Sync + 'a>;
+
+/// Callbacks of a planning run.
+#[derive(Default)]
+pub struct Hooks<'a> {
+    /// Called whenever the best plan improves.
+    pub on_progress: Option<ProgressHook<'a>>,
+    /// Set to true to stop the search early (the best plan is still written).
+    pub stop: Option<Arc<AtomicBool>>,
+}
+
+/// What a planning run did.
+#[derive(Debug)]
+pub struct PlanRun {
+    /// The instance planned (with overrides applied).
+    pub instance: Instance,
+    /// Where it came from.
+    pub source: String,
+    /// The solver's result (its plan passed the checker).
+    pub solution: Solution,
+    /// Whether the stop flag ended the search.
+    pub stopped_early: bool,
+    /// The summary table, with cautions.
+    pub summary: String,
+    /// The files written, plan file first.
+    pub files: Vec<PathBuf>,
+}
+
+/// Checks a plan and its explicit walks with the independent checker.
+pub fn verify(inst: &Instance, dist: &Distances, plan: &Plan) -> Result<(), Vec<Violation>> {
+    check_plan(inst, plan)?;
+    let walks: Vec<_> = plan
+        .routes
+        .iter()
+        .map(|r| walk(inst, dist, &r.visits))
+        .collect();
+    check_walks(inst, &walks)
+}
+
+/// The plan file and every report for `plan`, after checking it: a plan that
+/// fails the independent checker is refused ([`AppError::Refused`]), and so
+/// is a plan file that does not read back to the same plan.
+pub fn render(
+    inst: &Instance,
+    dist: &Distances,
+    plan: &Plan,
+    extras: &SummaryExtras,
+) -> Result<Vec<OutputFile>, AppError> {
+    verify(inst, dist, plan).map_err(AppError::Refused)?;
+    let json = write_plan(inst, plan, extras.lower_bound.as_ref().map(|b| b.0));
+    match read_plan(&json, "plan.json", inst) {
+        Ok(back) if back == *plan => {}
+        Ok(_) => {
+            return Err(AppError::Internal(
+                "the plan file does not read back to the same plan".into(),
+            ))
+        }
+        Err(e) => {
+            return Err(AppError::Internal(format!(
+                "the plan file does not read back: {e}"
+            )))
+        }
+    }
+    let mut files = vec![OutputFile {
+        name: "plan.json".into(),
+        contents: json,
+    }];
+    files.extend(bundle(inst, dist, plan, extras));
+    Ok(files)
+}
+
+/// Plans the scenario of `opts` and writes the plan and reports into
+/// `opts.out`.
+pub fn run_plan(opts: &PlanOptions, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
+    let (inst, source) = resolve_scenario(opts)?;
+    let stop = hooks
+        .stop
+        .clone()
+        .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
+    let mut solver = Solver::new(&inst)
+        .seed(opts.seed)
+        .workers(opts.workers)
+        .stop_flag(stop.clone());
+    if let Some(t) = opts.effective_time_limit() {
+        solver = solver.time_limit(t);
+    }
+    if let Some(n) = opts.iterations {
+        solver = solver.max_iterations(n);
+    }
+    if let Some(f) = hooks.on_progress {
+        solver = solver.on_progress(f);
+    }
+    let solution = solver.solve().map_err(AppError::Solve)?;
+    let stopped_early = stop.load(Ordering::SeqCst);
+    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
+    let extras = SummaryExtras {
+        lower_bound: Some((
+            solution.lower_bound.value,
+            solution.lower_bound.by.to_string(),
+        )),
+        gap_percent: Some(solution.gap),
+        run_time: Some(solution.stats.elapsed),
+        iterations: Some(solution.stats.iterations),
+        stopped_early,
+    };
+    let files = render(&inst, &dist, &solution.plan, &extras)?;
+    let summary = summary_table(&inst, &solution.plan, &extras);
+    let files = write_files(&opts.out, &files)?;
+    Ok(PlanRun {
+        instance: inst,
+        source,
+        solution,
+        stopped_early,
+        summary,
+        files,
+    })
+}
+
+/// What re-verifying a plan file found.
+#[derive(Debug)]
+pub struct CheckRun {
+    /// The plan read.
+    pub plan: Plan,
+    /// Every violation found (empty when the plan is valid).
+    pub violations: Vec<Violation>,
+}
+
+/// Reads `plan_file` against `scenario` and checks it with the independent
+/// checker (plan and explicit walks).
+pub fn run_check(
+    scenario: &Path,
+    plan_file: &Path,
+    fleet: &FleetOverrides,
+) -> Result<CheckRun, AppError> {
+    let inst = load_scenario(scenario, fleet)?;
+    let name = plan_file.display().to_string();
+    let text = std::fs::read_to_string(plan_file).map_err(|source| {
+        AppError::Input(crate::Error::Io {
+            file: name.clone(),
+            source,
+        })
+    })?;
+    let plan = read_plan(&text, &name, &inst).map_err(AppError::Input)?;
+    let violations = match check_plan(&inst, &plan) {
+        Err(v) => v,
+        Ok(()) => {
+            let dist = Distances::new(&inst).map_err(AppError::Distances)?;
+            verify(&inst, &dist, &plan).err().unwrap_or_default()
+        }
+    };
+    Ok(CheckRun { plan, violations })
+}
