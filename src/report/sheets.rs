@@ -6,7 +6,7 @@ use crate::model::{Cost, Instance};
 use crate::paths::Distances;
 use crate::plan::{walk, Plan};
 
-use super::{fmt_time, street_label, CAUTIONS};
+use super::{show_time, street_label, CAUTIONS};
 
 /// What a truck does on one step of its walk.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -179,7 +179,7 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
         out,
         "{} route(s), total distance {}, yard at junction {}. Distances are in the \
          scenario's cost unit (metres for the demo town), times in its time unit \
-         (seconds for the demo town, shown as h:mm:ss).\n",
+         (seconds for the demo town, where h:mm:ss follows).\n",
         plan.routes.len(),
         plan.cost,
         yard
@@ -190,12 +190,11 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
         let _ = writeln!(out, "## Truck {}\n", r + 1);
         let _ = writeln!(
             out,
-            "{} streets served, load {}, distance {}, time {} ({}).\n",
+            "{} streets served, load {}, distance {}, time {}.\n",
             served,
             route.load,
             route.cost,
-            fmt_time(route.time),
-            route.time
+            show_time(inst, route.time)
         );
         out.push_str("| step | street | from → to | action | distance | load | distance so far | time so far |\n");
         out.push_str("|---:|---|---|---|---:|---:|---:|---:|\n");
@@ -211,7 +210,7 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
                 x.distance,
                 x.load,
                 x.cumulative_distance,
-                fmt_time(x.time)
+                show_time(inst, x.time)
             );
         }
         out.push('\n');
