@@ -400,3 +400,24 @@ fn stop_flag_ends_the_search_and_still_writes_the_plan() {
     check_plan(&run.instance, &run.solution.plan).unwrap();
     assert!(dir.join("plan.json").exists() && dir.join("plan.svg").exists());
 }
+
+#[test]
+fn scenario_kind_is_told_by_name_or_by_content() {
+    let dir = out_dir("planner-kinds");
+    std::fs::create_dir_all(&dir).unwrap();
+    let dat = " NOMBRE : tiny\n VERTICES : 3\n ARISTAS_REQ : 2\n ARISTAS_NOREQ : 1\n \
+               VEHICULOS : 2\n CAPACIDAD : 5\n TIPO_COSTES_ARISTAS : EXPLICITOS\n \
+               COSTE_TOTAL_REQ : 7\n LISTA_ARISTAS_REQ :\n ( 1 , 2)  coste 3 demanda 2\n \
+               ( 2 , 3)  coste 4 demanda 2\n LISTA_ARISTAS_NOREQ :\n ( 3 , 1)  coste 6\n \
+               DEPOSITO :   1\n";
+    let txt = dir.join("tiny.txt");
+    std::fs::write(&txt, dat).unwrap();
+    let inst = app::load_scenario(&txt, &FleetOverrides::default()).unwrap();
+    assert_eq!(inst.tasks().len(), 2);
+    let json = dir.join("tiny.scenario");
+    std::fs::write(&json, arcwright::io::write_scenario(&inst)).unwrap();
+    assert_eq!(
+        app::load_scenario(&json, &FleetOverrides::default()).unwrap(),
+        inst
+    );
+}

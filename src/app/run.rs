@@ -18,12 +18,23 @@ use crate::search::{Progress, Solution, Solver};
 use super::{write_files, AppError, FleetOverrides, PlanOptions, DEFAULT_SCENARIO};
 
 /// Reads a scenario: a research-format file when the name ends in `.dat`
-/// (any case), otherwise our JSON scenario format. Fleet overrides are
-/// applied and the result revalidated.
+/// (any case), our JSON scenario format when it ends in `.json`, and for
+/// other names whichever the text looks like (JSON starts with `{`). Fleet
+/// overrides are applied and the result revalidated.
 pub fn load_scenario(path: &Path, fleet: &FleetOverrides) -> Result<Instance, AppError> {
-    let is_dat = path
+    let ext = path
         .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("dat"));
+        .map(|e| e.to_string_lossy().to_ascii_lowercase());
+    let is_dat = match ext.as_deref() {
+        Some("dat") => true,
+        Some("json") => false,
+        // Unreadable files fall through to the JSON reader, which names them.
+        _ => std::fs::read(path).is_ok_and(|b| {
+            b.iter()
+                .find(|c| !c.is_ascii_whitespace())
+                .is_some_and(|&c| c != b'{')
+        }),
+    };
     let inst = if is_dat {
         read_dat_file(path).map_err(AppError::Input)?.instance
     } else {

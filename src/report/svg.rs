@@ -8,7 +8,7 @@ use crate::model::Instance;
 use crate::paths::Distances;
 use crate::plan::Plan;
 
-use super::geo::points;
+use super::geo::{points, Coordinates};
 use super::sheets::{route_rows, Action};
 
 /// Route colours, in order; routes beyond the tenth reuse them. Picked for
@@ -148,6 +148,23 @@ pub fn map(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
         yx + 11.0,
         yy + 4.0
     );
+    // Scale bar, for planar coordinates only (taken as metres).
+    if let Some(Coordinates::Metres { .. }) = Coordinates::guess(inst) {
+        let target = span_x / 5.0;
+        let mag = 10f64.powf(target.log10().floor());
+        let len = [5.0, 2.0, 1.0]
+            .into_iter()
+            .map(|m| m * mag)
+            .find(|&l| l <= target)
+            .unwrap_or(mag);
+        let (x0, y0) = (WIDTH - LEGEND_W - MARGIN / 2.0, height - MARGIN);
+        let _ = writeln!(
+            s,
+            r##"<g id="scale"><line x1="{x0:.1}" y1="{y0:.1}" x2="{:.1}" y2="{y0:.1}" stroke="#333333" stroke-width="2"/><text x="{x0:.1}" y="{:.1}">{len} m</text></g>"##,
+            x0 + len * scale,
+            y0 - 6.0
+        );
+    }
     // Legend.
     let lx = WIDTH - LEGEND_W - MARGIN / 2.0;
     let _ = writeln!(
