@@ -7,7 +7,7 @@ use std::sync::Arc;
 
 use crate::check::{check_plan, check_walks, Violation};
 use crate::demo::{town, TownSpec};
-use crate::io::plan_json::{read_plan, write_plan};
+use crate::io::plan_json::{read_plan_with, write_plan};
 use crate::io::{read_dat_file, read_scenario, read_scenario_file};
 use crate::model::Instance;
 use crate::paths::Distances;
@@ -117,7 +117,7 @@ pub fn render(
 ) -> Result<Vec<OutputFile>, AppError> {
     verify(inst, dist, plan).map_err(AppError::Refused)?;
     let json = write_plan(inst, plan, extras.lower_bound.as_ref().map(|b| b.0));
-    match read_plan(&json, "plan.json", inst) {
+    match read_plan_with(&json, "plan.json", inst, dist) {
         Ok(back) if back == *plan => {}
         Ok(_) => {
             return Err(AppError::Internal(
@@ -209,13 +209,11 @@ pub fn run_check(
             source,
         })
     })?;
-    let plan = read_plan(&text, &name, &inst).map_err(AppError::Input)?;
+    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
+    let plan = read_plan_with(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let violations = match check_plan(&inst, &plan) {
         Err(v) => v,
-        Ok(()) => {
-            let dist = Distances::new(&inst).map_err(AppError::Distances)?;
-            verify(&inst, &dist, &plan).err().unwrap_or_default()
-        }
+        Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),
     };
     Ok(CheckRun { plan, violations })
 }
