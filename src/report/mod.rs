@@ -79,6 +79,8 @@ pub fn bundle(
     plan: &Plan,
     extras: &SummaryExtras,
 ) -> Vec<OutputFile> {
+    // The walks are expanded once (one shortest-path search per deadhead leg).
+    let rows = sheets::all_rows(inst, dist, plan);
     let mut out = vec![
         OutputFile {
             name: "summary.txt".into(),
@@ -86,23 +88,23 @@ pub fn bundle(
         },
         OutputFile {
             name: "sheets.md".into(),
-            contents: sheets::markdown(inst, dist, plan),
+            contents: sheets::markdown_of_rows(inst, plan, &rows),
         },
     ];
     let width = plan.routes.len().to_string().len();
-    for r in 0..plan.routes.len() {
+    for (r, route_rows) in rows.iter().enumerate() {
         out.push(OutputFile {
             name: format!("truck-{:0width$}.csv", r + 1),
-            contents: sheets::route_csv(inst, dist, plan, r),
+            contents: sheets::csv_of_rows(route_rows),
         });
     }
-    if let Some(g) = geo::feature_collection(inst, dist, plan, None) {
+    if let Some(g) = geo::feature_collection_of_rows(inst, &rows, None) {
         out.push(OutputFile {
             name: "plan.geojson".into(),
             contents: g,
         });
     }
-    if let Some(m) = svg::map(inst, dist, plan) {
+    if let Some(m) = svg::map_of_rows(inst, plan, &rows) {
         out.push(OutputFile {
             name: "plan.svg".into(),
             contents: m,

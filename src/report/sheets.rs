@@ -137,12 +137,24 @@ fn csv_field(s: &str) -> String {
 /// load_after, distance_after, time_after`. The cautions come first as `#`
 /// comment lines; spreadsheet programs show them as plain text rows.
 pub fn route_csv(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> String {
+    csv_of_rows(&route_rows(inst, dist, plan, r))
+}
+
+/// The rows of every route ([`route_rows`]), computed once for all outputs.
+pub fn all_rows(inst: &Instance, dist: &Distances, plan: &Plan) -> Vec<Vec<SheetRow>> {
+    (0..plan.routes.len())
+        .map(|r| route_rows(inst, dist, plan, r))
+        .collect()
+}
+
+/// [`route_csv`] from rows already computed.
+pub fn csv_of_rows(rows: &[SheetRow]) -> String {
     let mut out = String::new();
     for c in CAUTIONS {
         let _ = writeln!(out, "# {c}");
     }
     out.push_str("step,street,link,from_junction,to_junction,action,distance,load_after,distance_after,time_after\n");
-    for row in route_rows(inst, dist, plan, r) {
+    for row in rows {
         let _ = writeln!(
             out,
             "{},{},{},{},{},{},{},{},{},{}",
@@ -167,6 +179,11 @@ fn md_cell(s: &str) -> String {
 
 /// One readable Markdown document with the sheets of all routes.
 pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
+    markdown_of_rows(inst, plan, &all_rows(inst, dist, plan))
+}
+
+/// [`markdown`] from the rows of every route ([`all_rows`]).
+pub fn markdown_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "# Route sheets: {}\n", md_cell(&inst.name));
     out.push_str("> **Read before driving.**\n");
@@ -184,8 +201,7 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
         plan.cost,
         yard
     );
-    for (r, route) in plan.routes.iter().enumerate() {
-        let rows = route_rows(inst, dist, plan, r);
+    for (r, (route, rows)) in plan.routes.iter().zip(all).enumerate() {
         let served = rows.iter().filter(|x| x.action == Action::Serve).count();
         let _ = writeln!(out, "## Truck {}\n", r + 1);
         let _ = writeln!(
@@ -198,7 +214,7 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
         );
         out.push_str("| step | street | from → to | action | distance | load | distance so far | time so far |\n");
         out.push_str("|---:|---|---|---|---:|---:|---:|---:|\n");
-        for x in &rows {
+        for x in rows {
             let _ = writeln!(
                 out,
                 "| {} | {} | {} → {} | {} | {} | {} | {} | {} |",

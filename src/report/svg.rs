@@ -9,7 +9,7 @@ use crate::paths::Distances;
 use crate::plan::Plan;
 
 use super::geo::{points, Coordinates};
-use super::sheets::{route_rows, Action};
+use super::sheets::{all_rows, Action, SheetRow};
 
 /// Route colours, in order; routes beyond the tenth reuse them. Picked for
 /// this project to stay apart from each other and from the grey network.
@@ -53,6 +53,12 @@ pub fn xml_escape(s: &str) -> String {
 /// Steps are shifted a little to the right of the direction of travel so that
 /// a street driven both ways shows both passes.
 pub fn map(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
+    points(inst)?;
+    map_of_rows(inst, plan, &all_rows(inst, dist, plan))
+}
+
+/// [`map`] from the rows of every route ([`all_rows`]).
+pub fn map_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> Option<String> {
     let pts = points(inst)?;
     let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
     for &(x, y) in &pts {
@@ -103,7 +109,7 @@ pub fn map(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
                 r#"<g id="route-{}-{id}" stroke="{colour}" stroke-linecap="round" fill="none">"#,
                 r + 1
             );
-            for row in route_rows(inst, dist, plan, r) {
+            for row in &all[r] {
                 if row.action.is_deadhead() != pass {
                     continue;
                 }
