@@ -374,3 +374,50 @@ fn readme_library_snippet_runs() {
         std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("README.md")).unwrap();
     assert!(readme.contains("Solver::new(&inst).seed(1).workers(1).max_iterations(50).solve()"));
 }
+
+/// What Ctrl-C does in the program: the stop flag ends a long search early
+/// and the best plan so far is still checked and written.
+#[test]
+fn stop_flag_ends_the_search_and_still_writes_the_plan() {
+    use std::sync::atomic::{AtomicBool, Ordering};
+    use std::sync::Arc;
+    let dir = out_dir("planner-stop");
+    let mut o = options(demo_path(), &dir);
+    o.iterations = None;
+    o.time_limit = Some(std::time::Duration::from_secs(600));
+    let stop = Arc::new(AtomicBool::new(false));
+    let flag = stop.clone();
+    // Raise the flag at the first improvement, as a user pressing Ctrl-C would.
+    let hooks = Hooks {
+        on_progress: Some(Box::new(move |_| flag.store(true, Ordering::SeqCst))),
+        stop: Some(stop),
+    };
+    let start = std::time::Instant::now();
+    let run = app::run_plan(&o, hooks).unwrap();
+    assert!(start.elapsed().as_secs() < 120, "{:?}", start.elapsed());
+    assert!(run.stopped_early);
+    assert!(run.summary.contains("stopped early"));
+    check_plan(&run.instance, &run.solution.plan).unwrap();
+    assert!(dir.join("plan.json").exists() && dir.join("plan.svg").exists());
+}
+
+#[test]
+fn scenario_kind_is_told_by_name_or_by_content() {
+    let dir = out_dir("planner-kinds");
+    std::fs::create_dir_all(&dir).unwrap();
+    let dat = " NOMBRE : tiny\n VERTICES : 3\n ARISTAS_REQ : 2\n ARISTAS_NOREQ : 1\n \
+               VEHICULOS : 2\n CAPACIDAD : 5\n TIPO_COSTES_ARISTAS : EXPLICITOS\n \
+               COSTE_TOTAL_REQ : 7\n LISTA_ARISTAS_REQ :\n ( 1 , 2)  coste 3 demanda 2\n \
+               ( 2 , 3)  coste 4 demanda 2\n LISTA_ARISTAS_NOREQ :\n ( 3 , 1)  coste 6\n \
+               DEPOSITO :   1\n";
+    let txt = dir.join("tiny.txt");
+    std::fs::write(&txt, dat).unwrap();
+    let inst = app::load_scenario(&txt, &FleetOverrides::default()).unwrap();
+    assert_eq!(inst.tasks().len(), 2);
+    let json = dir.join("tiny.scenario");
+    std::fs::write(&json, arcwright::io::write_scenario(&inst)).unwrap();
+    assert_eq!(
+        app::load_scenario(&json, &FleetOverrides::default()).unwrap(),
+        inst
+    );
+}

@@ -293,3 +293,21 @@ fn research_files_without_coordinates_get_sheets_but_no_maps() {
     assert_eq!(total, plan.cost);
     assert!(sheets::markdown(&inst, &dist, &plan).contains("| link "));
 }
+
+#[test]
+fn committed_demo_picture_is_well_formed() {
+    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/docs/demo-plan.svg");
+    let text = std::fs::read_to_string(path).unwrap();
+    let doc = roxmltree::Document::parse(&text).expect("well-formed XML");
+    assert_eq!(doc.root_element().tag_name().name(), "svg");
+    let inst = town(&TownSpec::demo()).unwrap();
+    let network = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some("network"))
+        .unwrap();
+    assert_eq!(
+        network.children().filter(|n| n.is_element()).count(),
+        inst.network().links.len(),
+        "docs/demo-plan.svg is not a map of the demo town"
+    );
+}

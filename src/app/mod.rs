@@ -374,12 +374,40 @@ impl fmt::Display for AppError {
 
 impl std::error::Error for AppError {}
 
+/// Whether `name` is one of the files the planner writes (so that a new
+/// run may replace it): `plan.json`, `plan.geojson`, `plan.svg`,
+/// `sheets.md`, `summary.txt` and `truck-N.csv`.
+pub fn is_planner_output(name: &str) -> bool {
+    matches!(
+        name,
+        "plan.json" | "plan.geojson" | "plan.svg" | "sheets.md" | "summary.txt"
+    ) || name
+        .strip_prefix("truck-")
+        .and_then(|r| r.strip_suffix(".csv"))
+        .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()))
+}
+
 /// Writes `files` into `dir` (created if needed) and returns their paths.
+/// Outputs of an earlier run in `dir` ([`is_planner_output`]) are removed
+/// first, so that no truck sheet or map of another plan is left beside the
+/// new one; other files are left alone.
 pub fn write_files(dir: &Path, files: &[OutputFile]) -> Result<Vec<PathBuf>, AppError> {
     std::fs::create_dir_all(dir).map_err(|source| AppError::Write {
         path: dir.to_path_buf(),
         source,
     })?;
+    let entries = std::fs::read_dir(dir).map_err(|source| AppError::Write {
+        path: dir.to_path_buf(),
+        source,
+    })?;
+    for e in entries.flatten() {
+        let name = e.file_name();
+        let is_file = e.file_type().is_ok_and(|t| t.is_file());
+        if is_file && name.to_str().is_some_and(is_planner_output) {
+            let path = e.path();
+            std::fs::remove_file(&path).map_err(|source| AppError::Write { path, source })?;
+        }
+    }
     let mut written = Vec::new();
     for f in files {
         let path = dir.join(&f.name);
@@ -462,6 +490,47 @@ mod tests {
             }
         );
         assert!(parse_args(["check", "a.json"]).is_err());
+    }
+
+    #[test]
+    fn a_new_run_replaces_only_planner_outputs() {
+        for n in [
+            "plan.json",
+            "plan.svg",
+            "truck-1.csv",
+            "truck-007.csv",
+            "sheets.md",
+        ] {
+            assert!(is_planner_output(n), "{n}");
+        }
+        for n in [
+            "notes.txt",
+            "truck-.csv",
+            "truck-a.csv",
+            "plan.json.bak",
+            "my-plan.json",
+        ] {
+            assert!(!is_planner_output(n), "{n}");
+        }
+        let dir = std::env::temp_dir().join(format!("arcwright-app-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).unwrap();
+        for n in ["truck-9.csv", "plan.svg", "notes.txt"] {
+            std::fs::write(dir.join(n), "old").unwrap();
+        }
+        let new = [OutputFile {
+            name: "truck-1.csv".into(),
+            contents: "new".into(),
+        }];
+        let written = write_files(&dir, &new).unwrap();
+        assert_eq!(written, vec![dir.join("truck-1.csv")]);
+        let mut left: Vec<String> = std::fs::read_dir(&dir)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().into_string().unwrap())
+            .collect();
+        left.sort();
+        assert_eq!(left, ["notes.txt", "truck-1.csv"]);
+        std::fs::remove_dir_all(&dir).unwrap();
     }
 
     #[test]

@@ -7,7 +7,7 @@ use std::sync::Arc;
 
 use crate::check::{check_plan, check_walks, Violation};
 use crate::demo::{town, TownSpec};
-use crate::io::plan_json::{read_plan, write_plan};
+use crate::io::plan_json::{read_plan_with, write_plan};
 use crate::io::{read_dat_file, read_scenario, read_scenario_file};
 use crate::model::Instance;
 use crate::paths::Distances;
@@ -18,12 +18,23 @@ use crate::search::{Progress, Solution, Solver};
 use super::{write_files, AppError, FleetOverrides, PlanOptions, DEFAULT_SCENARIO};
 
 /// Reads a scenario: a research-format file when the name ends in `.dat`
-/// (any case), otherwise our JSON scenario format. Fleet overrides are
-/// applied and the result revalidated.
+/// (any case), our JSON scenario format when it ends in `.json`, and for
+/// other names whichever the text looks like (JSON starts with `{`). Fleet
+/// overrides are applied and the result revalidated.
 pub fn load_scenario(path: &Path, fleet: &FleetOverrides) -> Result<Instance, AppError> {
-    let is_dat = path
+    let ext = path
         .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("dat"));
+        .map(|e| e.to_string_lossy().to_ascii_lowercase());
+    let is_dat = match ext.as_deref() {
+        Some("dat") => true,
+        Some("json") => false,
+        // Unreadable files fall through to the JSON reader, which names them.
+        _ => std::fs::read(path).is_ok_and(|b| {
+            b.iter()
+                .find(|c| !c.is_ascii_whitespace())
+                .is_some_and(|&c| c != b'{')
+        }),
+    };
     let inst = if is_dat {
         read_dat_file(path).map_err(AppError::Input)?.instance
     } else {
@@ -106,7 +117,7 @@ pub fn render(
 ) -> Result<Vec<OutputFile>, AppError> {
     verify(inst, dist, plan).map_err(AppError::Refused)?;
     let json = write_plan(inst, plan, extras.lower_bound.as_ref().map(|b| b.0));
-    match read_plan(&json, "plan.json", inst) {
+    match read_plan_with(&json, "plan.json", inst, dist) {
         Ok(back) if back == *plan => {}
         Ok(_) => {
             return Err(AppError::Internal(
@@ -198,13 +209,11 @@ pub fn run_check(
             source,
         })
     })?;
-    let plan = read_plan(&text, &name, &inst).map_err(AppError::Input)?;
+    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
+    let plan = read_plan_with(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let violations = match check_plan(&inst, &plan) {
         Err(v) => v,
-        Ok(()) => {
-            let dist = Distances::new(&inst).map_err(AppError::Distances)?;
-            verify(&inst, &dist, &plan).err().unwrap_or_default()
-        }
+        Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),
     };
     Ok(CheckRun { plan, violations })
 }

@@ -6,7 +6,7 @@ use crate::model::Instance;
 use crate::paths::Distances;
 use crate::plan::Plan;
 
-use super::sheets::{route_rows, Action};
+use super::sheets::{all_rows, Action, SheetRow};
 
 /// How the junction coordinates of a scenario are to be read.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -99,12 +99,22 @@ pub fn feature_collection(
     plan: &Plan,
     coords: Option<Coordinates>,
 ) -> Option<String> {
+    points(inst)?;
+    feature_collection_of_rows(inst, &all_rows(inst, dist, plan), coords)
+}
+
+/// [`feature_collection`] from the rows of every route ([`all_rows`]).
+pub fn feature_collection_of_rows(
+    inst: &Instance,
+    all: &[Vec<SheetRow>],
+    coords: Option<Coordinates>,
+) -> Option<String> {
     let pts = points(inst)?;
     let coords = coords.or_else(|| Coordinates::guess(inst))?;
     let net = inst.network();
     let mut features = Vec::new();
-    for r in 0..plan.routes.len() {
-        for row in route_rows(inst, dist, plan, r) {
+    for (r, rows) in all.iter().enumerate() {
+        for row in rows {
             let (a, b) = row.ends;
             let line = vec![
                 coords.lon_lat(pts[a].0, pts[a].1),

@@ -40,6 +40,18 @@ pub fn street_label(inst: &Instance, link: usize) -> String {
     }
 }
 
+/// A time as it is shown for `inst`: the number itself, followed by
+/// `h:mm:ss` (reading it as seconds) when the scenario gives times of its own
+/// (see [`Instance::has_times`]); the research files have none, and their
+/// "times" are just costs.
+pub fn show_time(inst: &Instance, t: Cost) -> String {
+    if inst.has_times() {
+        format!("{t} ({})", fmt_time(t))
+    } else {
+        t.to_string()
+    }
+}
+
 /// A time in seconds as `h:mm:ss`.
 pub fn fmt_time(secs: Cost) -> String {
     let sign = if secs < 0 { "-" } else { "" };
@@ -67,6 +79,8 @@ pub fn bundle(
     plan: &Plan,
     extras: &SummaryExtras,
 ) -> Vec<OutputFile> {
+    // The walks are expanded once (one shortest-path search per deadhead leg).
+    let rows = sheets::all_rows(inst, dist, plan);
     let mut out = vec![
         OutputFile {
             name: "summary.txt".into(),
@@ -74,23 +88,23 @@ pub fn bundle(
         },
         OutputFile {
             name: "sheets.md".into(),
-            contents: sheets::markdown(inst, dist, plan),
+            contents: sheets::markdown_of_rows(inst, plan, &rows),
         },
     ];
     let width = plan.routes.len().to_string().len();
-    for r in 0..plan.routes.len() {
+    for (r, route_rows) in rows.iter().enumerate() {
         out.push(OutputFile {
             name: format!("truck-{:0width$}.csv", r + 1),
-            contents: sheets::route_csv(inst, dist, plan, r),
+            contents: sheets::csv_of_rows(route_rows),
         });
     }
-    if let Some(g) = geo::feature_collection(inst, dist, plan, None) {
+    if let Some(g) = geo::feature_collection_of_rows(inst, &rows, None) {
         out.push(OutputFile {
             name: "plan.geojson".into(),
             contents: g,
         });
     }
-    if let Some(m) = svg::map(inst, dist, plan) {
+    if let Some(m) = svg::map_of_rows(inst, plan, &rows) {
         out.push(OutputFile {
             name: "plan.svg".into(),
             contents: m,
@@ -123,7 +137,7 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
     let _ = writeln!(out, "Plan for {}", inst.name);
     let _ = writeln!(
         out,
-        "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>10}",
+        "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>18}",
         "truck", "streets", "load", "cost", "service", "deadhead", "time"
     );
     let (mut total_service, mut total_time, mut total_load) = (0, 0, 0);
@@ -134,30 +148,30 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
         total_load += route.load;
         let _ = writeln!(
             out,
-            "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>10}",
+            "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>18}",
             r + 1,
             route.visits.len(),
             format!("{}/{}", route.load, fleet.capacity),
             route.cost,
             service,
             route.cost - service,
-            fmt_time(route.time)
+            show_time(inst, route.time)
         );
     }
     let _ = writeln!(
         out,
-        "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>10}",
+        "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>18}",
         "total",
         plan.visits(),
         total_load,
         plan.cost,
         total_service,
         plan.cost - total_service,
-        fmt_time(total_time)
+        show_time(inst, total_time)
     );
     let mut limits = format!("capacity {}", fleet.capacity);
     if let Some(s) = fleet.shift_limit {
-        let _ = write!(limits, ", shift limit {} ({s})", fmt_time(s));
+        let _ = write!(limits, ", shift limit {}", show_time(inst, s));
     }
     if let Some(m) = fleet.max_vehicles {
         let _ = write!(limits, ", at most {m} trucks");

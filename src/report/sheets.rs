@@ -6,7 +6,7 @@ use crate::model::{Cost, Instance};
 use crate::paths::Distances;
 use crate::plan::{walk, Plan};
 
-use super::{fmt_time, street_label, CAUTIONS};
+use super::{show_time, street_label, CAUTIONS};
 
 /// What a truck does on one step of its walk.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -137,12 +137,24 @@ fn csv_field(s: &str) -> String {
 /// load_after, distance_after, time_after`. The cautions come first as `#`
 /// comment lines; spreadsheet programs show them as plain text rows.
 pub fn route_csv(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> String {
+    csv_of_rows(&route_rows(inst, dist, plan, r))
+}
+
+/// The rows of every route ([`route_rows`]), computed once for all outputs.
+pub fn all_rows(inst: &Instance, dist: &Distances, plan: &Plan) -> Vec<Vec<SheetRow>> {
+    (0..plan.routes.len())
+        .map(|r| route_rows(inst, dist, plan, r))
+        .collect()
+}
+
+/// [`route_csv`] from rows already computed.
+pub fn csv_of_rows(rows: &[SheetRow]) -> String {
     let mut out = String::new();
     for c in CAUTIONS {
         let _ = writeln!(out, "# {c}");
     }
     out.push_str("step,street,link,from_junction,to_junction,action,distance,load_after,distance_after,time_after\n");
-    for row in route_rows(inst, dist, plan, r) {
+    for row in rows {
         let _ = writeln!(
             out,
             "{},{},{},{},{},{},{},{},{},{}",
@@ -167,6 +179,11 @@ fn md_cell(s: &str) -> String {
 
 /// One readable Markdown document with the sheets of all routes.
 pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
+    markdown_of_rows(inst, plan, &all_rows(inst, dist, plan))
+}
+
+/// [`markdown`] from the rows of every route ([`all_rows`]).
+pub fn markdown_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "# Route sheets: {}\n", md_cell(&inst.name));
     out.push_str("> **Read before driving.**\n");
@@ -179,27 +196,25 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
         out,
         "{} route(s), total distance {}, yard at junction {}. Distances are in the \
          scenario's cost unit (metres for the demo town), times in its time unit \
-         (seconds for the demo town, shown as h:mm:ss).\n",
+         (seconds for the demo town, where h:mm:ss follows).\n",
         plan.routes.len(),
         plan.cost,
         yard
     );
-    for (r, route) in plan.routes.iter().enumerate() {
-        let rows = route_rows(inst, dist, plan, r);
+    for (r, (route, rows)) in plan.routes.iter().zip(all).enumerate() {
         let served = rows.iter().filter(|x| x.action == Action::Serve).count();
         let _ = writeln!(out, "## Truck {}\n", r + 1);
         let _ = writeln!(
             out,
-            "{} streets served, load {}, distance {}, time {} ({}).\n",
+            "{} streets served, load {}, distance {}, time {}.\n",
             served,
             route.load,
             route.cost,
-            fmt_time(route.time),
-            route.time
+            show_time(inst, route.time)
         );
         out.push_str("| step | street | from → to | action | distance | load | distance so far | time so far |\n");
         out.push_str("|---:|---|---|---|---:|---:|---:|---:|\n");
-        for x in &rows {
+        for x in rows {
             let _ = writeln!(
                 out,
                 "| {} | {} | {} → {} | {} | {} | {} | {} | {} |",
@@ -211,7 +226,7 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
                 x.distance,
                 x.load,
                 x.cumulative_distance,
-                fmt_time(x.time)
+                show_time(inst, x.time)
             );
         }
         out.push('\n');

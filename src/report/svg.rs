@@ -8,8 +8,8 @@ use crate::model::Instance;
 use crate::paths::Distances;
 use crate::plan::Plan;
 
-use super::geo::points;
-use super::sheets::{route_rows, Action};
+use super::geo::{points, Coordinates};
+use super::sheets::{all_rows, Action, SheetRow};
 
 /// Route colours, in order; routes beyond the tenth reuse them. Picked for
 /// this project to stay apart from each other and from the grey network.
@@ -53,6 +53,12 @@ pub fn xml_escape(s: &str) -> String {
 /// Steps are shifted a little to the right of the direction of travel so that
 /// a street driven both ways shows both passes.
 pub fn map(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
+    points(inst)?;
+    map_of_rows(inst, plan, &all_rows(inst, dist, plan))
+}
+
+/// [`map`] from the rows of every route ([`all_rows`]).
+pub fn map_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> Option<String> {
     let pts = points(inst)?;
     let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
     for &(x, y) in &pts {
@@ -103,7 +109,7 @@ pub fn map(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
                 r#"<g id="route-{}-{id}" stroke="{colour}" stroke-linecap="round" fill="none">"#,
                 r + 1
             );
-            for row in route_rows(inst, dist, plan, r) {
+            for row in &all[r] {
                 if row.action.is_deadhead() != pass {
                     continue;
                 }
@@ -148,6 +154,23 @@ pub fn map(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
         yx + 11.0,
         yy + 4.0
     );
+    // Scale bar, for planar coordinates only (taken as metres).
+    if let Some(Coordinates::Metres { .. }) = Coordinates::guess(inst) {
+        let target = span_x / 5.0;
+        let mag = 10f64.powf(target.log10().floor());
+        let len = [5.0, 2.0, 1.0]
+            .into_iter()
+            .map(|m| m * mag)
+            .find(|&l| l <= target)
+            .unwrap_or(mag);
+        let (x0, y0) = (WIDTH - LEGEND_W - MARGIN / 2.0, height - MARGIN);
+        let _ = writeln!(
+            s,
+            r##"<g id="scale"><line x1="{x0:.1}" y1="{y0:.1}" x2="{:.1}" y2="{y0:.1}" stroke="#333333" stroke-width="2"/><text x="{x0:.1}" y="{:.1}">{len} m</text></g>"##,
+            x0 + len * scale,
+            y0 - 6.0
+        );
+    }
     // Legend.
     let lx = WIDTH - LEGEND_W - MARGIN / 2.0;
     let _ = writeln!(
