@@ -38,13 +38,6 @@ pub enum ModelError {
     /// A required link cannot be served on a round trip from the depot.
     #[error("link {link} is required but cannot be reached from the depot and back")]
     Unreachable { link: usize },
-    /// A required link alone (depot, serve, depot) takes longer than a shift.
-    #[error("link {link}: serving it on its own takes {time}, more than the shift limit {limit}")]
-    ExceedsShift {
-        link: usize,
-        time: Cost,
-        limit: Cost,
-    },
     /// The fleet allows zero vehicles but there is work to do.
     #[error("the fleet allows no vehicle but there are {tasks} required links")]
     NoVehicles { tasks: usize },
@@ -57,8 +50,7 @@ impl ModelError {
             ModelError::LinkEndOutOfRange { link, .. }
             | ModelError::Negative { link, .. }
             | ModelError::DemandExceedsCapacity { link, .. }
-            | ModelError::Unreachable { link }
-            | ModelError::ExceedsShift { link, .. } => Some(link),
+            | ModelError::Unreachable { link } => Some(link),
             _ => None,
         }
     }
