@@ -65,7 +65,7 @@ fn main() {
         if set == "egl" {
             let size = (inst.network().links.len() * 1000 + inst.tasks().len()) * 1000
                 + arcwright::bounds::min_vehicles(&inst);
-            if largest.as_ref().map_or(true, |l| size > l.0) {
+            if largest.as_ref().is_none_or(|l| size > l.0) {
                 // Time each bound on its own (median of 5 runs).
                 let times = time_each(&inst, &dist);
                 largest = Some((size, name.to_string(), times));

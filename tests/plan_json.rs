@@ -110,3 +110,59 @@ fn a_link_served_twice_is_refused() {
         "{e}"
     );
 }
+
+/// The structure-only reader leaves a service against its allowed direction
+/// to the checker, and recomputes the figures a file leaves out. On the demo
+/// town (instances/demo-town.json), which has one-side-only streets.
+#[test]
+fn reading_as_written_leaves_direction_and_figures_to_the_checker() {
+    use arcwright::check::{check_plan, At, Violation};
+    use arcwright::io::{read_plan_as_written, read_scenario_file};
+    use arcwright::model::{Dir, Fleet};
+    use arcwright::paths::Distances;
+    use arcwright::plan::{Plan, Visit};
+
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("instances/demo-town.json");
+    let base = read_scenario_file(&path).unwrap();
+    // Loosen the fleet so that only the planted problem remains.
+    let capacity = base.tasks().iter().map(|t| t.demand).sum::<i64>() + 1;
+    let inst = base.with_fleet(Fleet::with_capacity(capacity)).unwrap();
+    assert_eq!(inst.fleet().shift_limit, None);
+    let dist = Distances::new(&inst).unwrap();
+    let one_side = inst.tasks().iter().position(|t| !t.either).unwrap();
+    let all: Vec<Visit> = (0..inst.tasks().len())
+        .map(|t| Visit::new(t, Dir::Forward))
+        .collect();
+    let plan = Plan::from_visits(&inst, &dist, vec![all]);
+    let mut json: serde_json::Value =
+        serde_json::from_str(&write_plan(&inst, &plan, None)).unwrap();
+    // Serve the one-side street from its far end, and state no figures.
+    let s = &mut json["routes"][0]["services"][one_side];
+    let (from, to) = (s["from"].clone(), s["to"].clone());
+    s["from"] = to;
+    s["to"] = from;
+    json.as_object_mut().unwrap().remove("cost");
+    let r = json["routes"][0].as_object_mut().unwrap();
+    r.remove("cost");
+    r.remove("load");
+    let text = serde_json::to_string_pretty(&json).unwrap();
+
+    let e = read_plan(&text, "flipped.json", &inst).unwrap_err();
+    assert!(
+        matches!(e.problem(), Some(ParseProblem::NotARequiredLink { .. })),
+        "{e}"
+    );
+    let read = read_plan_as_written(&text, "flipped.json", &inst, &dist).unwrap();
+    assert_eq!(read.routes[0].visits[one_side].dir, Dir::Backward);
+    assert_eq!(
+        check_plan(&inst, &read),
+        Err(vec![Violation::DirectionNotAllowed {
+            at: At {
+                route: 0,
+                pos: one_side
+            },
+            task: one_side,
+            link: inst.tasks()[one_side].link,
+        }])
+    );
+}

@@ -7,8 +7,9 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 
 use arcwright::app::{self, FleetOverrides, Hooks, PlanOptions};
-use arcwright::check::check_plan;
+use arcwright::check::{check_plan, At, Violation};
 use arcwright::io::plan_json::{read_plan, write_plan};
+use arcwright::model::Dir;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan, Visit};
 
@@ -224,6 +225,86 @@ fn check_reports_every_violation_of_a_tampered_plan() {
     }
 }
 
+/// A plan file for the demo town that is readable but wrong in three ways:
+/// task 0 is served twice (route 0 position 0, route 1 last position), the
+/// last task is not served, and route 1 states a cost 5 above its true cost
+/// (the plan total states the true sum). Written with the fleet loosened
+/// (no capacity, shift or truck-count limit in the way), so exactly these
+/// three violations are expected; returns the file, the overrides to check
+/// it with, and the expected violations in the checker's order.
+fn tampered_plan_file(dir: &Path) -> (PathBuf, FleetOverrides, Vec<Violation>) {
+    let base = app::load_scenario(&demo_path(), &FleetOverrides::default()).unwrap();
+    let n = base.tasks().len();
+    assert!(n >= 4);
+    let fleet = FleetOverrides {
+        capacity: Some(base.tasks().iter().map(|t| t.demand).sum::<i64>() + 1),
+        shift_limit: Some(None),
+        max_trucks: Some(None),
+    };
+    let inst = fleet.apply(base).unwrap();
+    let dist = Distances::new(&inst).unwrap();
+    let fwd = |t: usize| Visit::new(t, Dir::Forward);
+    let half = n / 2;
+    let r0: Vec<Visit> = (0..half).map(fwd).collect();
+    let mut r1: Vec<Visit> = (half..n - 1).map(fwd).collect();
+    r1.push(fwd(0));
+    let again = r1.len() - 1;
+    let plan = Plan::from_visits(&inst, &dist, vec![r0, r1]);
+    let true_cost = plan.routes[1].cost;
+    let mut json: serde_json::Value =
+        serde_json::from_str(&write_plan(&inst, &plan, None)).unwrap();
+    json["routes"][1]["cost"] = (true_cost + 5).into();
+    let file = dir.join("wrong-figures.json");
+    std::fs::create_dir_all(dir).unwrap();
+    std::fs::write(&file, serde_json::to_string_pretty(&json).unwrap()).unwrap();
+    let t = inst.tasks();
+    let expected = vec![
+        Violation::ServedTwice {
+            task: 0,
+            link: t[0].link,
+            first: At { route: 0, pos: 0 },
+            again: At {
+                route: 1,
+                pos: again,
+            },
+        },
+        Violation::NotServed {
+            task: n - 1,
+            link: t[n - 1].link,
+        },
+        Violation::WrongCost {
+            route: 1,
+            reported: true_cost + 5,
+            actual: true_cost,
+        },
+    ];
+    (file, fleet, expected)
+}
+
+#[test]
+fn check_lists_wrong_figures_and_double_service_instead_of_failing_to_read() {
+    let dir = out_dir("planner-wrong-figures");
+    let (file, fleet, expected) = tampered_plan_file(&dir);
+    let checked = app::run_check(&demo_path(), &file, &fleet).unwrap();
+    assert_eq!(checked.violations, expected);
+    // The plan returned keeps the figure stated in the file.
+    let Violation::WrongCost { reported, .. } = expected[2] else {
+        unreachable!()
+    };
+    assert_eq!(checked.plan.routes[1].cost, reported);
+    // The strict reader still refuses the same file.
+    let inst = fleet
+        .apply(app::load_scenario(&demo_path(), &FleetOverrides::default()).unwrap())
+        .unwrap();
+    let text = std::fs::read_to_string(&file).unwrap();
+    assert!(read_plan(&text, "wrong-figures.json", &inst).is_err());
+    // A file that is not a plan at all is still a read error.
+    let broken = dir.join("broken.json");
+    std::fs::write(&broken, "{ \"format\": \"arcwright-plan\", ").unwrap();
+    let err = app::run_check(&demo_path(), &broken, &fleet).unwrap_err();
+    assert!(matches!(err, app::AppError::Input(_)), "{err}");
+}
+
 #[test]
 fn bad_input_is_a_clear_error() {
     let dir = out_dir("planner-bad");
@@ -315,6 +396,37 @@ fn the_example_program_runs() {
             .unwrap();
         assert!(!out.status.success());
     }
+    // A readable plan with wrong figures: every violation listed, exit 1.
+    let (file, _, expected) = tampered_plan_file(&dir.join("wrong"));
+    let cap = app::load_scenario(&demo_path(), &FleetOverrides::default())
+        .unwrap()
+        .tasks()
+        .iter()
+        .map(|t| t.demand)
+        .sum::<i64>()
+        + 1;
+    let out = Command::new(&exe)
+        .args(["check", "instances/demo-town.json"])
+        .arg(&file)
+        .args(["--capacity", &cap.to_string()])
+        .args(["--shift-limit", "none", "--max-trucks", "none"])
+        .current_dir(root)
+        .output()
+        .unwrap();
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(1), "{stdout}");
+    for v in &expected {
+        assert!(stdout.contains(&format!("  - {v}\n")), "{v}\n{stdout}");
+    }
+    assert!(stdout.contains("3 problem(s)"), "{stdout}");
+    // An unreadable plan file: exit 2.
+    let out = Command::new(&exe)
+        .args(["check", "instances/demo-town.json"])
+        .arg(dir.join("no-such-plan.json"))
+        .current_dir(root)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
     let out = Command::new(&exe).arg("--bogus").output().unwrap();
     assert_eq!(out.status.code(), Some(2));
 }

@@ -24,8 +24,8 @@ fn greedy(inst: &Instance, dist: &Distances) -> Plan {
             let mut r = r.clone();
             r.push(Visit::new(i, d));
             let (load, cost, time) = evaluate(inst, dist, &r);
-            let ok = load <= inst.fleet().capacity
-                && inst.fleet().shift_limit.map_or(true, |s| time <= s);
+            let ok =
+                load <= inst.fleet().capacity && inst.fleet().shift_limit.is_none_or(|s| time <= s);
             ok.then_some(cost)
         };
         let cur = routes.last().unwrap();

@@ -29,7 +29,10 @@ planner: plan the routes of a street-service fleet
 USAGE:
     planner [SCENARIO] [OPTIONS]        plan a scenario and write the reports
     planner check SCENARIO PLAN [FLEET OPTIONS]
-                                        re-verify a plan file against a scenario
+                                        re-verify a plan file against a scenario:
+                                        lists every problem found; exit code 0
+                                        when valid, 1 on problems, 2 when a file
+                                        cannot be read as a plan of the scenario
 
 SCENARIO is our JSON scenario file or a research-format .dat file
 (default: instances/demo-town.json).

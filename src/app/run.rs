@@ -7,7 +7,7 @@ use std::sync::Arc;
 
 use crate::check::{check_plan, check_walks, Violation};
 use crate::demo::{town, TownSpec};
-use crate::io::plan_json::{read_plan_with, write_plan};
+use crate::io::plan_json::{read_plan_as_written, read_plan_with, write_plan};
 use crate::io::{read_dat_file, read_scenario, read_scenario_file};
 use crate::model::Instance;
 use crate::paths::Distances;
@@ -188,7 +188,8 @@ pub fn run_plan(opts: &PlanOptions, hooks: Hooks<'_>) -> Result<PlanRun, AppErro
 /// What re-verifying a plan file found.
 #[derive(Debug)]
 pub struct CheckRun {
-    /// The plan read.
+    /// The plan as the file states it ([`read_plan_as_written`]): stated
+    /// loads and costs, recomputed route times.
     pub plan: Plan,
     /// Every violation found (empty when the plan is valid).
     pub violations: Vec<Violation>,
@@ -196,6 +197,15 @@ pub struct CheckRun {
 
 /// Reads `plan_file` against `scenario` and checks it with the independent
 /// checker (plan and explicit walks).
+///
+/// The plan file is read with [`read_plan_as_written`], which refuses only a
+/// file that is not a plan of the scenario (bad JSON or schema, another
+/// instance, a service naming no required link or not its two ends): that
+/// is an `Err` ([`AppError::Input`]). Everything else wrong with a readable
+/// file (a street served twice or not at all, a wrong stated load, route
+/// cost or total, the fleet limits) is listed in
+/// [`CheckRun::violations`], all of it, not only the first problem. The
+/// walks are checked only when the plan itself passes.
 pub fn run_check(
     scenario: &Path,
     plan_file: &Path,
@@ -210,7 +220,7 @@ pub fn run_check(
         })
     })?;
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
-    let plan = read_plan_with(&text, &name, &inst, &dist).map_err(AppError::Input)?;
+    let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let violations = match check_plan(&inst, &plan) {
         Err(v) => v,
         Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),

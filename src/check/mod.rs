@@ -388,7 +388,7 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
         done[v] = true;
         for &(w, lc, lt) in &adj[v] {
             let cand = (c.saturating_add(lc), t.saturating_add(lt));
-            if !done[w] && best[w].map_or(true, |b| cand < b) {
+            if !done[w] && best[w].is_none_or(|b| cand < b) {
                 best[w] = Some(cand);
                 heap.push(Reverse((cand.0, cand.1, w)));
             }

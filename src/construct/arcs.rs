@@ -248,7 +248,7 @@ impl ArcMatrix {
         let (c, t, l) = self.route_eval(arcs);
         c < BIG as i64
             && l <= self.capacity
-            && self.shift.map_or(true, |s| t <= s)
+            && self.shift.is_none_or(|s| t <= s)
             && arcs.iter().all(|&a| self.allowed[a as usize])
     }
 

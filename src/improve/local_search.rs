@@ -312,7 +312,7 @@ impl<'m> LocalSearch<'m> {
         }
         if filled && self.empty_route().is_none() {
             let used = self.routes.len();
-            if self.m.max_routes.map_or(true, |k| used < k) {
+            if self.m.max_routes.is_none_or(|k| used < k) {
                 self.routes.push(RouteData {
                     arcs: vec![self.m.depot, self.m.depot],
                     ..Default::default()
@@ -349,7 +349,7 @@ impl<'m> LocalSearch<'m> {
             .filter(|&r| self.routes[r].arcs.len() == 2)
             .collect();
         let used = self.routes.len() - empties.len();
-        let want = usize::from(self.m.max_routes.map_or(true, |k| used < k));
+        let want = usize::from(self.m.max_routes.is_none_or(|k| used < k));
         if empties.len() == want {
             return;
         }
@@ -386,7 +386,7 @@ impl<'m> LocalSearch<'m> {
         for r in &self.routes {
             let len = r.arcs.len();
             total += r.pre[len - 1].pd + r.pre[len - 1].ps;
-            ok &= r.load <= self.m.capacity && self.m.shift.map_or(true, |s| r.time <= s);
+            ok &= r.load <= self.m.capacity && self.m.shift.is_none_or(|s| r.time <= s);
         }
         (total, ok)
     }

@@ -40,7 +40,7 @@ pub fn merge_split_routes<R: Rng>(
             .map(|&a| ArcMatrix::task(a))
             .collect();
         if let Ok(s) = split_bounded(m, &order, spare) {
-            if best.as_ref().map_or(true, |b| s.cost < b.0) {
+            if best.as_ref().is_none_or(|b| s.cost < b.0) {
                 best = Some((s.cost, s.routes));
             }
         }

@@ -6,7 +6,7 @@ pub mod plan_json;
 pub mod scenario;
 
 pub use dat::{read_dat, read_dat_file};
-pub use plan_json::{read_plan, write_plan};
+pub use plan_json::{read_plan, read_plan_as_written, write_plan};
 pub use scenario::{read_scenario, read_scenario_file, write_scenario};
 
 /// Largest cost, time, demand or capacity the readers accept (2^40, about

@@ -34,19 +34,27 @@
 //!   truck drives a shortest deadhead path.
 //! - `load`: the route's total demand; `cost`: its service plus deadhead cost.
 //!
-//! [`read_plan`] checks that every `(from, to, link)` is a required link
-//! served in an allowed direction, that no link is served twice, that the
-//! instance name matches, and that every stated cost and load equals the
-//! recomputed one; errors name the file and, for services, the line.
-//! Whether every task is served and routes respect capacity is the job of
-//! [`crate::check`].
+//! Two readers; errors of both name the file and, for services, the line.
+//!
+//! - [`read_plan`] (and [`read_plan_with`]) is strict: it checks that every
+//!   `(from, to, link)` is a required link served in an allowed direction,
+//!   that no link is served twice, that the instance name matches, and that
+//!   every stated cost and load equals the recomputed one. Whether every task
+//!   is served and routes respect the fleet is left to [`crate::check`].
+//! - [`read_plan_as_written`] checks only the structure (JSON syntax and
+//!   schema, the instance name, and that each service names a required link
+//!   and the two ends of that link) and returns the plan with the figures
+//!   the file states, so that [`crate::check::check_plan`] can list every
+//!   semantic problem at once: a link served twice or not at all, a service
+//!   against its allowed direction, a wrong load, route cost or total, the
+//!   fleet limits.
 
 use serde::Deserialize;
 
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
-use crate::plan::{Plan, Visit};
+use crate::plan::{evaluate, Plan, Route, Visit};
 
 /// Writes a plan as JSON (schema in the module docs).
 pub fn write_plan(inst: &Instance, plan: &Plan, lower_bound: Option<Cost>) -> String {
@@ -124,8 +132,17 @@ pub fn read_plan(text: &str, file: &str, inst: &Instance) -> Result<Plan> {
     read_plan_with(text, file, inst, &dist)
 }
 
-/// [`read_plan`] with precomputed distances.
-pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances) -> Result<Plan> {
+/// Reads the structure of a plan file: the file's plan and the visits of
+/// each of its routes (empty routes kept). `strict` refuses a service
+/// against its allowed direction and a link served twice; otherwise the
+/// first becomes a [`Dir::Backward`] visit and the second a repeated visit,
+/// both left to the checker.
+fn parse(
+    text: &str,
+    file: &str,
+    inst: &Instance,
+    strict: bool,
+) -> Result<(FilePlan, Vec<Vec<Visit>>)> {
     let fp: FilePlan = serde_json::from_str(text).map_err(|e| {
         Error::parse(
             file,
@@ -193,12 +210,12 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
             let id = |j: usize| net.junctions[j].id;
             let dir = if (s.from, s.to) == (id(t.tail), id(t.head)) {
                 Dir::Forward
-            } else if (s.from, s.to) == (id(t.head), id(t.tail)) && t.either {
+            } else if (s.from, s.to) == (id(t.head), id(t.tail)) && (t.either || !strict) {
                 Dir::Backward
             } else {
                 return Err(bad());
             };
-            if served[ti] {
+            if strict && served[ti] {
                 return Err(Error::parse(
                     file,
                     line,
@@ -214,6 +231,12 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         }
         routes.push(visits);
     }
+    Ok((fp, routes))
+}
+
+/// [`read_plan`] with precomputed distances.
+pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances) -> Result<Plan> {
+    let (fp, routes) = parse(text, file, inst, true)?;
     let plan = Plan::from_visits(inst, dist, routes.clone());
     // Stated values must match (empty routes are dropped by from_visits).
     let mut pi = 0;
@@ -253,4 +276,53 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         }
     }
     Ok(plan)
+}
+
+/// Reads a plan file checking only its structure, and keeps the figures it
+/// states, for re-checking it with [`crate::check::check_plan`] (which then
+/// reports every problem, where [`read_plan`] stops at the first).
+///
+/// Read errors are limited to what makes the file unreadable as a plan of
+/// `inst`: JSON syntax and schema, a `format` other than `arcwright-plan`,
+/// another instance name, and a service whose `link` is not a required link
+/// or whose `(from, to)` are not the two ends of that link. Everything else
+/// is kept as written for the checker to judge:
+///
+/// - routes keep the file's order, empty routes included, so the checker's
+///   route numbers are the file's;
+/// - a link served twice gives two visits of its task; a service from the
+///   link's `to` end to its `from` end gives a [`Dir::Backward`] visit even
+///   when only forward service is allowed;
+/// - each route's `load` and `cost` and the plan's `cost` are the stated
+///   ones; a figure the file leaves out is recomputed (with `dist`), so that
+///   only stated figures can be found wrong;
+/// - the file has no route times: [`Route::time`] is recomputed with `dist`
+///   (service time plus driving time along the least-cost legs).
+pub fn read_plan_as_written(
+    text: &str,
+    file: &str,
+    inst: &Instance,
+    dist: &Distances,
+) -> Result<Plan> {
+    let (fp, visits) = parse(text, file, inst, false)?;
+    let mut computed_total: Cost = 0;
+    let routes: Vec<Route> = fp
+        .routes
+        .iter()
+        .zip(visits)
+        .map(|(r, visits)| {
+            let (load, cost, time) = evaluate(inst, dist, &visits);
+            computed_total = computed_total.saturating_add(cost);
+            Route {
+                visits,
+                load: r.load.unwrap_or(load),
+                cost: r.cost.unwrap_or(cost),
+                time,
+            }
+        })
+        .collect();
+    Ok(Plan {
+        routes,
+        cost: fp.cost.unwrap_or(computed_total),
+    })
 }

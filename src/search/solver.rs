@@ -316,7 +316,7 @@ impl<'a> Solver<'a> {
         for isl in &islands {
             fewest = fewest.min(isl.fewest);
             if let Some(b) = &isl.best {
-                if best.as_ref().map_or(true, |x| b.cost < x.0) {
+                if best.as_ref().is_none_or(|x| b.cost < x.0) {
                     best = Some((b.cost, b.routes.clone(), isl.best_time));
                 }
             }
@@ -541,7 +541,7 @@ impl Island {
     }
 
     fn offer(&mut self, ctx: &Ctx, ind: Individual) {
-        if self.best.as_ref().map_or(true, |b| ind.cost < b.cost) {
+        if self.best.as_ref().is_none_or(|b| ind.cost < b.cost) {
             self.best = Some(ind.clone());
             self.best_time = ctx.start.elapsed();
             self.since_improvement = 0;
@@ -580,7 +580,7 @@ impl Island {
     }
 
     fn receive(&mut self, routes: &[Vec<u32>], cost: i64) {
-        if self.best.as_ref().map_or(true, |b| cost < b.cost) {
+        if self.best.as_ref().is_none_or(|b| cost < b.cost) {
             let ind = Individual::new(self.pop_n(routes), routes.to_vec(), cost);
             if !self.pop.has_clone(&ind) {
                 self.pop.add(ind.clone());
