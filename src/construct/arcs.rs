@@ -119,7 +119,10 @@ impl ArcMatrix {
         let dense = arcs <= DENSE_ARCS;
         // Row offset of each arc's end and column of each arc's start.
         let (kstart, kend_row): (Vec<u32>, Vec<usize>) = if dense {
-            ((0..arcs as u32).collect(), (0..arcs).map(|a| a * arcs).collect())
+            (
+                (0..arcs as u32).collect(),
+                (0..arcs).map(|a| a * arcs).collect(),
+            )
         } else {
             (
                 start.iter().map(|&v| index(v)).collect(),

@@ -24,6 +24,10 @@
 //! shift limit (first improvement). Pairs whose routes did not change since
 //! `u` was last examined are skipped.
 
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
+use std::time::Instant;
+
 use rand::seq::SliceRandom;
 use rand::Rng;
 
@@ -37,7 +41,9 @@ pub const DEFAULT_NEIGHBOURS: usize = 8;
 
 /// For each task, its `k` nearest other tasks by [`ArcMatrix::task_gap`].
 pub fn neighbour_lists(m: &ArcMatrix, k: usize) -> Vec<Vec<u32>> {
+    use rayon::prelude::*;
     (0..m.n)
+        .into_par_iter()
         .map(|u| {
             let mut v: Vec<(i64, u32)> = (0..m.n)
                 .filter(|&v| v != u)
@@ -133,6 +139,8 @@ pub struct LocalSearch<'m> {
     pub moves: u64,
     pen_load: i64,
     pen_time: i64,
+    deadline: Option<Instant>,
+    stop: Option<Arc<AtomicBool>>,
 }
 
 const INFEASIBLE: i64 = i64::MAX / 4;
@@ -152,6 +160,8 @@ impl<'m> LocalSearch<'m> {
             last_tested: vec![0; m.n],
             clock: 1,
             order: (0..m.n).collect(),
+            deadline: None,
+            stop: None,
             moves: 0,
             pen_load: 0,
             pen_time: 0,
@@ -391,6 +401,22 @@ impl<'m> LocalSearch<'m> {
         (total, ok)
     }
 
+    /// Makes [`LocalSearch::run`] return early (with the routes as they are
+    /// then) once `deadline` has passed or `stop` is raised. Checked every
+    /// few hundred tasks, so only the stop of the search depends on time.
+    pub fn interrupt_at(&mut self, deadline: Option<Instant>, stop: Option<Arc<AtomicBool>>) {
+        self.deadline = deadline;
+        self.stop = stop;
+    }
+
+    fn interrupted(&self) -> bool {
+        self.deadline.is_some_and(|d| Instant::now() >= d)
+            || self
+                .stop
+                .as_ref()
+                .is_some_and(|f| f.load(Ordering::Relaxed))
+    }
+
     /// Improves `routes` until no move improves the (penalised) cost; returns
     /// the routes, their true cost and whether all are feasible.
     pub fn run<R: Rng>(&mut self, routes: &[Vec<u32>], rng: &mut R) -> (Vec<Vec<u32>>, i64, bool) {
@@ -404,9 +430,13 @@ impl<'m> LocalSearch<'m> {
         let mut order = std::mem::take(&mut self.order);
         order.shuffle(rng);
         let mut pass = 0;
-        loop {
+        let watch = self.deadline.is_some() || self.stop.is_some();
+        'descent: loop {
             let mut improved = false;
-            for &u in &order {
+            for (k, &u) in order.iter().enumerate() {
+                if watch && k % 256 == 255 && self.interrupted() {
+                    break 'descent;
+                }
                 let tested = self.last_tested[u];
                 self.last_tested[u] = self.clock;
                 let nb = self.neigh[u].len();

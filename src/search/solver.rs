@@ -557,11 +557,19 @@ impl Island {
         let all: Vec<usize> = (0..m.n).collect();
         let p = Params::default();
         let mut tours: Vec<Vec<usize>> = Vec::new();
+        ls.interrupt_at(ctx.deadline, ctx.stop.clone());
         for rule in RULES {
             let r = path_scan::<ChaCha12Rng>(m, &all, rule, None, 0, false);
+            self.fallback(m, &r);
             tours.push(giant::of_routes(&r));
+            if ctx.should_stop() {
+                break;
+            }
         }
         for _ in 0..3 {
+            if ctx.should_stop() {
+                break;
+            }
             let r = path_scan(m, &all, Rule::Random, Some(&mut self.rng), 10, false);
             tours.push(giant::of_routes(&r));
         }
@@ -577,6 +585,20 @@ impl Island {
             }
         }
         self.initialised = true;
+    }
+
+    /// Keeps a feasible construction as the best plan while there is none
+    /// yet (so that a stop during the first local search still has a plan);
+    /// the population itself only receives educated individuals.
+    fn fallback(&mut self, m: &ArcMatrix, routes: &[Vec<u32>]) {
+        if self.best.is_some() || !routes.iter().all(|r| m.route_feasible(r)) {
+            return;
+        }
+        if m.max_routes.is_some_and(|k| routes.len() > k) {
+            return;
+        }
+        let cost = routes.iter().map(|r| m.route_eval(r).0).sum();
+        self.best = Some(Individual::new(m.n, routes.to_vec(), cost));
     }
 
     fn receive(&mut self, routes: &[Vec<u32>], cost: i64) {
@@ -598,6 +620,7 @@ impl Island {
     fn run(&mut self, ctx: &Ctx, n: u64) -> u64 {
         let m = ctx.m;
         let mut ls = LocalSearch::new(m, ctx.neigh);
+        ls.interrupt_at(ctx.deadline, ctx.stop.clone());
         let mut done = 0;
         while done < n {
             if ctx.should_stop() || self.best.as_ref().is_some_and(|b| b.cost <= ctx.stop_at) {
