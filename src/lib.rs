@@ -12,6 +12,25 @@
 //! [`search`] (the fleet solver), [`demo`] and [`report`] (demo towns and
 //! outputs for people), and [`app`] (the logic of the `planner` example
 //! program).
+//!
+//! ```
+//! use arcwright::model::{Fleet, Instance, Network};
+//! use arcwright::{check::check_plan, Solver};
+//!
+//! // Four streets around a block, all to be served, trucks of 5 bins.
+//! let mut net = Network::with_junctions(4);
+//! net.add_required_edge(0, 1, 10, 3); // from, to, cost, demand
+//! net.add_required_edge(1, 2, 12, 2);
+//! net.add_required_edge(2, 3, 10, 3);
+//! net.add_required_edge(3, 0, 12, 2);
+//! let inst = Instance::new("block", net, Fleet::with_capacity(5), 0).unwrap();
+//!
+//! let sol = Solver::new(&inst).seed(1).max_iterations(100).solve().unwrap();
+//! assert!(check_plan(&inst, &sol.plan).is_ok());
+//! assert_eq!(sol.plan.visits(), 4);
+//! assert!(sol.plan.routes.len() >= 2); // 10 bins need two trucks
+//! assert!(sol.cost >= sol.lower_bound.value);
+//! ```
 
 pub mod app;
 pub mod bounds;
@@ -30,3 +49,8 @@ pub mod search;
 
 pub use error::{Error, Result};
 pub use search::{Progress, Solution, SolveError, Solver, Stats};
+
+/// The README's Rust snippets, compiled (and run, unless marked `no_run`) as doctests.
+#[cfg(doctest)]
+#[doc = include_str!("../README.md")]
+pub struct ReadmeDoctests;
