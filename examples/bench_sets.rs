@@ -20,39 +20,22 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::time::Duration;
 
-use arcwright::io::{read_dat_file, read_plan, write_plan};
+use arcwright::io::{read_dat_file, read_plan, write_plan, Reference};
 use arcwright::Solver;
 
-struct Reference {
-    set: String,
-    lower_bound: i64,
-    best_known: i64,
-}
-
+/// The published values by instance name; none when the file is absent.
 fn read_reference(path: &Path) -> HashMap<String, Reference> {
-    let mut out = HashMap::new();
-    let Ok(text) = std::fs::read_to_string(path) else {
-        eprintln!("no reference file at {}", path.display());
-        return out;
-    };
-    for line in text.lines().skip(1) {
-        let f: Vec<&str> = line.splitn(7, ',').collect();
-        if f.len() < 6 {
-            continue;
+    match arcwright::io::read_reference(path) {
+        Ok(rows) => rows.into_iter().map(|r| (r.instance.clone(), r)).collect(),
+        Err(arcwright::Error::Io { .. }) => {
+            eprintln!("no reference file at {}", path.display());
+            HashMap::new()
         }
-        let (Ok(lb), Ok(bk)) = (f[3].parse(), f[4].parse()) else {
-            continue;
-        };
-        out.insert(
-            f[1].to_string(),
-            Reference {
-                set: f[0].to_string(),
-                lower_bound: lb,
-                best_known: bk,
-            },
-        );
+        Err(e) => {
+            eprintln!("{e}");
+            std::process::exit(2);
+        }
     }
-    out
 }
 
 struct Row {

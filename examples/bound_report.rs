@@ -13,6 +13,7 @@ use std::time::{Duration, Instant};
 
 use arcwright::bounds::{all_bounds, bound};
 use arcwright::io::dat::read_dat_file;
+use arcwright::io::read_reference;
 use arcwright::paths::Distances;
 use arcwright::postman::rural::{rural_lower_bound, rural_tour};
 
@@ -21,18 +22,21 @@ type Timings = Vec<(&'static str, Duration)>;
 
 fn main() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
-    let Ok(csv) = std::fs::read_to_string(root.join("reference.csv")) else {
-        println!("skipped: {} not found", root.display());
-        return;
+    let refs = match read_reference(root.join("reference.csv")) {
+        Ok(refs) => refs,
+        Err(arcwright::Error::Io { .. }) => {
+            println!("skipped: {} not found", root.display());
+            return;
+        }
+        Err(e) => panic!("{e}"),
     };
     // (set, bound) -> (sum of ratios, count, equal to best known)
     let mut stats: BTreeMap<(String, &'static str), (f64, usize, usize)> = BTreeMap::new();
     // set -> (sum of tour / bound, count, equal)
     let mut rural: BTreeMap<String, (f64, usize, usize)> = BTreeMap::new();
     let mut largest: Option<(usize, String, Timings)> = None;
-    for line in csv.lines().skip(1) {
-        let f: Vec<&str> = line.splitn(7, ',').collect();
-        let (set, name, file, best) = (f[0], f[1], f[2], f[4].parse::<i64>().unwrap());
+    for r in &refs {
+        let (set, name, file, best) = (&r.set, &r.instance, &r.file, r.best_known);
         let dat = read_dat_file(root.join(file)).expect("readable instance");
         let inst = dat.instance;
         let dist = Distances::new(&inst).expect("distances");

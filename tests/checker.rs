@@ -521,13 +521,10 @@ fn messages_name_route_task_link_and_numbers() {
 
 /// Lower bounds from ../shared/instances/reference.csv (CARPData.jl compilation).
 fn lower_bounds(root: &Path) -> std::collections::HashMap<String, i64> {
-    let text = std::fs::read_to_string(root.join("reference.csv")).unwrap();
-    text.lines()
-        .skip(1)
-        .map(|l| {
-            let f: Vec<&str> = l.split(',').collect();
-            (f[1].to_string(), f[3].parse().unwrap())
-        })
+    arcwright::io::read_reference(root.join("reference.csv"))
+        .unwrap()
+        .into_iter()
+        .map(|r| (r.instance, r.lower_bound))
         .collect()
 }
 

@@ -155,12 +155,11 @@ fn research_file_end_to_end_without_maps() {
     assert_eq!(csv_total(&dir, plan.routes.len()), plan.cost);
     // No valid plan is cheaper than the published lower bound listed in
     // ../shared/instances/reference.csv (its `source` column names the compilation).
-    let reference = std::fs::read_to_string(shared("reference.csv").unwrap()).unwrap();
+    let reference = arcwright::io::read_reference(shared("reference.csv").unwrap()).unwrap();
     let bound: i64 = reference
-        .lines()
-        .find(|l| l.starts_with("gdb,gdb1,"))
-        .and_then(|l| l.split(',').nth(3))
-        .and_then(|v| v.parse().ok())
+        .iter()
+        .find(|r| r.set == "gdb" && r.instance == "gdb1")
+        .map(|r| r.lower_bound)
         .expect("gdb1 in reference.csv");
     assert!(
         plan.cost >= bound,

@@ -9,7 +9,7 @@ use std::path::PathBuf;
 
 use arcwright::construct::arcs::ArcMatrix;
 use arcwright::construct::split::{split, split_bounded, SplitFailure};
-use arcwright::io::read_dat_file;
+use arcwright::io::{read_dat_file, read_reference};
 use arcwright::model::{Dir, Fleet, Instance, Network};
 use arcwright::paths::Distances;
 use arcwright::plan::{self, Plan};
@@ -27,16 +27,10 @@ fn shared() -> Option<PathBuf> {
 
 /// instance -> (lower bound, best known, proven optimal)
 fn reference(dir: &std::path::Path) -> HashMap<String, (i64, i64, bool)> {
-    let text = std::fs::read_to_string(dir.join("reference.csv")).unwrap();
-    text.lines()
-        .skip(1)
-        .filter_map(|l| {
-            let f: Vec<&str> = l.splitn(7, ',').collect();
-            Some((
-                f[1].to_string(),
-                (f[3].parse().ok()?, f[4].parse().ok()?, f[5] == "yes"),
-            ))
-        })
+    read_reference(dir.join("reference.csv"))
+        .unwrap()
+        .into_iter()
+        .map(|r| (r.instance, (r.lower_bound, r.best_known, r.proven_optimal)))
         .collect()
 }
 
@@ -65,18 +59,7 @@ fn verify(inst: &Instance, plan: &Plan) {
         }
         // The explicit walk costs the same as the route.
         let walk = plan::walk(inst, &dist, &r.visits);
-        let walk_cost: i64 = walk
-            .iter()
-            .map(|s| {
-                let l = &inst.network().links[s.link];
-                if s.serve {
-                    l.service.as_ref().unwrap().cost
-                } else {
-                    l.cost
-                }
-            })
-            .sum();
-        assert_eq!(walk_cost, r.cost);
+        assert_eq!(plan::walk_cost(inst, &walk), r.cost);
         total += cost;
     }
     assert!(

@@ -1,12 +1,14 @@
 //! Readers and writers: the public research text format, our JSON scenario
-//! format, and plan files.
+//! format, plan files, and the table of published benchmark values.
 
 pub mod dat;
 pub mod plan_json;
+pub mod reference;
 pub mod scenario;
 
 pub use dat::{read_dat, read_dat_file};
 pub use plan_json::{read_plan, read_plan_as_written, write_plan};
+pub use reference::{parse_reference, read_reference, Reference};
 pub use scenario::{read_scenario, read_scenario_file, write_scenario};
 
 /// Largest cost, time, demand or capacity the readers accept (2^40, about

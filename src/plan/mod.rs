@@ -172,3 +172,28 @@ pub fn walk(inst: &Instance, dist: &Distances, visits: &[Visit]) -> Vec<Step> {
     }
     steps
 }
+
+/// Total cost of an explicit walk: each served step costs the service cost of
+/// its link, each deadheaded step the link's driving cost.
+///
+/// # Panics
+///
+/// If a step names a link outside the network, or serves a link that has no
+/// service ([`crate::check::check_walks`] reports both as violations; walks built by
+/// [`walk`] have neither).
+pub fn walk_cost(inst: &Instance, steps: &[Step]) -> Cost {
+    steps
+        .iter()
+        .map(|s| {
+            let l = &inst.network().links[s.link];
+            if s.serve {
+                l.service
+                    .as_ref()
+                    .expect("a served step is on a required link")
+                    .cost
+            } else {
+                l.cost
+            }
+        })
+        .sum()
+}
