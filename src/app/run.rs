@@ -212,13 +212,7 @@ pub fn run_check(
     fleet: &FleetOverrides,
 ) -> Result<CheckRun, AppError> {
     let inst = load_scenario(scenario, fleet)?;
-    let name = plan_file.display().to_string();
-    let text = std::fs::read_to_string(plan_file).map_err(|source| {
-        AppError::Input(crate::Error::Io {
-            file: name.clone(),
-            source,
-        })
-    })?;
+    let (name, text) = crate::io::read_text(plan_file).map_err(AppError::Input)?;
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let violations = match check_plan(&inst, &plan) {

@@ -17,3 +17,13 @@ pub const MAX_NUMBER: crate::model::Cost = 1 << 40;
 
 /// Largest number of junctions (vertices) the readers accept (2^24).
 pub const MAX_JUNCTIONS: usize = 1 << 24;
+
+/// Reads a whole text file; returns the name used in errors (the path as
+/// given) and the text, or an [`crate::Error::Io`] naming the file.
+pub fn read_text(path: &std::path::Path) -> crate::Result<(String, String)> {
+    let name = path.display().to_string();
+    match std::fs::read_to_string(path) {
+        Ok(text) => Ok((name, text)),
+        Err(source) => Err(crate::Error::Io { file: name, source }),
+    }
+}

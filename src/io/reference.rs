@@ -56,12 +56,7 @@ pub struct Reference {
 
 /// Reads the table from a file. The file name in errors is `path` as given.
 pub fn read_reference(path: impl AsRef<Path>) -> Result<Vec<Reference>> {
-    let path = path.as_ref();
-    let name = path.display().to_string();
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        file: name.clone(),
-        source,
-    })?;
+    let (name, text) = super::read_text(path.as_ref())?;
     parse_reference(&text, &name)
 }
 

@@ -330,12 +330,7 @@ impl Scan<'_> {
 
 /// Reads a scenario file from disk.
 pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
-    let path = path.as_ref();
-    let name = path.display().to_string();
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        file: name.clone(),
-        source,
-    })?;
+    let (name, text) = super::read_text(path.as_ref())?;
     read_scenario(&text, &name)
 }
 
