@@ -14,7 +14,7 @@ use rand_chacha::ChaCha8Rng;
 fn points(n: usize) -> Vec<(i64, i64)> {
     let mut r = ChaCha8Rng::seed_from_u64(n as u64);
     (0..n)
-        .map(|_| (r.gen_range(0..10_000), r.gen_range(0..10_000)))
+        .map(|_| (r.random_range(0..10_000), r.random_range(0..10_000)))
         .collect()
 }
 

@@ -115,11 +115,11 @@ struct Names {
 impl Names {
     fn pick(&mut self, rng: &mut ChaCha8Rng, kinds: &[&str]) -> String {
         for attempt in 0.. {
-            let a = NAME_FIRST[rng.gen_range(0..NAME_FIRST.len())];
-            let b = NAME_SECOND[rng.gen_range(0..NAME_SECOND.len())];
-            let k = kinds[rng.gen_range(0..kinds.len())];
+            let a = NAME_FIRST[rng.random_range(0..NAME_FIRST.len())];
+            let b = NAME_SECOND[rng.random_range(0..NAME_SECOND.len())];
+            let k = kinds[rng.random_range(0..kinds.len())];
             // Half the names are compounds ("Hazelmead Rise"), half plain ("Hazel Rise").
-            let name = if rng.gen_bool(0.5) || attempt > 20 {
+            let name = if rng.random_bool(0.5) || attempt > 20 {
                 format!("{a}{b} {k}")
             } else {
                 format!("{a} {k}")
@@ -181,7 +181,7 @@ impl Builder {
     ) -> usize {
         let length = length.max(1.0);
         let service = frontage.map(|f| {
-            let bins = ((length / f) * self.rng.gen_range(0.6..1.4))
+            let bins = ((length / f) * self.rng.random_range(0.6..1.4))
                 .round()
                 .max(1.0);
             ServiceSpec {
@@ -225,8 +225,8 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     let mut grid = vec![vec![0usize; n]; n]; // grid[row][col], row 0 at the south
     for (r, row) in grid.iter_mut().enumerate() {
         for (c, cell) in row.iter_mut().enumerate() {
-            let jx = b.rng.gen_range(-8.0..8.0);
-            let jy = b.rng.gen_range(-8.0..8.0);
+            let jx = b.rng.random_range(-8.0..8.0);
+            let jy = b.rng.random_range(-8.0..8.0);
             let x = c as f64 * BLOCK - half + jx;
             let y = r as f64 * BLOCK - half + jy;
             *cell = b.junction(x, y);
@@ -237,8 +237,8 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     let oneway_rows: Vec<bool> = (0..n).map(|r| r > 0 && r + 1 < n && r % 3 == 1).collect();
     let mut two_sided: Vec<usize> = Vec::new();
     if n >= 4 {
-        two_sided.push(1 + b.rng.gen_range(0..(n - 2) / 2));
-        let second = n - 2 - b.rng.gen_range(0..(n - 2) / 2);
+        two_sided.push(1 + b.rng.random_range(0..(n - 2) / 2));
+        let second = n - 2 - b.rng.random_range(0..(n - 2) / 2);
         if second != two_sided[0] {
             two_sided.push(second);
         }
@@ -317,9 +317,12 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     for k in 0..spec.rings {
         let radius = corner + 110.0 + RING_GAP * k as f64;
         let count = ((2.0 * PI * radius / RING_STEP).round() as usize).max(12);
-        let phase = b.rng.gen_range(0.0..2.0 * PI);
-        let (wobble, lobes) = (b.rng.gen_range(8.0..25.0), b.rng.gen_range(3..7) as f64);
-        let offset = b.rng.gen_range(0.0..2.0 * PI / count as f64);
+        let phase = b.rng.random_range(0.0..2.0 * PI);
+        let (wobble, lobes) = (
+            b.rng.random_range(8.0..25.0),
+            b.rng.random_range(3..7) as f64,
+        );
+        let offset = b.rng.random_range(0.0..2.0 * PI / count as f64);
         let mut ring = Vec::with_capacity(count);
         for i in 0..count {
             let a = offset + 2.0 * PI * i as f64 / count as f64;
@@ -329,7 +332,7 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         // Ring streets: crescents of 4 to 8 links, each with its own name.
         let mut i = 0;
         while i < count {
-            let len = b.rng.gen_range(4..=8).min(count - i);
+            let len = b.rng.random_range(4..=8).min(count - i);
             let name = b.names.pick(&mut b.rng, RING_KINDS);
             for s in i..i + len {
                 let (u, v) = (ring[s].0, ring[(s + 1) % count].0);
@@ -365,7 +368,7 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             let q = nearest(&b, &first, p);
             let len = b.straight(p, q) * 1.02;
             let name = b.names.pick(&mut b.rng, SPOKE_KINDS);
-            let required = b.rng.gen_bool(0.7);
+            let required = b.rng.random_bool(0.7);
             b.street(
                 p,
                 q,
@@ -381,7 +384,7 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     for k in 1..rings.len() {
         let (inner, outer) = (rings[k - 1].clone(), rings[k].clone());
         let every = 4;
-        let start = b.rng.gen_range(0..every);
+        let start = b.rng.random_range(0..every);
         for (i, &(p, _)) in inner.iter().enumerate() {
             if i % every != start {
                 continue;
@@ -409,12 +412,12 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     };
     let mut taken = HashSet::new();
     for _ in 0..spec.cul_de_sacs {
-        let mut p = base[b.rng.gen_range(0..base.len())];
+        let mut p = base[b.rng.random_range(0..base.len())];
         for _ in 0..10 {
             if !taken.contains(&p) {
                 break;
             }
-            p = base[b.rng.gen_range(0..base.len())];
+            p = base[b.rng.random_range(0..base.len())];
         }
         if !taken.insert(p) {
             continue;
@@ -423,9 +426,9 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         let (px, py) = b.xy(p);
         let r = (px * px + py * py).sqrt().max(1.0);
         let (ux, uy) = (px / r, py / r);
-        let segs = b.rng.gen_range(1..=2);
+        let segs = b.rng.random_range(1..=2);
         let mut at = p;
-        let bend = b.rng.gen_range(-0.4..0.4);
+        let bend = b.rng.random_range(-0.4..0.4);
         for s in 1..=segs {
             let d = 55.0 * s as f64;
             let (bx, by) = (-uy * bend * d, ux * bend * d);

@@ -226,8 +226,8 @@ impl Population {
     /// Binary tournament on biased fitness.
     pub fn select<R: Rng>(&mut self, rng: &mut R) -> &Individual {
         let n = self.members.len();
-        let a = rng.gen_range(0..n);
-        let b = rng.gen_range(0..n);
+        let a = rng.random_range(0..n);
+        let b = rng.random_range(0..n);
         if self.members[a].biased <= self.members[b].biased {
             &self.members[a]
         } else {

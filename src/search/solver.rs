@@ -512,7 +512,7 @@ impl Island {
         if !ok {
             return None;
         }
-        if self.rng.gen_bool(MS_RATE) {
+        if self.rng.random_bool(MS_RATE) {
             let gain = merge_split(ctx.m, ctx.neigh, &mut routes, 3, &mut self.rng);
             if gain > 0 {
                 ls.set_penalties(0, 0);
