@@ -38,10 +38,10 @@ fn kernels(c: &mut Criterion) {
     c.bench_function("local search descent from a split, egl-e4-C", |b| {
         b.iter(|| {
             let mut r = ChaCha8Rng::seed_from_u64(2);
-            ls.run(black_box(&s.routes), &mut r).1
+            ls.run(black_box(&s.routes), &mut r).cost
         })
     });
-    let (routes, _, _) = ls.run(&s.routes, &mut rng);
+    let routes = ls.run(&s.routes, &mut rng).routes;
     let (count, _) = ls.scan_relocations(&routes);
     c.bench_function(
         &format!("evaluate {count} relocations (constant-time each), egl-e4-C"),

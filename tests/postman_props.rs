@@ -5,7 +5,7 @@ use arcwright::bounds::{all_bounds, bound};
 use arcwright::check::check_walks;
 use arcwright::model::{Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec};
 use arcwright::paths::{Distances, UNREACHABLE};
-use arcwright::plan::{evaluate, Visit};
+use arcwright::plan::{totals, Totals, Visit};
 use arcwright::postman::chinese::undirected_postman;
 use arcwright::postman::euler::{check_tour, euler_tour, is_eulerian};
 use arcwright::postman::rural::{rural_lower_bound, rural_tour};
@@ -157,7 +157,7 @@ proptest! {
         'plans: for routes in plans {
             let mut total = 0;
             for rt in routes.iter().filter(|rt| !rt.is_empty()) {
-                let (load, cost, time) = evaluate(&inst, &dist, rt);
+                let Totals { load, cost, time } = totals(&inst, &dist, rt);
                 prop_assert!(load <= cap);
                 prop_assert!(cost < UNREACHABLE);
                 if shift.is_some_and(|l| time > l) {

@@ -51,7 +51,7 @@ fn verify(inst: &Instance, plan: &Plan) {
             seen[v.task] += 1;
             assert!(inst.tasks()[v.task].allows(v.dir));
         }
-        let (load, cost, time) = plan::evaluate(inst, &dist, &r.visits);
+        let plan::Totals { load, cost, time } = plan::totals(inst, &dist, &r.visits);
         assert_eq!((load, cost, time), (r.load, r.cost, r.time));
         assert!(load <= inst.fleet().capacity, "overloaded route");
         if let Some(s) = inst.fleet().shift_limit {

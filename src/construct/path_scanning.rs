@@ -99,7 +99,7 @@ pub fn path_scan<R: Rng>(
                         continue;
                     }
                     let d = m.d(at, a);
-                    if d >= BIG as i64 {
+                    if d >= BIG {
                         continue;
                     }
                     if let Some(s) = shift {

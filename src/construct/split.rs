@@ -116,13 +116,13 @@ impl Labels {
                 }
             }
         }
-        if best_cheap.0 >= BIG as i64 {
+        if best_cheap.0 >= BIG {
             return None;
         }
         match m.shift {
             None => Some((best_cheap.0, false)),
             Some(s) if best_cheap.1 <= s => Some((best_cheap.0, false)),
-            Some(s) if best_quick.1 <= s && best_quick.0 < BIG as i64 => Some((best_quick.0, true)),
+            Some(s) if best_quick.1 <= s && best_quick.0 < BIG => Some((best_quick.0, true)),
             _ => None,
         }
     }

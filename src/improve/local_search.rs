@@ -126,6 +126,17 @@ struct RouteData {
     modified: u64,
 }
 
+/// The result of one descent of [`LocalSearch::run`].
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Descent {
+    /// The improved routes, as task arcs.
+    pub routes: Vec<Vec<u32>>,
+    /// Their true (unpenalised) total cost.
+    pub cost: i64,
+    /// Whether every route respects capacity and shift limit.
+    pub feasible: bool,
+}
+
 /// Reusable local-search engine.
 pub struct LocalSearch<'m> {
     m: &'m ArcMatrix,
@@ -419,7 +430,7 @@ impl<'m> LocalSearch<'m> {
 
     /// Improves `routes` until no move improves the (penalised) cost; returns
     /// the routes, their true cost and whether all are feasible.
-    pub fn run<R: Rng>(&mut self, routes: &[Vec<u32>], rng: &mut R) -> (Vec<Vec<u32>>, i64, bool) {
+    pub fn run<R: Rng>(&mut self, routes: &[Vec<u32>], rng: &mut R) -> Descent {
         self.load(routes);
         self.moves = 0;
         self.last_tested.iter_mut().for_each(|x| *x = 0);
@@ -469,8 +480,12 @@ impl<'m> LocalSearch<'m> {
         }
         self.order = order;
         self.ensure_empty();
-        let (c, ok) = self.cost();
-        (self.routes(), c, ok)
+        let (cost, feasible) = self.cost();
+        Descent {
+            routes: self.routes(),
+            cost,
+            feasible,
+        }
     }
 
     /// Loads `routes` and evaluates, without applying any, every relocation

@@ -223,6 +223,19 @@ impl Distances {
         })
     }
 
+    /// Whether these distances can serve `inst`: its yard and every street
+    /// end are keys, the junction count matches and times are kept when the
+    /// instance has them.
+    pub(crate) fn serves(&self, inst: &Instance) -> bool {
+        self.key_of.len() == inst.network().len()
+            && (self.time.is_some() || !inst.has_times())
+            && self.key_index(inst.depot()).is_some()
+            && inst
+                .tasks()
+                .iter()
+                .all(|t| self.key_index(t.tail).is_some() && self.key_index(t.head).is_some())
+    }
+
     /// The key junctions, sorted.
     pub fn keys(&self) -> &[usize] {
         &self.keys
