@@ -8,10 +8,11 @@
 //! Layout: [`model`] (network, fleet, tasks), [`io`] (readers and writers),
 //! [`paths`] (shortest deadhead paths), [`plan`] (routes and walks),
 //! [`check`] (independent plan checker), [`postman`] and [`bounds`]
-//! (single-tour routes and lower bounds), [`construct`], [`improve`] and
-//! [`search`] (the fleet solver), [`demo`] and [`report`] (demo towns and
-//! outputs for people), and [`app`] (the logic of the `planner` example
-//! program).
+//! (single-tour routes and lower bounds), [`search`] (the fleet solver,
+//! [`Solver`]; its internals `construct` and `improve` are crate-private,
+//! public only with the non-default `internals` feature for the kernel
+//! benchmarks), [`demo`] and [`report`] (demo towns and outputs for people),
+//! and [`app`] (the logic of the `planner` example program).
 //!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
@@ -32,13 +33,34 @@
 //! assert!(sol.cost >= sol.lower_bound.value);
 //! ```
 
+/// Declares a solver-internal module: crate-private, public only with the
+/// non-default `internals` feature (for the kernel benchmarks). Nothing in it
+/// is a stable API.
+macro_rules! internal_mod {
+    ($(#[$attr:meta])* $name:ident) => {
+        $(#[$attr])*
+        #[cfg(feature = "internals")]
+        pub mod $name;
+        $(#[$attr])*
+        #[cfg(not(feature = "internals"))]
+        #[allow(dead_code, unreachable_pub)] // parts only the benchmarks use
+        pub(crate) mod $name;
+    };
+}
+
 pub mod app;
 pub mod bounds;
 pub mod check;
-pub mod construct;
+internal_mod!(
+    /// Solver internals: the arc matrix, Path-Scanning, giant tours and split.
+    construct
+);
 pub mod demo;
 pub mod error;
-pub mod improve;
+internal_mod!(
+    /// Solver internals: local search and Merge-Split.
+    improve
+);
 pub mod io;
 pub mod model;
 pub mod paths;

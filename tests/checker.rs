@@ -3,6 +3,8 @@
 //! violation, and accepts one-route-per-task plans on the gdb set (whose cost
 //! must not undercut the published lower bounds in ../shared/instances/reference.csv).
 
+mod common;
+
 use std::path::Path;
 
 use arcwright::check::{check_plan, check_walks, At, Violation};
@@ -530,11 +532,9 @@ fn lower_bounds(root: &Path) -> std::collections::HashMap<String, i64> {
 
 #[test]
 fn one_route_per_task_on_gdb() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
-    if !root.is_dir() {
-        println!("SKIPPED: {} is absent", root.display());
+    let Some(root) = common::shared_dir("checker::one_route_per_task_on_gdb") else {
         return;
-    }
+    };
     let lb = lower_bounds(&root);
     for k in 1..=23 {
         let name = format!("gdb{k}");

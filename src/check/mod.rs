@@ -68,10 +68,11 @@ impl fmt::Display for At {
 }
 
 /// One thing wrong with a plan or a walk.
-#[derive(Clone, Debug, PartialEq, Eq)]
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum Violation {
     /// A visit names a task index that does not exist.
+    #[error("{at}: task {task} does not exist (the instance has {tasks} tasks)")]
     UnknownTask {
         /// Where.
         at: At,
@@ -82,6 +83,9 @@ pub enum Violation {
     },
     /// A task is served backward although only forward service is allowed
     /// (a one-way street, or one side of a street).
+    #[error(
+        "{at}: task {task} (link {link}) is served backward, but only forward service is allowed"
+    )]
     DirectionNotAllowed {
         /// Where.
         at: At,
@@ -91,6 +95,7 @@ pub enum Violation {
         link: usize,
     },
     /// A task is served more than once.
+    #[error("task {task} (link {link}) is served twice: at {first} and again at {again}")]
     ServedTwice {
         /// Task index.
         task: usize,
@@ -102,6 +107,7 @@ pub enum Violation {
         again: At,
     },
     /// A task is not served at all.
+    #[error("task {task} (link {link}) is not served")]
     NotServed {
         /// Task index.
         task: usize,
@@ -109,6 +115,9 @@ pub enum Violation {
         link: usize,
     },
     /// No path leads from one junction to the next in a route.
+    #[error(
+        "route {route}: no path from junction {from} (id {from_id}) to junction {to} (id {to_id})"
+    )]
     NoPath {
         /// Route index.
         route: usize,
@@ -122,6 +131,7 @@ pub enum Violation {
         to_id: u64,
     },
     /// A route carries more than a truck holds.
+    #[error("route {route}: load {load} exceeds the capacity {capacity} by {}", .load - .capacity)]
     OverCapacity {
         /// Route index.
         route: usize,
@@ -131,6 +141,7 @@ pub enum Violation {
         capacity: Cost,
     },
     /// A route takes longer than the shift limit.
+    #[error("route {route}: time {time} exceeds the shift limit {limit} by {}", .time - .limit)]
     OverShift {
         /// Route index.
         route: usize,
@@ -140,6 +151,7 @@ pub enum Violation {
         limit: Cost,
     },
     /// The plan uses more trucks than the fleet has.
+    #[error("the plan uses {routes} routes, but the fleet has only {max} trucks")]
     TooManyRoutes {
         /// Number of routes.
         routes: usize,
@@ -147,11 +159,13 @@ pub enum Violation {
         max: usize,
     },
     /// A route serves nothing.
+    #[error("route {route} serves nothing")]
     EmptyRoute {
         /// Route index.
         route: usize,
     },
     /// A route's reported load differs from the recomputed one.
+    #[error("route {route}: reported load {reported}, but it recomputes to {actual}")]
     WrongLoad {
         /// Route index.
         route: usize,
@@ -161,6 +175,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported cost differs from the recomputed one.
+    #[error("route {route}: reported cost {reported}, but it recomputes to {actual}")]
     WrongCost {
         /// Route index.
         route: usize,
@@ -170,6 +185,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported time differs from the recomputed one.
+    #[error("route {route}: reported time {reported}, but it recomputes to {actual}")]
     WrongTime {
         /// Route index.
         route: usize,
@@ -180,6 +196,7 @@ pub enum Violation {
     },
     /// The plan's reported total cost differs from the sum of the
     /// recomputed route costs.
+    #[error("plan: reported total cost {reported}, but the routes add up to {actual}")]
     WrongTotal {
         /// Value in the plan.
         reported: Cost,
@@ -187,6 +204,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A walk step names a link index that does not exist.
+    #[error("{at}: link {link} does not exist (the network has {links} links)")]
     UnknownLink {
         /// Where.
         at: At,
@@ -196,6 +214,7 @@ pub enum Violation {
         links: usize,
     },
     /// A walk step's junctions are not the two ends of its link.
+    #[error("{at}: a step from junction {from} to junction {to} does not follow link {link}")]
     NotOnLink {
         /// Where.
         at: At,
@@ -207,6 +226,7 @@ pub enum Violation {
         to: usize,
     },
     /// A walk step drives a one-way link against its direction.
+    #[error("{at}: one-way link {link} is driven against its direction")]
     AgainstOneWay {
         /// Where.
         at: At,
@@ -214,6 +234,7 @@ pub enum Violation {
         link: usize,
     },
     /// A walk step does not start where the previous one ended.
+    #[error("{at}: the step starts at junction {found}, but the previous one ended at junction {expected}")]
     Disconnected {
         /// Where (the step that does not connect).
         at: At,
@@ -223,6 +244,7 @@ pub enum Violation {
         found: usize,
     },
     /// A walk does not start at the depot.
+    #[error("route {route}: starts at junction {junction}, not at the depot")]
     NotFromDepot {
         /// Walk index.
         route: usize,
@@ -230,6 +252,7 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk does not end at the depot.
+    #[error("route {route}: ends at junction {junction}, not at the depot")]
     NotToDepot {
         /// Walk index.
         route: usize,
@@ -237,6 +260,7 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk serves a link that is not required.
+    #[error("{at}: link {link} is served but it is not required")]
     ServesNonRequired {
         /// Where.
         at: At,
@@ -244,121 +268,6 @@ pub enum Violation {
         link: usize,
     },
 }
-
-impl fmt::Display for Violation {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        use Violation::*;
-        match self {
-            UnknownTask { at, task, tasks } => write!(
-                f,
-                "{at}: task {task} does not exist (the instance has {tasks} tasks)"
-            ),
-            DirectionNotAllowed { at, task, link } => write!(
-                f,
-                "{at}: task {task} (link {link}) is served backward, but only forward service is allowed"
-            ),
-            ServedTwice {
-                task,
-                link,
-                first,
-                again,
-            } => write!(
-                f,
-                "task {task} (link {link}) is served twice: at {first} and again at {again}"
-            ),
-            NotServed { task, link } => write!(f, "task {task} (link {link}) is not served"),
-            NoPath {
-                route,
-                from,
-                from_id,
-                to,
-                to_id,
-            } => write!(
-                f,
-                "route {route}: no path from junction {from} (id {from_id}) to junction {to} (id {to_id})"
-            ),
-            OverCapacity {
-                route,
-                load,
-                capacity,
-            } => write!(
-                f,
-                "route {route}: load {load} exceeds the capacity {capacity} by {}",
-                load - capacity
-            ),
-            OverShift { route, time, limit } => write!(
-                f,
-                "route {route}: time {time} exceeds the shift limit {limit} by {}",
-                time - limit
-            ),
-            TooManyRoutes { routes, max } => write!(
-                f,
-                "the plan uses {routes} routes, but the fleet has only {max} trucks"
-            ),
-            EmptyRoute { route } => write!(f, "route {route} serves nothing"),
-            WrongLoad {
-                route,
-                reported,
-                actual,
-            } => write!(
-                f,
-                "route {route}: reported load {reported}, but it recomputes to {actual}"
-            ),
-            WrongCost {
-                route,
-                reported,
-                actual,
-            } => write!(
-                f,
-                "route {route}: reported cost {reported}, but it recomputes to {actual}"
-            ),
-            WrongTime {
-                route,
-                reported,
-                actual,
-            } => write!(
-                f,
-                "route {route}: reported time {reported}, but it recomputes to {actual}"
-            ),
-            WrongTotal { reported, actual } => write!(
-                f,
-                "plan: reported total cost {reported}, but the routes add up to {actual}"
-            ),
-            UnknownLink { at, link, links } => write!(
-                f,
-                "{at}: link {link} does not exist (the network has {links} links)"
-            ),
-            NotOnLink { at, link, from, to } => write!(
-                f,
-                "{at}: a step from junction {from} to junction {to} does not follow link {link}"
-            ),
-            AgainstOneWay { at, link } => {
-                write!(f, "{at}: one-way link {link} is driven against its direction")
-            }
-            Disconnected {
-                at,
-                expected,
-                found,
-            } => write!(
-                f,
-                "{at}: the step starts at junction {found}, but the previous one ended at junction {expected}"
-            ),
-            NotFromDepot { route, junction } => write!(
-                f,
-                "route {route}: starts at junction {junction}, not at the depot"
-            ),
-            NotToDepot { route, junction } => write!(
-                f,
-                "route {route}: ends at junction {junction}, not at the depot"
-            ),
-            ServesNonRequired { at, link } => {
-                write!(f, "{at}: link {link} is served but it is not required")
-            }
-        }
-    }
-}
-
-impl std::error::Error for Violation {}
 
 /// Forward adjacency of the deadhead graph: for each junction, (to, cost, time).
 fn adjacency(inst: &Instance) -> Vec<Vec<(usize, Cost, Cost)>> {

@@ -339,3 +339,77 @@ pub fn split_bounded(
         .collect();
     Ok(Split { cost, routes })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{Dir, Fleet, Instance, Network};
+    use crate::paths::Distances;
+
+    /// A square of junctions 0-1-2-3 (depot 0), every side costing 1. Required:
+    /// e0 = (0,1), e1 = (1,2), e2 = (2,3), each of demand 1; (3,0) may only be
+    /// deadheaded. Capacity 2. Giant tour [e2, e1, e0].
+    ///
+    /// Routes of consecutive tasks (service 1 per task plus shortest deadheads):
+    /// - {e2}: 0->3 (1) serve 3->2 (1) 2->0 (2) = 4 (the other direction also 4);
+    /// - {e2,e1}: 0->3 (1), serve 3->2, serve 2->1, 1->0 (1) = 4 (both backward);
+    /// - {e1}: 4; {e1,e0}: 0->2 (2) serve 2->1, serve 1->0 = 4; {e0}: 2;
+    /// - {e2,e1,e0} would need load 3 > 2.
+    ///
+    /// Shortest path on the auxiliary graph: V1 = 4, V2 = min(4+4, 4) = 4,
+    /// V3 = min(V1 + {e1,e0} = 8, V2 + {e0} = 6) = 6. So the split is
+    /// [e2 backward, e1 backward], [e0], cost 6.
+    #[test]
+    fn split_of_a_hand_made_tour() {
+        let mut net = Network::with_junctions(4);
+        net.add_required_edge(0, 1, 1, 1);
+        net.add_required_edge(1, 2, 1, 1);
+        net.add_required_edge(2, 3, 1, 1);
+        net.add_edge(3, 0, 1);
+        let inst = Instance::new("square", net, Fleet::with_capacity(2), 0).unwrap();
+        let dist = Distances::new(&inst).unwrap();
+        let m = ArcMatrix::new(&inst, &dist).unwrap();
+        let s = split(&m, &[2, 1, 0]).unwrap();
+        assert_eq!(s.cost, 6);
+        assert_eq!(s.routes.len(), 2);
+        let r0: Vec<_> = s.routes[0].iter().map(|&a| ArcMatrix::visit(a)).collect();
+        assert_eq!(r0[0].task, 2);
+        assert_eq!(r0[0].dir, Dir::Backward);
+        assert_eq!(r0[1].task, 1);
+        assert_eq!(r0[1].dir, Dir::Backward);
+        assert_eq!(ArcMatrix::task(s.routes[1][0]), 0);
+        // One truck cannot carry demand 3 with capacity 2.
+        assert_eq!(
+            split_bounded(&m, &[2, 1, 0], Some(1)).unwrap_err(),
+            SplitFailure::TooFewVehicles { fewest: 2 }
+        );
+    }
+
+    /// gdb1 (Golden, DeArmon & Baker 1983; ../shared/instances): 22 tasks of
+    /// demand 1, capacity 5. With at most 5 trucks the bounded split never
+    /// uses more, and costs at least the free split.
+    #[test]
+    fn bounded_split_of_gdb1() {
+        let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../shared/instances/gdb/gdb1.dat");
+        if !path.is_file() {
+            println!("SKIPPED split::bounded_split_of_gdb1: {} is absent", path.display());
+            return;
+        }
+        let inst = crate::io::read_dat_file(&path).unwrap().instance;
+        let five = inst
+            .with_fleet(Fleet {
+                capacity: 5,
+                shift_limit: None,
+                max_vehicles: Some(5),
+            })
+            .unwrap();
+        let dist = Distances::new(&five).unwrap();
+        let m = ArcMatrix::new(&five, &dist).unwrap();
+        let tour: Vec<usize> = (0..22).collect();
+        let free = split_bounded(&m, &tour, None).unwrap();
+        let bounded = split(&m, &tour).unwrap();
+        assert!(bounded.routes.len() <= 5 && bounded.cost >= free.cost);
+        assert!(free.routes.len() >= 5, "22 bins in trucks of 5");
+    }
+}

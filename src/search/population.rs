@@ -125,11 +125,6 @@ impl Population {
         self.members.len()
     }
 
-    /// True when empty.
-    pub fn is_empty(&self) -> bool {
-        self.members.is_empty()
-    }
-
     /// Removes everyone.
     pub fn clear(&mut self) {
         self.members.clear();
@@ -233,10 +228,5 @@ impl Population {
         } else {
             &self.members[b]
         }
-    }
-
-    /// The cheapest member.
-    pub fn best(&self) -> Option<&Individual> {
-        self.members.iter().min_by_key(|m| (m.cost, m.id))
     }
 }
