@@ -67,6 +67,19 @@ pub enum ParseProblem {
         expected: &'static str,
         found: String,
     },
+    /// A header count larger than what the file lists can use.
+    #[error("header says {what} = {header}, but the edges listed can use at most {most}")]
+    Unbacked {
+        what: &'static str,
+        header: usize,
+        most: usize,
+    },
+    /// A `demanda` on an edge listed under `LISTA_ARISTAS_NOREQ`.
+    #[error("an edge under LISTA_ARISTAS_NOREQ has a demand (`demanda`); list edges with a demand under LISTA_ARISTAS_REQ")]
+    DemandNotRequired,
+    /// Bytes that are not UTF-8 text.
+    #[error("not UTF-8 text (byte {byte} of the file)")]
+    NotUtf8 { byte: usize },
     /// JSON that does not match the schema (wrong type, missing field, bad syntax).
     #[error("{message}")]
     Json { message: String },
@@ -164,6 +177,18 @@ impl Error {
             },
             problem,
         }
+    }
+
+    /// A JSON syntax or schema error from `serde_json`, with its line in the
+    /// location and its column in the message (each position given once).
+    pub(crate) fn json(file: &str, e: &serde_json::Error) -> Self {
+        let text = e.to_string();
+        let message = match text.rfind(" at line ") {
+            Some(k) if e.line() > 0 => format!("{} (column {})", &text[..k], e.column()),
+            _ => text,
+        };
+        let line = (e.line() > 0).then_some(e.line());
+        Error::parse(file, line, ParseProblem::Json { message })
     }
 
     /// The parse problem, if this is a parse error (handy in tests and tools).

@@ -338,16 +338,7 @@ pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
 pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     // A byte-order mark, as some editors write, is not JSON: skip it.
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let rec: FileRec = serde_json::from_str(text).map_err(|e| {
-        let line = (e.line() > 0).then_some(e.line());
-        Error::parse(
-            file,
-            line,
-            ParseProblem::Json {
-                message: e.to_string(),
-            },
-        )
-    })?;
+    let rec: FileRec = serde_json::from_str(text).map_err(|e| Error::json(file, &e))?;
     let at = |path: Vec<Seg>, problem: ParseProblem| {
         Error::parse(
             file,
