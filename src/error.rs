@@ -166,6 +166,70 @@ pub enum Error {
     /// A text could be read but not understood.
     #[error("{at}: {problem}")]
     Parse { at: Location, problem: ParseProblem },
+    /// Several problems in one input, in the order found: validation goes
+    /// on after the first and lists up to [`crate::model::MAX_PROBLEMS`];
+    /// `more` counts those not listed. Each entry is an [`Error::Parse`].
+    #[error("{file}: {} problems{}:{}", .problems.len() + .more, more_note(*.more), list(.problems))]
+    Several {
+        file: String,
+        problems: Vec<Error>,
+        more: usize,
+    },
+}
+
+fn more_note(more: usize) -> String {
+    if more > 0 {
+        format!(" ({more} not listed)")
+    } else {
+        String::new()
+    }
+}
+
+fn list(problems: &[Error]) -> String {
+    problems.iter().map(|p| format!("\n  {p}")).collect()
+}
+
+/// Collects the problems of one input so that a reader can report them all
+/// (up to [`crate::model::MAX_PROBLEMS`]) instead of stopping at the first.
+pub(crate) struct Problems {
+    file: String,
+    found: Vec<Error>,
+    more: usize,
+}
+
+impl Problems {
+    pub(crate) fn new(file: &str) -> Self {
+        Problems {
+            file: file.to_string(),
+            found: Vec::new(),
+            more: 0,
+        }
+    }
+
+    pub(crate) fn push(&mut self, e: Error) {
+        if self.found.len() < crate::model::MAX_PROBLEMS {
+            self.found.push(e);
+        } else {
+            self.more += 1;
+        }
+    }
+
+    pub(crate) fn is_empty(&self) -> bool {
+        self.found.is_empty()
+    }
+
+    /// The one error found, or [`Error::Several`]. Call it only after a
+    /// problem was pushed (with none, it is an empty [`Error::Several`]).
+    pub(crate) fn failed(mut self) -> Error {
+        if self.found.len() == 1 && self.more == 0 {
+            return self.found.remove(0);
+        }
+        Error::Several {
+            file: self.file,
+            problems: self.found,
+            more: self.more,
+        }
+    }
 }
 
 impl Error {
@@ -191,19 +255,32 @@ impl Error {
         Error::parse(file, line, ParseProblem::Json { message })
     }
 
-    /// The parse problem, if this is a parse error (handy in tests and tools).
+    /// The parse problem, if this is a parse error (the first one of
+    /// [`Error::Several`]; handy in tests and tools).
     pub fn problem(&self) -> Option<&ParseProblem> {
         match self {
             Error::Parse { problem, .. } => Some(problem),
+            Error::Several { problems, .. } => problems.first().and_then(Error::problem),
             Error::Io { .. } => None,
         }
     }
 
-    /// The location of a parse error.
+    /// The location of a parse error (the first one of [`Error::Several`]).
     pub fn location(&self) -> Option<&Location> {
         match self {
             Error::Parse { at, .. } => Some(at),
+            Error::Several { problems, .. } => problems.first().and_then(Error::location),
             Error::Io { .. } => None,
+        }
+    }
+
+    /// Every parse problem with its location: one for [`Error::Parse`], all
+    /// listed ones for [`Error::Several`], none for [`Error::Io`].
+    pub fn problems(&self) -> Vec<(&Location, &ParseProblem)> {
+        match self {
+            Error::Parse { at, problem } => vec![(at, problem)],
+            Error::Several { problems, .. } => problems.iter().flat_map(Error::problems).collect(),
+            Error::Io { .. } => Vec::new(),
         }
     }
 }

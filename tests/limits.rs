@@ -198,3 +198,116 @@ fn json_positions_once_and_bom_scenarios() {
     assert_eq!(detect_format(&text, "x.DAT"), Format::Dat);
     assert_eq!(read_scenario(&text, "scenario").unwrap().name, "bom");
 }
+
+/// Friction 2.6: scenario validation reports every problem (up to
+/// `MAX_PROBLEMS`), each at its JSON path and line, and names streets.
+#[test]
+fn scenario_validation_reports_all_problems_with_lines() {
+    let mut streets = String::new();
+    for i in 0..25 {
+        // Street i: demand 9 on trucks of 5, except three other faults.
+        let (to, cost) = match i {
+            3 => (77, 1), // unknown junction
+            7 => (2, -1), // negative cost
+            _ => (2, 1),
+        };
+        streets.push_str(&format!(
+            "    {{\"from\": 1, \"to\": {to}, \"cost\": {cost}, \"name\": \"Lane {i}\", \"service\": {{\"demand\": 9, \"cost\": 1}}}},\n"
+        ));
+    }
+    let streets = streets.trim_end().trim_end_matches(',');
+    let text = format!(
+        "{{\n  \"format\": \"arcwright-scenario\",\n  \"version\": 1,\n  \"name\": \"faults\",\n  \
+         \"junctions\": [{{\"id\": 1}}, {{\"id\": 2}}],\n  \"streets\": [\n{streets}\n  ],\n  \
+         \"yard\": 1,\n  \"fleet\": {{\"capacity\": 5}}\n}}\n"
+    );
+    let e = read_scenario(&text, "faults.json").unwrap_err();
+    let all = e.problems();
+    // Reading stops before the model when a street has an unknown end:
+    // the two reader problems come first.
+    assert_eq!(all.len(), 1, "{e}");
+    assert!(matches!(
+        all[0].1.innermost(),
+        ParseProblem::UnknownJunction { id: 77 }
+    ));
+    assert_eq!(all[0].0.line, Some(10), "{e}");
+
+    // Without the unknown junction, the model's problems: 24 demands over
+    // capacity and one negative cost, of which 20 are listed.
+    let text = text.replace("\"to\": 77", "\"to\": 2");
+    let e = read_scenario(&text, "faults.json").unwrap_err();
+    let all = e.problems();
+    assert_eq!(all.len(), arcwright::model::MAX_PROBLEMS, "{e}");
+    let msg = e.to_string();
+    assert!(
+        msg.starts_with("faults.json: 26 problems (6 not listed):"),
+        "{msg}"
+    );
+    for (k, (at, _)) in all.iter().enumerate() {
+        // Street i is on line 7 + i; street 7 has two problems.
+        let street = if k <= 7 { k } else { k - 1 };
+        assert_eq!(at.line, Some(7 + street), "{k}: {msg}");
+    }
+    assert!(
+        msg.contains("street \"Lane 7\" (junctions 1-2): cost must not be negative"),
+        "{msg}"
+    );
+    assert!(
+        msg.contains("demand 9 exceeds the truck capacity 5"),
+        "{msg}"
+    );
+}
+
+/// Item 8 of issue 8: strongly connected components (petgraph) tell a street
+/// a truck cannot leave from one it cannot reach, and name it.
+#[test]
+fn one_way_traps_and_unreachable_streets_are_named() {
+    use arcwright::model::{Link, ModelError, Reach};
+    let one_way = |from, to, name: &str, serve: bool| Link {
+        from,
+        to,
+        oneway: true,
+        cost: 1,
+        time: None,
+        service: serve.then_some(arcwright::model::ServiceSpec {
+            demand: 1,
+            cost: 1,
+            time: None,
+            direction: arcwright::model::ServeDirection::Forward,
+        }),
+        name: Some(name.to_string()),
+    };
+    // Yard 0 <-> 1 two-way; 1 -> 2 one-way "Mill Lane" (a trap: 2 has no
+    // way out); 3 -> 0 one-way "Quarry Road" (nothing leads to 3).
+    let mut net = Network::with_junctions(4);
+    net.add_required_edge(0, 1, 1, 1);
+    net.add_link(one_way(1, 2, "Mill Lane", true));
+    net.add_link(one_way(3, 0, "Quarry Road", true));
+    let all = Instance::validate("traps", net, Fleet::with_capacity(5), 0).unwrap_err();
+    assert_eq!(all.len(), 2, "{all:?}");
+    assert!(matches!(
+        &all[0],
+        ModelError::Unreachable {
+            link: 1,
+            why: Reach::NoWayBack,
+            ..
+        }
+    ));
+    assert!(matches!(
+        &all[1],
+        ModelError::Unreachable {
+            link: 2,
+            why: Reach::NotFromYard,
+            ..
+        }
+    ));
+    assert_eq!(
+        all[0].to_string(),
+        "street \"Mill Lane\" (junctions 2-3) is to be served, but no way leads from it back \
+         to the yard (a truck could enter it but not leave)"
+    );
+    assert_eq!(
+        all[1].to_string(),
+        "street \"Quarry Road\" (junctions 4-1) is to be served, but no way leads to it from the yard"
+    );
+}

@@ -24,7 +24,7 @@ use std::collections::HashMap;
 use std::path::Path;
 
 use super::{MAX_JUNCTIONS, MAX_NUMBER};
-use crate::error::{Error, ParseProblem, Result};
+use crate::error::{Error, ParseProblem, Problems, Result};
 use crate::model::{Cost, Fleet, Instance, Network};
 
 /// An instance read from the research format, with the header's extra fields.
@@ -504,12 +504,16 @@ impl DatReader<'_> {
                 .unwrap_or_default()
         });
         let fleet = Fleet::with_capacity(capacity as Cost);
-        let instance = Instance::new(name, net, fleet, depot).map_err(|m| {
-            let line = m
-                .link()
-                .and_then(|l| link_lines.get(l).copied())
-                .or(self.header_line("CAPACIDAD").filter(|_| m.link().is_none()));
-            self.err(line, ParseProblem::Model(m))
+        let instance = Instance::validate(name, net, fleet, depot).map_err(|all| {
+            let mut problems = Problems::new(self.file);
+            for m in all {
+                let line = m
+                    .link()
+                    .and_then(|l| link_lines.get(l).copied())
+                    .or(self.header_line("CAPACIDAD").filter(|_| m.link().is_none()));
+                problems.push(self.err(line, ParseProblem::Model(m)));
+            }
+            problems.failed()
         })?;
         Ok(DatInstance {
             instance,

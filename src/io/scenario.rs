@@ -73,7 +73,7 @@ use std::path::Path;
 use serde::{Deserialize, Serialize};
 
 use super::MAX_NUMBER;
-use crate::error::{Error, ParseProblem, Result};
+use crate::error::{Error, ParseProblem, Problems, Result};
 use crate::model::{
     Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection, ServiceSpec,
 };
@@ -335,99 +335,167 @@ pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
 }
 
 /// Parses scenario JSON text. `file` names the source in errors.
+///
+/// A byte-order mark before the JSON is skipped. After the JSON itself
+/// reads, validation goes on past the first problem and reports them all
+/// (up to [`crate::model::MAX_PROBLEMS`]) in one [`Error::Several`].
+///
+/// # Errors
+/// [`ParseProblem::Json`] for JSON syntax or a value of the wrong type (at
+/// its line, with the column), a wrong `format` or `version`, and then each
+/// problem of the content at its JSON path and line: a junction id given
+/// twice or unknown, a number above [`MAX_NUMBER`], a negative shift limit,
+/// or an invalid instance ([`ParseProblem::Model`]).
+///
+/// # Complexity
+/// `O(L + V + E)` for `L` bytes of text, `V` junctions and `E` streets
+/// (finding the line of a problem scans the text once per problem).
 pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     // A byte-order mark, as some editors write, is not JSON: skip it.
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     let rec: FileRec = serde_json::from_str(text).map_err(|e| Error::json(file, &e))?;
-    let at = |path: Vec<Seg>, problem: ParseProblem| {
-        Error::parse(
-            file,
-            line_of(text, &path),
-            ParseProblem::AtPath {
-                path: path_string(&path),
-                problem: Box::new(problem),
-            },
-        )
+    let mut c = Collect {
+        file,
+        text,
+        problems: Problems::new(file),
     };
     if rec.format != FORMAT_TAG {
-        return Err(at(
+        c.at(
             vec![Seg::Key("format")],
             ParseProblem::Unexpected {
                 expected: "\"arcwright-scenario\"",
                 found: rec.format.clone(),
             },
-        ));
+        );
+        return Err(c.problems.failed());
     }
     if rec.version != VERSION {
-        return Err(at(
+        c.at(
             vec![Seg::Key("version")],
             ParseProblem::Unexpected {
                 expected: "version 1",
                 found: rec.version.to_string(),
             },
-        ));
+        );
+        return Err(c.problems.failed());
     }
-    let limit = |path: Vec<Seg>, what: &'static str, v: i64| -> Result<()> {
+    let (junctions, index) = c.junctions(&rec.junctions);
+    let links = c.streets(&rec.streets, &index);
+    let depot = c.lookup(&index, vec![Seg::Key("yard")], rec.yard);
+    let fleet = c.fleet(&rec.fleet);
+    let depot = match depot {
+        Some(d) if c.problems.is_empty() => d,
+        _ => return Err(c.problems.failed()),
+    };
+    let network = Network { junctions, links };
+    match Instance::validate(rec.name, network, fleet, depot) {
+        Ok(inst) => Ok(inst),
+        Err(all) => {
+            for m in all {
+                c.at(model_error_path(&m), ParseProblem::Model(m));
+            }
+            Err(c.problems.failed())
+        }
+    }
+}
+
+/// The problems of one scenario text, each at its JSON path and line.
+struct Collect<'t> {
+    file: &'t str,
+    text: &'t str,
+    problems: Problems,
+}
+
+impl Collect<'_> {
+    fn at(&mut self, path: Vec<Seg>, problem: ParseProblem) {
+        let e = Error::parse(
+            self.file,
+            line_of(self.text, &path),
+            ParseProblem::AtPath {
+                path: path_string(&path),
+                problem: Box::new(problem),
+            },
+        );
+        self.problems.push(e);
+    }
+
+    /// `v` if it is at most [`MAX_NUMBER`], else a problem and `None`.
+    fn limit(&mut self, path: Vec<Seg>, what: &'static str, v: i64) -> Option<i64> {
         if v > MAX_NUMBER {
-            return Err(at(
-                path,
-                ParseProblem::TooLarge {
-                    what,
-                    value: v as u64,
-                    max: MAX_NUMBER as u64,
-                },
-            ));
+            let problem = ParseProblem::TooLarge {
+                what,
+                value: v as u64,
+                max: MAX_NUMBER as u64,
+            };
+            self.at(path, problem);
+            return None;
         }
-        Ok(())
-    };
-    let mut index: HashMap<u64, usize> = HashMap::with_capacity(rec.junctions.len());
-    let mut junctions = Vec::with_capacity(rec.junctions.len());
-    for (i, j) in rec.junctions.iter().enumerate() {
-        if let Some(&first) = index.get(&j.id) {
-            return Err(at(
-                vec![Seg::Key("junctions"), Seg::Index(i), Seg::Key("id")],
-                ParseProblem::DuplicateJunction { id: j.id, first },
-            ));
-        }
-        index.insert(j.id, i);
-        junctions.push(Junction {
-            id: j.id,
-            x: j.x,
-            y: j.y,
-        });
+        Some(v)
     }
-    let lookup = |path: Vec<Seg>, id: u64| -> Result<usize> {
-        index
-            .get(&id)
-            .copied()
-            .ok_or_else(|| at(path, ParseProblem::UnknownJunction { id }))
-    };
-    let mut links = Vec::with_capacity(rec.streets.len());
-    for (i, s) in rec.streets.iter().enumerate() {
-        let p = |k: &'static str| vec![Seg::Key("streets"), Seg::Index(i), Seg::Key(k)];
-        let ps = |k: &'static str| {
-            vec![
-                Seg::Key("streets"),
-                Seg::Index(i),
-                Seg::Key("service"),
-                Seg::Key(k),
-            ]
-        };
-        let from = lookup(p("from"), s.from)?;
-        let to = lookup(p("to"), s.to)?;
-        limit(p("cost"), "cost", s.cost)?;
-        if let Some(t) = s.drive_time {
-            limit(p("drive_time"), "drive time", t)?;
+
+    fn junctions(&mut self, recs: &[JunctionRec]) -> (Vec<Junction>, HashMap<u64, usize>) {
+        let mut index: HashMap<u64, usize> = HashMap::with_capacity(recs.len());
+        let mut junctions = Vec::with_capacity(recs.len());
+        for (i, j) in recs.iter().enumerate() {
+            if let Some(&first) = index.get(&j.id) {
+                self.at(
+                    vec![Seg::Key("junctions"), Seg::Index(i), Seg::Key("id")],
+                    ParseProblem::DuplicateJunction { id: j.id, first },
+                );
+            } else {
+                index.insert(j.id, i);
+            }
+            junctions.push(Junction {
+                id: j.id,
+                x: j.x,
+                y: j.y,
+            });
         }
-        let service = match &s.service {
-            None => None,
-            Some(sv) => {
-                limit(ps("demand"), "demand", sv.demand)?;
-                limit(ps("cost"), "service cost", sv.cost)?;
+        (junctions, index)
+    }
+
+    fn lookup(&mut self, index: &HashMap<u64, usize>, path: Vec<Seg>, id: u64) -> Option<usize> {
+        let found = index.get(&id).copied();
+        if found.is_none() {
+            self.at(path, ParseProblem::UnknownJunction { id });
+        }
+        found
+    }
+
+    /// The streets as links; a street with an unknown end is left out (its
+    /// problem is recorded).
+    fn streets(&mut self, recs: &[StreetRec], index: &HashMap<u64, usize>) -> Vec<Link> {
+        let mut links = Vec::with_capacity(recs.len());
+        for (i, s) in recs.iter().enumerate() {
+            let p = |k: &'static str| vec![Seg::Key("streets"), Seg::Index(i), Seg::Key(k)];
+            let ps = |k: &'static str| {
+                let mut v = p("service");
+                v.push(Seg::Key(k));
+                v
+            };
+            let from = self.lookup(index, p("from"), s.from);
+            let to = self.lookup(index, p("to"), s.to);
+            let mut ok = self.limit(p("cost"), "cost", s.cost).is_some();
+            if let Some(t) = s.drive_time {
+                ok &= self.limit(p("drive_time"), "drive time", t).is_some();
+            }
+            if let Some(sv) = &s.service {
+                ok &= self.limit(ps("demand"), "demand", sv.demand).is_some();
+                ok &= self.limit(ps("cost"), "service cost", sv.cost).is_some();
                 if let Some(t) = sv.time {
-                    limit(ps("time"), "service time", t)?;
+                    ok &= self.limit(ps("time"), "service time", t).is_some();
                 }
-                Some(ServiceSpec {
+            }
+            let (Some(from), Some(to), true) = (from, to, ok) else {
+                continue;
+            };
+            links.push(Link {
+                from,
+                to,
+                oneway: s.one_way,
+                cost: s.cost,
+                time: s.drive_time,
+                service: s.service.as_ref().map(|sv| ServiceSpec {
                     demand: sv.demand,
                     cost: sv.cost,
                     time: sv.time,
@@ -435,51 +503,32 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
                         Directions::Either => ServeDirection::Either,
                         Directions::Forward => ServeDirection::Forward,
                     },
-                })
-            }
-        };
-        links.push(Link {
-            from,
-            to,
-            oneway: s.one_way,
-            cost: s.cost,
-            time: s.drive_time,
-            service,
-            name: s.name.clone(),
-        });
+                }),
+                name: s.name.clone(),
+            });
+        }
+        links
     }
-    let depot = lookup(vec![Seg::Key("yard")], rec.yard)?;
-    limit(
-        vec![Seg::Key("fleet"), Seg::Key("capacity")],
-        "capacity",
-        rec.fleet.capacity,
-    )?;
-    if let Some(t) = rec.fleet.shift_limit {
-        limit(
-            vec![Seg::Key("fleet"), Seg::Key("shift_limit")],
-            "shift limit",
-            t,
-        )?;
-        if t < 0 {
-            return Err(at(
-                vec![Seg::Key("fleet"), Seg::Key("shift_limit")],
-                ParseProblem::Negative {
+
+    fn fleet(&mut self, rec: &FleetRec) -> Fleet {
+        let p = |k: &'static str| vec![Seg::Key("fleet"), Seg::Key(k)];
+        self.limit(p("capacity"), "capacity", rec.capacity);
+        if let Some(t) = rec.shift_limit {
+            self.limit(p("shift_limit"), "shift limit", t);
+            if t < 0 {
+                let problem = ParseProblem::Negative {
                     what: "shift limit",
                     value: t,
-                },
-            ));
+                };
+                self.at(p("shift_limit"), problem);
+            }
+        }
+        Fleet {
+            capacity: rec.capacity,
+            shift_limit: rec.shift_limit,
+            max_vehicles: rec.max_trucks,
         }
     }
-    let fleet = Fleet {
-        capacity: rec.fleet.capacity,
-        shift_limit: rec.fleet.shift_limit,
-        max_vehicles: rec.fleet.max_trucks,
-    };
-    let network = Network { junctions, links };
-    Instance::new(rec.name, network, fleet, depot).map_err(|m| {
-        let path = model_error_path(&m);
-        at(path, ParseProblem::Model(m))
-    })
 }
 
 /// Where in the file a model error points.

@@ -18,7 +18,7 @@ mod instance;
 mod network;
 
 pub use fleet::Fleet;
-pub use instance::{Dir, Instance, ModelError, Task};
+pub use instance::{Dir, Instance, ModelError, Reach, Task, MAX_PROBLEMS};
 pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec};
 
 /// Exact integer cost, time or demand.
