@@ -321,165 +321,50 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
 ///
 /// Returns every violation found (in a deterministic order).
 pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
-    let tasks = inst.tasks();
-    let fleet = inst.fleet();
-    let depot = inst.depot();
     let mut out = Vec::new();
-
-    if let Some(max) = fleet.max_vehicles {
-        if plan.routes.len() > max {
-            out.push(Violation::TooManyRoutes {
-                routes: plan.routes.len(),
-                max,
-            });
-        }
-    }
-
-    // Service coverage.
-    let mut seen: Vec<Option<At>> = vec![None; tasks.len()];
+    fleet_size(inst, plan.routes.len(), &mut out);
+    let mut cover = Coverage::new(inst);
     for (r, route) in plan.routes.iter().enumerate() {
         if route.visits.is_empty() {
             out.push(Violation::EmptyRoute { route: r });
         }
         for (p, v) in route.visits.iter().enumerate() {
-            let at = At { route: r, pos: p };
-            let Some(t) = tasks.get(v.task) else {
-                out.push(Violation::UnknownTask {
-                    at,
-                    task: v.task,
-                    tasks: tasks.len(),
-                });
-                continue;
-            };
-            if v.dir == Dir::Backward && !t.either {
-                out.push(Violation::DirectionNotAllowed {
-                    at,
-                    task: v.task,
-                    link: t.link,
-                });
-            }
-            match seen[v.task] {
-                Some(first) => out.push(Violation::ServedTwice {
-                    task: v.task,
-                    link: t.link,
-                    first,
-                    again: at,
-                }),
-                None => seen[v.task] = Some(at),
-            }
+            cover.visit(inst, At { route: r, pos: p }, v.task, v.dir, &mut out);
         }
     }
-    for (i, s) in seen.iter().enumerate() {
-        if s.is_none() {
-            out.push(Violation::NotServed {
-                task: i,
-                link: tasks[i].link,
-            });
-        }
-    }
+    cover.finish(inst, &mut out);
 
-    // Legs of every route, as (from, to) junction pairs, skipping unknown tasks.
-    let mut legs: Vec<Vec<(usize, usize)>> = Vec::with_capacity(plan.routes.len());
-    for route in &plan.routes {
-        let mut at = depot;
-        let mut l = Vec::new();
-        for v in &route.visits {
-            if let Some(t) = tasks.get(v.task) {
-                let (s, e) = t.ends(v.dir);
-                l.push((at, s));
-                at = e;
-            }
-        }
-        if !route.visits.is_empty() {
-            l.push((at, depot));
-        }
-        legs.push(l);
-    }
-    // One search per distinct leg start.
-    let adj = adjacency(inst);
-    let mut by_source: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
-    for l in legs.iter().flatten() {
-        by_source.entry(l.0).or_default().push(l.1);
-    }
-    let mut leg_dist: BTreeMap<(usize, usize), Option<(Cost, Cost)>> = BTreeMap::new();
-    for (s, targets) in by_source {
-        let d = shortest_from(&adj, s);
-        for t in targets {
-            leg_dist.insert((s, t), d[t]);
-        }
-    }
-
-    let ids = |j: usize| inst.network().junctions[j].id;
+    let legs: Vec<Vec<(usize, usize)>> = plan.routes.iter().map(|r| legs_of(inst, r)).collect();
+    let leg_dist = leg_distances(inst, &legs);
     let mut total: Cost = 0;
     let mut total_known = true;
     for (r, route) in plan.routes.iter().enumerate() {
-        let (mut load, mut cost, mut time) = (0 as Cost, 0 as Cost, 0 as Cost);
-        for v in &route.visits {
-            if let Some(t) = tasks.get(v.task) {
-                load = load.saturating_add(t.demand);
-                cost = cost.saturating_add(t.cost);
-                time = time.saturating_add(t.time);
-            }
-        }
-        let mut reachable = true;
-        for &(a, b) in &legs[r] {
-            match leg_dist[&(a, b)] {
-                Some((c, t)) => {
-                    cost = cost.saturating_add(c);
-                    time = time.saturating_add(t);
-                }
-                None => {
-                    reachable = false;
-                    out.push(Violation::NoPath {
-                        route: r,
-                        from: a,
-                        from_id: ids(a),
-                        to: b,
-                        to_id: ids(b),
-                    });
-                }
-            }
-        }
-        if load > fleet.capacity {
-            out.push(Violation::OverCapacity {
-                route: r,
-                load,
-                capacity: fleet.capacity,
-            });
-        }
-        if route.load != load {
+        let found = route_totals(inst, r, route, &legs[r], &leg_dist, &mut out);
+        limits(
+            inst,
+            r,
+            found.load,
+            found.cost.map(|_| found.time),
+            &mut out,
+        );
+        if route.load != found.load {
             out.push(Violation::WrongLoad {
                 route: r,
                 reported: route.load,
-                actual: load,
+                actual: found.load,
             });
         }
-        if !reachable {
+        let Some(cost) = found.cost else {
             total_known = false;
             continue;
-        }
-        if let Some(limit) = fleet.shift_limit {
-            if time > limit {
-                out.push(Violation::OverShift {
-                    route: r,
-                    time,
-                    limit,
-                });
+        };
+        for (reported, actual, wrong) in [
+            (route.cost, cost, WrongField::Cost),
+            (route.time, found.time, WrongField::Time),
+        ] {
+            if reported != actual {
+                out.push(wrong.violation(r, reported, actual));
             }
-        }
-        if route.cost != cost {
-            out.push(Violation::WrongCost {
-                route: r,
-                reported: route.cost,
-                actual: cost,
-            });
-        }
-        if route.time != time {
-            out.push(Violation::WrongTime {
-                route: r,
-                reported: route.time,
-                actual: time,
-            });
         }
         total = total.saturating_add(cost);
     }
@@ -496,6 +381,198 @@ pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     }
 }
 
+/// The one check of the fleet bound, shared by plans and walks.
+fn fleet_size(inst: &Instance, routes: usize, out: &mut Vec<Violation>) {
+    if let Some(max) = inst.fleet().max_vehicles {
+        if routes > max {
+            out.push(Violation::TooManyRoutes { routes, max });
+        }
+    }
+}
+
+/// The one check of a route's load and shift limits, shared by plans and
+/// walks; `time` is `None` when it cannot be known (a leg without a path).
+fn limits(inst: &Instance, route: usize, load: Cost, time: Option<Cost>, out: &mut Vec<Violation>) {
+    let fleet = inst.fleet();
+    if load > fleet.capacity {
+        out.push(Violation::OverCapacity {
+            route,
+            load,
+            capacity: fleet.capacity,
+        });
+    }
+    if let (Some(limit), Some(time)) = (fleet.shift_limit, time) {
+        if time > limit {
+            out.push(Violation::OverShift { route, time, limit });
+        }
+    }
+}
+
+/// Which tasks were served where: finds unknown tasks, forbidden
+/// directions, second services and (at the end) tasks never served.
+struct Coverage {
+    seen: Vec<Option<At>>,
+}
+
+impl Coverage {
+    fn new(inst: &Instance) -> Self {
+        Coverage {
+            seen: vec![None; inst.tasks().len()],
+        }
+    }
+
+    fn visit(&mut self, inst: &Instance, at: At, task: usize, dir: Dir, out: &mut Vec<Violation>) {
+        let tasks = inst.tasks();
+        let Some(t) = tasks.get(task) else {
+            out.push(Violation::UnknownTask {
+                at,
+                task,
+                tasks: tasks.len(),
+            });
+            return;
+        };
+        if dir == Dir::Backward && !t.either {
+            out.push(Violation::DirectionNotAllowed {
+                at,
+                task,
+                link: t.link,
+            });
+        }
+        match self.seen[task] {
+            Some(first) => out.push(Violation::ServedTwice {
+                task,
+                link: t.link,
+                first,
+                again: at,
+            }),
+            None => self.seen[task] = Some(at),
+        }
+    }
+
+    fn finish(self, inst: &Instance, out: &mut Vec<Violation>) {
+        for (i, s) in self.seen.iter().enumerate() {
+            if s.is_none() {
+                out.push(Violation::NotServed {
+                    task: i,
+                    link: inst.tasks()[i].link,
+                });
+            }
+        }
+    }
+}
+
+/// The deadhead legs of a route as (from, to) junction pairs, yard to
+/// yard, skipping unknown tasks.
+fn legs_of(inst: &Instance, route: &crate::plan::Route) -> Vec<(usize, usize)> {
+    let depot = inst.depot();
+    let mut at = depot;
+    let mut legs = Vec::new();
+    for v in &route.visits {
+        if let Some(t) = inst.tasks().get(v.task) {
+            let (s, e) = t.ends(v.dir);
+            legs.push((at, s));
+            at = e;
+        }
+    }
+    if !route.visits.is_empty() {
+        legs.push((at, depot));
+    }
+    legs
+}
+
+type LegDistances = BTreeMap<(usize, usize), Option<(Cost, Cost)>>;
+
+/// Least cost (and its time) of every leg, one search per distinct start.
+fn leg_distances(inst: &Instance, legs: &[Vec<(usize, usize)>]) -> LegDistances {
+    let adj = adjacency(inst);
+    let mut by_source: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
+    for l in legs.iter().flatten() {
+        by_source.entry(l.0).or_default().push(l.1);
+    }
+    let mut leg_dist = BTreeMap::new();
+    for (s, targets) in by_source {
+        let d = shortest_from(&adj, s);
+        for t in targets {
+            leg_dist.insert((s, t), d[t]);
+        }
+    }
+    leg_dist
+}
+
+/// A route's recomputed load, cost (`None` when a leg has no path) and time.
+struct Found {
+    load: Cost,
+    cost: Option<Cost>,
+    time: Cost,
+}
+
+fn route_totals(
+    inst: &Instance,
+    r: usize,
+    route: &crate::plan::Route,
+    legs: &[(usize, usize)],
+    leg_dist: &LegDistances,
+    out: &mut Vec<Violation>,
+) -> Found {
+    let (mut load, mut cost, mut time) = (0 as Cost, 0 as Cost, 0 as Cost);
+    for v in &route.visits {
+        if let Some(t) = inst.tasks().get(v.task) {
+            load = load.saturating_add(t.demand);
+            cost = cost.saturating_add(t.cost);
+            time = time.saturating_add(t.time);
+        }
+    }
+    let ids = |j: usize| inst.network().junctions[j].id;
+    let mut reachable = true;
+    for &(a, b) in legs {
+        match leg_dist[&(a, b)] {
+            Some((c, t)) => {
+                cost = cost.saturating_add(c);
+                time = time.saturating_add(t);
+            }
+            None => {
+                reachable = false;
+                out.push(Violation::NoPath {
+                    route: r,
+                    from: a,
+                    from_id: ids(a),
+                    to: b,
+                    to_id: ids(b),
+                });
+            }
+        }
+    }
+    Found {
+        load,
+        cost: reachable.then_some(cost),
+        time,
+    }
+}
+
+/// A reported route figure that may be wrong.
+#[derive(Clone, Copy)]
+enum WrongField {
+    Cost,
+    Time,
+}
+
+impl WrongField {
+    fn violation(self, route: usize, reported: Cost, actual: Cost) -> Violation {
+        match self {
+            WrongField::Cost => Violation::WrongCost {
+                route,
+                reported,
+                actual,
+            },
+            WrongField::Time => Violation::WrongTime {
+                route,
+                reported,
+                actual,
+            },
+        }
+    }
+}
+
 /// Checks explicit walks, one per truck, street by street.
 ///
 /// Checks: every step names a real link and follows it between its two ends,
@@ -507,39 +584,16 @@ pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
 /// others) within the shift limit, and at most `max_vehicles` walks.
 pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Violation>> {
     let net = inst.network();
-    let tasks = inst.tasks();
-    let fleet = inst.fleet();
-    let depot = inst.depot();
     let mut task_of = vec![None; net.links.len()];
-    for (i, t) in tasks.iter().enumerate() {
+    for (i, t) in inst.tasks().iter().enumerate() {
         task_of[t.link] = Some(i);
     }
     let mut out = Vec::new();
-    if let Some(max) = fleet.max_vehicles {
-        if walks.len() > max {
-            out.push(Violation::TooManyRoutes {
-                routes: walks.len(),
-                max,
-            });
-        }
-    }
-    let mut seen: Vec<Option<At>> = vec![None; tasks.len()];
+    fleet_size(inst, walks.len(), &mut out);
+    let mut cover = Coverage::new(inst);
     for (r, walk) in walks.iter().enumerate() {
+        walk_ends(inst, r, walk, &mut out);
         let (mut load, mut time, mut served) = (0 as Cost, 0 as Cost, 0usize);
-        if let (Some(first), Some(last)) = (walk.first(), walk.last()) {
-            if first.from != depot {
-                out.push(Violation::NotFromDepot {
-                    route: r,
-                    junction: first.from,
-                });
-            }
-            if last.to != depot {
-                out.push(Violation::NotToDepot {
-                    route: r,
-                    junction: last.to,
-                });
-            }
-        }
         for (p, s) in walk.iter().enumerate() {
             let at = At { route: r, pos: p };
             if p > 0 && walk[p - 1].to != s.from {
@@ -549,28 +603,10 @@ pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Viola
                     found: s.from,
                 });
             }
-            let Some(l) = net.links.get(s.link) else {
-                out.push(Violation::UnknownLink {
-                    at,
-                    link: s.link,
-                    links: net.links.len(),
-                });
+            let Some(forward) = step_on_link(inst, at, s, &mut out) else {
                 continue;
             };
-            let forward = (s.from, s.to) == (l.from, l.to);
-            let backward = (s.from, s.to) == (l.to, l.from);
-            if !forward && !backward {
-                out.push(Violation::NotOnLink {
-                    at,
-                    link: s.link,
-                    from: s.from,
-                    to: s.to,
-                });
-                continue;
-            }
-            if !forward && l.oneway {
-                out.push(Violation::AgainstOneWay { at, link: s.link });
-            }
+            let l = &net.links[s.link];
             if !s.serve {
                 time = time.saturating_add(l.time.unwrap_or(l.cost));
                 continue;
@@ -579,59 +615,72 @@ pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Viola
                 out.push(Violation::ServesNonRequired { at, link: s.link });
                 continue;
             };
-            let t = &tasks[ti];
+            let t = &inst.tasks()[ti];
             served += 1;
             load = load.saturating_add(t.demand);
             time = time.saturating_add(t.time);
             // A loop link (from == to) is forward either way.
-            if !forward && !t.either {
-                out.push(Violation::DirectionNotAllowed {
-                    at,
-                    task: ti,
-                    link: s.link,
-                });
-            }
-            match seen[ti] {
-                Some(first) => out.push(Violation::ServedTwice {
-                    task: ti,
-                    link: s.link,
-                    first,
-                    again: at,
-                }),
-                None => seen[ti] = Some(at),
-            }
+            let dir = if forward { Dir::Forward } else { Dir::Backward };
+            cover.visit(inst, at, ti, dir, &mut out);
         }
         if served == 0 {
             out.push(Violation::EmptyRoute { route: r });
         }
-        if load > fleet.capacity {
-            out.push(Violation::OverCapacity {
-                route: r,
-                load,
-                capacity: fleet.capacity,
-            });
-        }
-        if let Some(limit) = fleet.shift_limit {
-            if time > limit {
-                out.push(Violation::OverShift {
-                    route: r,
-                    time,
-                    limit,
-                });
-            }
-        }
+        limits(inst, r, load, Some(time), &mut out);
     }
-    for (i, s) in seen.iter().enumerate() {
-        if s.is_none() {
-            out.push(Violation::NotServed {
-                task: i,
-                link: tasks[i].link,
-            });
-        }
-    }
+    cover.finish(inst, &mut out);
     if out.is_empty() {
         Ok(())
     } else {
         Err(out)
     }
+}
+
+/// A walk starts and ends at the yard.
+fn walk_ends(inst: &Instance, r: usize, walk: &[Step], out: &mut Vec<Violation>) {
+    let depot = inst.depot();
+    if let (Some(first), Some(last)) = (walk.first(), walk.last()) {
+        if first.from != depot {
+            out.push(Violation::NotFromDepot {
+                route: r,
+                junction: first.from,
+            });
+        }
+        if last.to != depot {
+            out.push(Violation::NotToDepot {
+                route: r,
+                junction: last.to,
+            });
+        }
+    }
+}
+
+/// Whether a step drives its link forward (`Some(true)`), backward, or is
+/// not on it at all (`None`, with the violation recorded). Driving a
+/// one-way link backward is recorded too.
+fn step_on_link(inst: &Instance, at: At, s: &Step, out: &mut Vec<Violation>) -> Option<bool> {
+    let links = &inst.network().links;
+    let Some(l) = links.get(s.link) else {
+        out.push(Violation::UnknownLink {
+            at,
+            link: s.link,
+            links: links.len(),
+        });
+        return None;
+    };
+    let forward = (s.from, s.to) == (l.from, l.to);
+    let backward = (s.from, s.to) == (l.to, l.from);
+    if !forward && !backward {
+        out.push(Violation::NotOnLink {
+            at,
+            link: s.link,
+            from: s.from,
+            to: s.to,
+        });
+        return None;
+    }
+    if !forward && l.oneway {
+        out.push(Violation::AgainstOneWay { at, link: s.link });
+    }
+    Some(forward)
 }

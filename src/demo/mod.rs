@@ -218,10 +218,26 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             used: HashSet::new(),
         },
     };
+    // The parts in the order they draw from the generator (the order is
+    // part of the town a seed makes).
+    let grid = central_grid(&mut b, blocks);
+    let half = blocks as f64 * BLOCK / 2.0;
+    let corner = half * std::f64::consts::SQRT_2;
+    let rings = suburban_rings(&mut b, spec, corner);
+    let perimeter = connectors_and_spokes(&mut b, &grid, &rings);
+    cul_de_sacs(&mut b, spec, &rings, &perimeter);
+    let yard = arterial_and_yard(&mut b, spec, &grid, &rings, corner);
+    let fleet = fleet_for(&b.net, spec, capacity);
+    let name = format!("demo town (seed {}, {} blocks)", spec.seed, blocks);
+    Instance::new(name, b.net, fleet, yard)
+}
+
+/// The central grid of `blocks` x `blocks` blocks: `grid[row][col]`
+/// junctions (row 0 at the south), one-way interior rows, two avenues whose
+/// sides are served apart.
+fn central_grid(b: &mut Builder, blocks: usize) -> Vec<Vec<usize>> {
     let n = blocks + 1;
     let half = blocks as f64 * BLOCK / 2.0;
-
-    // --- Central grid -----------------------------------------------------
     let mut grid = vec![vec![0usize; n]; n]; // grid[row][col], row 0 at the south
     for (r, row) in grid.iter_mut().enumerate() {
         for (c, cell) in row.iter_mut().enumerate() {
@@ -310,9 +326,12 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             }
         }
     }
+    grid
+}
 
-    // --- Suburban rings -----------------------------------------------------
-    let corner = half * std::f64::consts::SQRT_2;
+/// Rings of curving suburban streets around the grid (corner distance
+/// `corner`); each ring as (junction, angle) pairs.
+fn suburban_rings(b: &mut Builder, spec: &TownSpec, corner: f64) -> Vec<Vec<(usize, f64)>> {
     let mut rings: Vec<Vec<(usize, f64)>> = Vec::new(); // (junction, angle)
     for k in 0..spec.rings {
         let radius = corner + 110.0 + RING_GAP * k as f64;
@@ -353,6 +372,17 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         }
         rings.push(ring);
     }
+    rings
+}
+
+/// Streets from the grid's edge to the first ring and spokes between rings;
+/// returns the grid's perimeter junctions.
+fn connectors_and_spokes(
+    b: &mut Builder,
+    grid: &[Vec<usize>],
+    rings: &[Vec<(usize, f64)>],
+) -> Vec<usize> {
+    let n = grid.len();
     // Connectors from the grid edge to the first ring, and spokes between rings.
     let perimeter: Vec<usize> = (0..n)
         .flat_map(|i| [grid[0][i], grid[n - 1][i], grid[i][0], grid[i][n - 1]])
@@ -365,7 +395,7 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             if idx % 2 == 1 {
                 continue;
             }
-            let q = nearest(&b, &first, p);
+            let q = nearest(b, &first, p);
             let len = b.straight(p, q) * 1.02;
             let name = b.names.pick(&mut b.rng, SPOKE_KINDS);
             let required = b.rng.random_bool(0.7);
@@ -389,7 +419,7 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             if i % every != start {
                 continue;
             }
-            let q = nearest(&b, &outer, p);
+            let q = nearest(b, &outer, p);
             let len = b.straight(p, q) * 1.03;
             let name = b.names.pick(&mut b.rng, SPOKE_KINDS);
             b.street(
@@ -404,11 +434,16 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             );
         }
     }
+    perimeter
+}
 
+/// Dead-end streets of one or two links off the outermost ring (or the
+/// grid's perimeter when there is no ring).
+fn cul_de_sacs(b: &mut Builder, spec: &TownSpec, rings: &[Vec<(usize, f64)>], perimeter: &[usize]) {
     // --- Cul-de-sacs on the outskirts ----------------------------------------
     let base: Vec<usize> = match rings.last() {
         Some(r) => r.iter().map(|&(j, _)| j).collect(),
-        None => perimeter.clone(),
+        None => perimeter.to_vec(),
     };
     let mut taken = HashSet::new();
     for _ in 0..spec.cul_de_sacs {
@@ -447,7 +482,18 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             at = q;
         }
     }
+}
 
+/// The fast road on the diagonal (nothing to collect) and the yard beyond
+/// its south-western end; returns the yard.
+fn arterial_and_yard(
+    b: &mut Builder,
+    spec: &TownSpec,
+    grid: &[Vec<usize>],
+    rings: &[Vec<(usize, f64)>],
+    corner: f64,
+) -> usize {
+    let n = grid.len();
     // --- The arterial and the yard ------------------------------------------
     // A fast road on the south-west to north-east diagonal with interchanges
     // at the grid's corners and centre and at each ring; nothing to collect
@@ -487,17 +533,18 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             &name,
         );
     }
+    yard
+}
 
-    // --- Fleet ----------------------------------------------------------------
-    let demand: Cost = b
-        .net
+/// A fleet for the town: enough trucks for the load and the work, plus two.
+fn fleet_for(net: &Network, spec: &TownSpec, capacity: Cost) -> Fleet {
+    let demand: Cost = net
         .links
         .iter()
         .filter_map(|l| l.service.as_ref())
         .map(|s| s.demand)
         .sum();
-    let work: Cost = b
-        .net
+    let work: Cost = net
         .links
         .iter()
         .filter_map(|l| l.service.as_ref())
@@ -508,13 +555,11 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         .shift_limit
         .map_or(0, |s| (work + s.max(1) - 1) / s.max(1));
     let max_trucks = spec.max_trucks.unwrap_or(by_load.max(by_time) as usize + 2);
-    let fleet = Fleet {
+    Fleet {
         capacity,
         shift_limit: spec.shift_limit,
         max_vehicles: Some(max_trucks.max(1)),
-    };
-    let name = format!("demo town (seed {}, {} blocks)", spec.seed, blocks);
-    Instance::new(name, b.net, fleet, yard)
+    }
 }
 
 fn nearest(b: &Builder, ring: &[(usize, f64)], p: usize) -> usize {
