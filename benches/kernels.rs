@@ -2,6 +2,7 @@
 //! (egl-e4-C, Li & Eglese 1996, from ../shared/instances): Ulusoy's split of
 //! a giant tour, one local-search descent from a split, and the
 //! constant-time evaluation of relocation moves.
+#![allow(missing_docs)] // criterion_group! makes an undocumented pub fn
 
 use std::path::PathBuf;
 

@@ -5,6 +5,7 @@
 //! ```text
 //! cargo bench --bench matching
 //! ```
+#![allow(missing_docs)] // criterion_group! makes an undocumented pub fn
 
 use arcwright::postman::{DenseBlossom, PerfectMatching};
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};

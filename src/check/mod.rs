@@ -320,6 +320,27 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
 /// legs (ties between equally cheap paths broken by least time).
 ///
 /// Returns every violation found (in a deterministic order).
+///
+/// # Errors
+/// Every [`Violation`] found, when the plan is not valid for the instance.
+///
+/// # Complexity
+/// One Dijkstra search `O((V + E) log V)` per distinct leg start (at most
+/// the number of visits plus one), then `O(visits)`; memory `O(V + E)` per
+/// search and one entry per leg.
+///
+/// ```
+/// use arcwright::check::{check_plan, Violation};
+/// use arcwright::model::{Dir, Fleet, Instance, Network};
+/// use arcwright::plan::{Plan, Route, Visit};
+/// let mut net = Network::with_junctions(2);
+/// net.add_required_edge(0, 1, 5, 1);
+/// let inst = Instance::new("one street", net, Fleet::with_capacity(1), 0).unwrap();
+/// let there_and_back = Route { visits: vec![Visit::new(0, Dir::Forward)], load: 1, cost: 10, time: 10 };
+/// assert!(check_plan(&inst, &Plan { routes: vec![there_and_back], cost: 10 }).is_ok());
+/// let nothing = Plan { routes: vec![], cost: 0 };
+/// assert_eq!(check_plan(&inst, &nothing), Err(vec![Violation::NotServed { task: 0, link: 0 }]));
+/// ```
 pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     let mut out = Vec::new();
     fleet_size(inst, plan.routes.len(), &mut out);
@@ -582,6 +603,9 @@ impl WrongField {
 /// exactly once; nothing else is served. Also the fleet limits: load within
 /// capacity, time (service time of served steps plus driving time of the
 /// others) within the shift limit, and at most `max_vehicles` walks.
+///
+/// # Errors
+/// Every [`Violation`] found, when the walks are not valid for the instance.
 pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Violation>> {
     let net = inst.network();
     let mut task_of = vec![None; net.links.len()];

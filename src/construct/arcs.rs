@@ -93,6 +93,9 @@ pub struct MatrixOverflow {
 
 impl ArcMatrix {
     /// Builds the matrices from the instance's shortest paths.
+    ///
+    /// # Errors
+    /// [`MatrixOverflow`] when a deadhead is longer than [`MAX_LEG`].
     pub fn new(inst: &Instance, dist: &Distances) -> Result<Self, MatrixOverflow> {
         let tasks = inst.tasks();
         let n = tasks.len();

@@ -199,7 +199,10 @@ pub enum SplitFailure {
     Infeasible,
     /// Every split needs more routes than the fleet bound; `fewest` is the
     /// smallest number of routes a split of this tour needs.
-    TooFewVehicles { fewest: usize },
+    TooFewVehicles {
+        /// The fewest routes any split of the tour needs.
+        fewest: usize,
+    },
 }
 
 /// A split: total cost and routes as task arcs.
@@ -214,11 +217,18 @@ pub struct Split {
 /// Splits the giant tour `tour` (task indices; any order of any subset of
 /// tasks) into feasible routes of least total cost, honouring
 /// `max_routes` when given (else the matrix's fleet bound).
+///
+/// # Errors
+/// [`SplitFailure`] when no split is feasible within the fleet bound.
 pub fn split(m: &ArcMatrix, tour: &[usize]) -> Result<Split, SplitFailure> {
     split_bounded(m, tour, m.max_routes)
 }
 
 /// [`split`] with an explicit fleet bound (`None`: unlimited).
+///
+/// # Errors
+/// [`SplitFailure::Infeasible`] when some task fits no route, [`SplitFailure::TooFewVehicles`]
+/// when more routes than `max_routes` are needed.
 pub fn split_bounded(
     m: &ArcMatrix,
     tour: &[usize],

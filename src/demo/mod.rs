@@ -208,6 +208,9 @@ impl Builder {
 /// `blocks` below 2 is raised to 2 and a capacity below 60 bins to 60 (the
 /// fullest street of a town carries fewer bins). The only error left is a
 /// shift limit too short for some street on its own (a few minutes suffice).
+///
+/// # Errors
+/// [`ModelError`] only when the shift limit is too short for some street on its own.
 pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     let blocks = spec.blocks.max(2);
     let capacity = spec.capacity.max(60);

@@ -329,6 +329,10 @@ impl Scan<'_> {
 }
 
 /// Reads a scenario file from disk.
+///
+/// # Errors
+/// [`Error::Io`] when the file cannot be read, [`ParseProblem::NotUtf8`] (with its line) when
+/// it is not UTF-8, and the errors of [`read_scenario`].
 pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
     let (name, text) = super::read_text(path.as_ref())?;
     read_scenario(&text, &name)
@@ -350,6 +354,19 @@ pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
 /// # Complexity
 /// `O(L + V + E)` for `L` bytes of text, `V` junctions and `E` streets
 /// (finding the line of a problem scans the text once per problem).
+///
+/// ```
+/// let text = r#"{"format": "arcwright-scenario", "version": 1, "name": "lane",
+///   "junctions": [{"id": 1}, {"id": 2}],
+///   "streets": [{"from": 1, "to": 2, "cost": 60, "name": "Mill Lane",
+///                "service": {"demand": 12, "cost": 75}}],
+///   "yard": 1, "fleet": {"capacity": 100}}"#;
+/// let inst = arcwright::io::read_scenario(text, "lane.json").unwrap();
+/// assert_eq!(inst.tasks()[0].cost, 75);
+/// let bad = text.replace("\"to\": 2", "\"to\": 7");
+/// let e = arcwright::io::read_scenario(&bad, "lane.json").unwrap_err();
+/// assert_eq!(e.to_string(), "lane.json:3: at `streets[0].to`: no junction has id 7");
+/// ```
 pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     // A byte-order mark, as some editors write, is not JSON: skip it.
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);

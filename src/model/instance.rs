@@ -12,43 +12,68 @@ use super::{Cost, Fleet, Network, ServeDirection};
 pub enum ModelError {
     /// The yard index is not a junction.
     #[error("the yard (junction index {depot}) is not a junction: the network has {junctions}")]
-    DepotOutOfRange { depot: usize, junctions: usize },
+    DepotOutOfRange {
+        /// The yard index given.
+        depot: usize,
+        /// The number of junctions of the network.
+        junctions: usize,
+    },
     /// A street refers to a junction that does not exist.
     #[error("street {link} refers to junction index {junction}, but the network has {junctions} junctions")]
     LinkEndOutOfRange {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
         link: usize,
+        /// The junction index given.
         junction: usize,
+        /// The number of junctions of the network.
         junctions: usize,
     },
     /// A cost, time or demand is negative.
     #[error("{street}: {what} must not be negative, found {value}")]
     Negative {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
         link: usize,
+        /// The street as messages name it (`Network::street_label`).
         street: String,
+        /// What the number is (cost, demand, ...).
         what: &'static str,
+        /// The value found.
         value: Cost,
     },
     /// The trucks' capacity is not positive.
     #[error("the truck capacity must be positive, found {capacity}")]
-    BadCapacity { capacity: Cost },
+    BadCapacity {
+        /// The truck capacity.
+        capacity: Cost,
+    },
     /// A single street to serve needs more than a whole truck.
     #[error("{street}: demand {demand} exceeds the truck capacity {capacity}")]
     DemandExceedsCapacity {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
         link: usize,
+        /// The street as messages name it (`Network::street_label`).
         street: String,
+        /// The demand of the street.
         demand: Cost,
+        /// The truck capacity.
         capacity: Cost,
     },
     /// A street to serve cannot be served on a round trip from the yard.
     #[error("{street} is to be served, but {why}")]
     Unreachable {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
         link: usize,
+        /// The street as messages name it (`Network::street_label`).
         street: String,
+        /// Why no round trip from the yard serves it.
         why: Reach,
     },
     /// The fleet allows zero trucks but there is work to do.
     #[error("the fleet allows no truck but there are {tasks} streets to serve")]
-    NoVehicles { tasks: usize },
+    NoVehicles {
+        /// The number of streets to serve.
+        tasks: usize,
+    },
 }
 
 /// Why a street to serve is out of reach of a round trip from the yard.
@@ -186,9 +211,10 @@ impl Instance {
     /// let mut net = Network::with_junctions(3);
     /// net.add_required_edge(0, 1, -4, 2);
     /// net.add_required_edge(1, 2, 5, 30);
-    /// let all = Instance::validate("two problems", net, Fleet::with_capacity(10), 0).unwrap_err();
-    /// assert_eq!(all.len(), 2);
-    /// assert!(matches!(all[1], ModelError::DemandExceedsCapacity { link: 1, .. }));
+    /// let all = Instance::validate("faults", net, Fleet::with_capacity(10), 0).unwrap_err();
+    /// // Street 0: negative cost and service cost; street 1: 30 bins in trucks of 10.
+    /// assert_eq!(all.len(), 3);
+    /// assert!(matches!(all[2], ModelError::DemandExceedsCapacity { link: 1, .. }));
     /// ```
     pub fn validate(
         name: impl Into<String>,
@@ -325,6 +351,10 @@ impl Instance {
     }
 
     /// Returns a copy with another fleet, revalidated.
+    ///
+    /// # Errors
+    /// The first [`ModelError`] with the new fleet (a capacity that is not positive, a street
+    /// heavier than a truck, no truck for the work).
     pub fn with_fleet(&self, fleet: Fleet) -> Result<Instance, ModelError> {
         Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)
     }

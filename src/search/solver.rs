@@ -271,6 +271,20 @@ impl<'a> Solver<'a> {
     /// streets (`O(K^2)` memory above 2,048 streets), then the limits set:
     /// each offspring costs one split `O(n^2)` at worst and local-search
     /// passes of `O(n k)` move evaluations (`k` = 8 neighbours).
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// use arcwright::{check::check_plan, SolveError, Solver};
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(0, 1, 4, 6);
+    /// net.add_required_edge(1, 2, 5, 6);
+    /// net.add_edge(2, 0, 7);
+    /// let inst = Instance::new("triangle", net, Fleet::with_capacity(10), 0).unwrap();
+    /// let sol = Solver::new(&inst).seed(7).max_iterations(100).solve().unwrap();
+    /// assert!(check_plan(&inst, &sol.plan).is_ok());
+    /// assert_eq!(sol.plan.routes.len(), 2); // 12 bins, trucks of 10
+    /// assert!(sol.cost >= sol.lower_bound.value);
+    /// ```
     pub fn solve(self) -> Result<Solution, SolveError> {
         let start = Instant::now();
         let inst = self.inst;
