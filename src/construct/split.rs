@@ -241,24 +241,7 @@ pub fn split_bounded(
             routes: Vec::new(),
         });
     }
-    // Edges i -> j (route tour[i..j]) with cost and label choice.
-    let mut edges: Vec<Vec<(u32, i64, bool)>> = vec![Vec::new(); n];
-    for i in 0..n {
-        let mut load = 0;
-        let mut lab = Labels::start(m, tour[i]);
-        for j in i..n {
-            if j > i {
-                lab = lab.extend(m, tour[j - 1], tour[j]);
-            }
-            load += m.demand[2 * tour[j]];
-            if load > m.capacity {
-                break;
-            }
-            if let Some((c, q)) = lab.close(m, tour[j]) {
-                edges[i].push(((j + 1) as u32, c, q));
-            }
-        }
-    }
+    let edges = auxiliary_edges(m, tour);
     // Unbounded shortest path, with route counts as tie-break (fewest routes).
     let mut v = vec![(INF, usize::MAX); n + 1];
     let mut pred = vec![(usize::MAX, false); n + 1];
@@ -279,64 +262,19 @@ pub fn split_bounded(
     if v[n].0 >= INF {
         return Err(SplitFailure::Infeasible);
     }
-    let mut cuts: Vec<(usize, usize, bool)> = Vec::new();
-    match max_routes {
-        Some(k) if v[n].1 > k => {
-            // Fewest routes of any split: BFS-like DP on counts.
-            let mut fewest = vec![usize::MAX; n + 1];
-            fewest[0] = 0;
-            for i in 0..n {
-                if fewest[i] == usize::MAX {
-                    continue;
-                }
-                for &(j, _, _) in &edges[i] {
-                    let j = j as usize;
-                    fewest[j] = fewest[j].min(fewest[i] + 1);
-                }
-            }
-            if fewest[n] > k {
-                return Err(SplitFailure::TooFewVehicles { fewest: fewest[n] });
-            }
-            // Layered DP: best[r][j] = cheapest cover of tour[..j] by r routes.
-            let mut best = vec![vec![INF; n + 1]; k + 1];
-            let mut bp = vec![vec![(usize::MAX, false); n + 1]; k + 1];
-            best[0][0] = 0;
-            for r in 0..k {
-                for i in 0..n {
-                    let b = best[r][i];
-                    if b >= INF {
-                        continue;
-                    }
-                    for &(j, c, q) in &edges[i] {
-                        let j = j as usize;
-                        if b + c < best[r + 1][j] {
-                            best[r + 1][j] = b + c;
-                            bp[r + 1][j] = (i, q);
-                        }
-                    }
-                }
-            }
-            let (mut r, _) = (1..=k)
-                .map(|r| (r, best[r][n]))
-                .min_by_key(|&(r, c)| (c, r))
-                .expect("k >= 1");
-            let mut j = n;
-            while j > 0 {
-                let (i, q) = bp[r][j];
-                cuts.push((i, j, q));
-                j = i;
-                r -= 1;
-            }
-        }
+    let mut cuts = match max_routes {
+        Some(k) if v[n].1 > k => bounded_cuts(&edges, k)?,
         _ => {
+            let mut cuts = Vec::new();
             let mut j = n;
             while j > 0 {
                 let (i, q) = pred[j];
                 cuts.push((i, j, q));
                 j = i;
             }
+            cuts
         }
-    }
+    };
     cuts.reverse();
     let mut cost = 0;
     let routes: Vec<Vec<u32>> = cuts
@@ -348,6 +286,86 @@ pub fn split_bounded(
         })
         .collect();
     Ok(Split { cost, routes })
+}
+
+/// Arcs of the auxiliary graph: from `i`, to each `j` such that the route
+/// `tour[i..j]` fits the capacity and some label, with its cost and label
+/// choice (quick label or not).
+type AuxEdges = Vec<Vec<(u32, i64, bool)>>;
+
+fn auxiliary_edges(m: &ArcMatrix, tour: &[usize]) -> AuxEdges {
+    let n = tour.len();
+    let mut edges: AuxEdges = vec![Vec::new(); n];
+    for i in 0..n {
+        let mut load = 0;
+        let mut lab = Labels::start(m, tour[i]);
+        for j in i..n {
+            if j > i {
+                lab = lab.extend(m, tour[j - 1], tour[j]);
+            }
+            load += m.demand[2 * tour[j]];
+            if load > m.capacity {
+                break;
+            }
+            if let Some((c, q)) = lab.close(m, tour[j]) {
+                edges[i].push(((j + 1) as u32, c, q));
+            }
+        }
+    }
+    edges
+}
+
+/// The cheapest split into at most `k` routes, as (start, end, quick) cuts
+/// from the end of the tour backwards.
+fn bounded_cuts(edges: &AuxEdges, k: usize) -> Result<Vec<(usize, usize, bool)>, SplitFailure> {
+    let n = edges.len();
+    // Fewest routes of any split: BFS-like DP on counts.
+    let mut fewest = vec![usize::MAX; n + 1];
+    fewest[0] = 0;
+    for i in 0..n {
+        if fewest[i] == usize::MAX {
+            continue;
+        }
+        for &(j, _, _) in &edges[i] {
+            let j = j as usize;
+            fewest[j] = fewest[j].min(fewest[i] + 1);
+        }
+    }
+    if fewest[n] > k {
+        return Err(SplitFailure::TooFewVehicles { fewest: fewest[n] });
+    }
+    // Layered DP: best[r][j] = cheapest cover of tour[..j] by r routes.
+    let mut best = vec![vec![INF; n + 1]; k + 1];
+    let mut bp = vec![vec![(usize::MAX, false); n + 1]; k + 1];
+    best[0][0] = 0;
+    for r in 0..k {
+        for i in 0..n {
+            let b = best[r][i];
+            if b >= INF {
+                continue;
+            }
+            for &(j, c, q) in &edges[i] {
+                let j = j as usize;
+                if b + c < best[r + 1][j] {
+                    best[r + 1][j] = b + c;
+                    bp[r + 1][j] = (i, q);
+                }
+            }
+        }
+    }
+    let (mut r, _) = (1..=k)
+        .map(|r| (r, best[r][n]))
+        .min_by_key(|&(r, c)| (c, r))
+        .expect("k >= fewest[n] >= 1");
+    let mut cuts = Vec::new();
+    let mut j = n;
+    while j > 0 {
+        let (i, q) = bp[r][j];
+        cuts.push((i, j, q));
+        j = i;
+        r -= 1;
+    }
+    Ok(cuts)
 }
 
 #[cfg(test)]
