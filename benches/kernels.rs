@@ -4,8 +4,6 @@
 //! constant-time evaluation of relocation moves.
 #![allow(missing_docs)] // criterion_group! makes an undocumented pub fn
 
-use std::path::PathBuf;
-
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
@@ -17,13 +15,13 @@ use arcwright::improve::local_search::{neighbour_lists, LocalSearch, DEFAULT_NEI
 use arcwright::io::read_dat_file;
 use arcwright::paths::Distances;
 
+#[path = "../tests/common/mod.rs"]
+mod common;
+
 fn kernels(c: &mut Criterion) {
-    let path =
-        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/instances/egl/egl-e4-C.dat");
-    if !path.exists() {
-        eprintln!("SKIPPED: {} not found", path.display());
+    let Some(path) = common::shared_file("kernels", "egl/egl-e4-C.dat") else {
         return;
-    }
+    };
     let dat = read_dat_file(&path).unwrap();
     let inst = &dat.instance;
     let dist = Distances::new(inst).unwrap();
