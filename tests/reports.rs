@@ -5,7 +5,9 @@ use std::path::PathBuf;
 
 use arcwright::check::{check_plan, check_walks};
 use arcwright::demo::{town, TownSpec};
-use arcwright::model::{Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec};
+use arcwright::model::{
+    Coordinates, Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec,
+};
 use arcwright::paths::Distances;
 use arcwright::plan::{evaluate, walk, Plan, Visit};
 use arcwright::report::{self, geo, sheets, svg};
@@ -60,29 +62,14 @@ fn shared(rel: &str) -> Option<PathBuf> {
     }
 }
 
-/// Minimal RFC 4180 reader for the test (quoted fields, doubled quotes).
+/// Reads CSV with the `csv` crate (RFC 4180), header row included.
 fn csv_rows(text: &str) -> Vec<Vec<String>> {
-    let mut rows = Vec::new();
-    for line in text.lines().filter(|l| !l.starts_with('#')) {
-        let mut fields = Vec::new();
-        let mut cur = String::new();
-        let mut quoted = false;
-        let mut chars = line.chars().peekable();
-        while let Some(c) = chars.next() {
-            match (c, quoted) {
-                ('"', true) if chars.peek() == Some(&'"') => {
-                    cur.push('"');
-                    chars.next();
-                }
-                ('"', _) => quoted = !quoted,
-                (',', false) => fields.push(std::mem::take(&mut cur)),
-                (c, _) => cur.push(c),
-            }
-        }
-        fields.push(cur);
-        rows.push(fields);
-    }
-    rows
+    let mut r = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .from_reader(text.as_bytes());
+    r.records()
+        .map(|x| x.unwrap().iter().map(String::from).collect())
+        .collect()
 }
 
 fn demo() -> (Instance, Distances, Plan) {
@@ -113,18 +100,22 @@ fn sheet_totals_add_up_to_the_plan() {
     let mut served = 0;
     for r in 0..plan.routes.len() {
         let csv = sheets::route_csv(&inst, &dist, &plan, r);
-        for c in report::CAUTIONS {
-            assert!(csv.contains(c));
-        }
+        // Plain CSV: the header on line 1, no comment lines; the cautions
+        // live in the summary and the Markdown sheets.
+        assert!(csv.starts_with("step,street,link,"), "{csv}");
+        assert!(!csv.contains(report::CAUTIONS[0]));
         let rows = csv_rows(&csv);
+        assert!(rows.iter().all(|x| x.len() == rows[0].len()));
         let head = &rows[0];
         let col = |name: &str| head.iter().position(|h| h == name).unwrap();
+        // The demo town declares its units: every column says it.
         let (dcol, acol, lcol, ccol) = (
-            col("distance"),
+            col("cost (m)"),
             col("action"),
-            col("load_after"),
-            col("distance_after"),
+            col("load_after (bins)"),
+            col("cost_so_far (m)"),
         );
+        let tcol = col("time_so_far (s)");
         let body = &rows[1..];
         assert_eq!(body.len(), walk(&inst, &dist, &plan.routes[r].visits).len());
         let sum: i64 = body.iter().map(|x| x[dcol].parse::<i64>().unwrap()).sum();
@@ -142,8 +133,7 @@ fn sheet_totals_add_up_to_the_plan() {
         served += body.iter().filter(|x| x[acol] == "serve").count();
         total += sum;
         // Time column agrees with the route's time.
-        let rows = sheets::route_rows(&inst, &dist, &plan, r);
-        assert_eq!(rows.last().unwrap().time, plan.routes[r].time);
+        assert_eq!(last[tcol].parse::<i64>().unwrap(), plan.routes[r].time);
     }
     assert_eq!(total, plan.cost);
     assert_eq!(served, inst.tasks().len());
@@ -154,12 +144,20 @@ fn sheet_totals_add_up_to_the_plan() {
     assert!(md.contains(report::CAUTIONS[0]));
     let summary = report::summary_table(&inst, &plan, &Default::default());
     assert!(summary.contains(&plan.cost.to_string()));
+    assert!(summary.contains(report::CAUTIONS[0]));
 }
 
 #[test]
 fn geojson_parses_and_has_one_feature_per_step() {
     let (inst, dist, plan) = demo();
-    let text = geo::feature_collection(&inst, &dist, &plan, None).unwrap();
+    // The invented town has planar metres without an origin: no GeoJSON.
+    assert!(geo::feature_collection(&inst, &dist, &plan).is_none());
+    let inst = inst
+        .with_coordinates(Coordinates::Planar {
+            origin: Some((10.0, 54.0)),
+        })
+        .unwrap();
+    let text = geo::feature_collection(&inst, &dist, &plan).unwrap();
     let gj: geojson::GeoJson = text.parse().expect("valid GeoJSON");
     let geojson::GeoJson::FeatureCollection(fc) = gj else {
         panic!("not a FeatureCollection")
@@ -208,7 +206,7 @@ fn svg_is_well_formed_and_draws_every_step() {
     let drawn = doc
         .descendants()
         .filter(|n| {
-            n.tag_name().name() == "line"
+            matches!(n.tag_name().name(), "line" | "polyline")
                 && n.parent()
                     .and_then(|p| p.attribute("id"))
                     .is_some_and(|id| id.starts_with("route-"))
@@ -251,6 +249,7 @@ fn awkward_names_survive_csv_markdown_and_svg() {
                 direction: ServeDirection::Either,
             }),
             name: (a == 0).then(|| name.to_string()),
+            length: None,
         });
     }
     let inst = Instance::new("awkward", net, Fleet::with_capacity(10), 0).unwrap();
@@ -260,7 +259,7 @@ fn awkward_names_survive_csv_markdown_and_svg() {
     let csv = sheets::route_csv(&inst, &dist, &plan, 0);
     let rows = csv_rows(&csv);
     assert!(rows.iter().any(|r| r[1] == name));
-    assert!(rows.iter().any(|r| r[1] == "link 1"));
+    assert!(rows.iter().any(|r| r[1] == "street 2–3 (#1)"), "{rows:?}");
     assert!(rows[1..].iter().all(|r| r.len() == rows[0].len()));
     let svg_text = svg::map(&inst, &dist, &plan).unwrap();
     let doc = roxmltree::Document::parse(&svg_text).unwrap();
@@ -280,18 +279,30 @@ fn research_files_without_coordinates_get_sheets_but_no_maps() {
     let dist = Distances::new(&inst).unwrap();
     let plan = greedy(&inst, &dist);
     valid(&inst, &dist, &plan);
-    assert!(geo::feature_collection(&inst, &dist, &plan, None).is_none());
+    assert!(geo::feature_collection(&inst, &dist, &plan).is_none());
     assert!(svg::map(&inst, &dist, &plan).is_none());
     let total: i64 = (0..plan.routes.len())
         .map(|r| {
             sheets::route_rows(&inst, &dist, &plan, r)
                 .last()
                 .unwrap()
-                .cumulative_distance
+                .cost_so_far
         })
         .sum();
     assert_eq!(total, plan.cost);
-    assert!(sheets::markdown(&inst, &dist, &plan).contains("| link "));
+    let md = sheets::markdown(&inst, &dist, &plan);
+    assert!(
+        md.contains("| street "),
+        "unnamed streets are named by their junctions"
+    );
+    // Research files have no times of their own and declare no units: no
+    // time column repeating the cost, and the units are said to be unknown.
+    let header = md.lines().find(|l| l.starts_with("| step")).unwrap();
+    assert!(!header.contains("time"), "{header}");
+    assert!(!md.contains("time 0") && !md.contains(", time "), "{md}");
+    assert!(md.contains("cost (cost units)"));
+    let csv = sheets::route_csv(&inst, &dist, &plan, 0);
+    assert!(!csv.lines().next().unwrap().contains("time"));
 }
 
 #[test]

@@ -1,27 +1,29 @@
 //! The two things the planner does: plan a scenario and write the reports,
-//! and re-verify a plan file.
+//! and re-verify a plan file. Everything of substance is a library call.
 
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 
-use crate::check::{check_plan, check_walks, Violation};
-use crate::demo::{town, TownSpec};
-use crate::io::plan_json::{read_plan_as_written, read_plan_with, write_plan};
-use crate::io::{read_dat_file, read_scenario, read_scenario_file};
-use crate::model::Instance;
-use crate::paths::Distances;
-use crate::plan::{walk, Plan};
-use crate::report::{bundle, summary_table, OutputFile, SummaryExtras};
-use crate::search::{Progress, Solution, Solver};
+use arcwright::check::{check_plan, check_walks, Violation};
+use arcwright::demo::{town, TownSpec};
+use arcwright::io::plan_json::{read_plan_as_written, read_plan_with, write_plan};
+use arcwright::io::{read_dat_file, read_scenario, read_scenario_file, write_scenario};
+use arcwright::model::Instance;
+use arcwright::paths::Distances;
+use arcwright::plan::{walk, Plan};
+use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
+use arcwright::{Progress, Solver};
 
-use super::{write_files, AppError, FleetOverrides, PlanOptions, DEFAULT_SCENARIO};
+use crate::cli::{FleetArgs, PlanArgs, DEFAULT_SCENARIO};
+use crate::output::{prepare_folder, write_files};
+use crate::AppError;
 
 /// Reads a scenario: a research-format file when the name ends in `.dat`
 /// (any case), our JSON scenario format when it ends in `.json`, and for
 /// other names whichever the text looks like (JSON starts with `{`). Fleet
 /// overrides are applied and the result revalidated.
-pub fn load_scenario(path: &Path, fleet: &FleetOverrides) -> Result<Instance, AppError> {
+pub fn load_scenario(path: &Path, fleet: &FleetArgs) -> Result<Instance, AppError> {
     let ext = path
         .extension()
         .map(|e| e.to_string_lossy().to_ascii_lowercase());
@@ -30,6 +32,7 @@ pub fn load_scenario(path: &Path, fleet: &FleetOverrides) -> Result<Instance, Ap
         Some("json") => false,
         // Unreadable files fall through to the JSON reader, which names them.
         _ => std::fs::read(path).is_ok_and(|b| {
+            let b = b.strip_prefix("\u{feff}".as_bytes()).unwrap_or(&b);
             b.iter()
                 .find(|c| !c.is_ascii_whitespace())
                 .is_some_and(|&c| c != b'{')
@@ -47,8 +50,8 @@ pub fn load_scenario(path: &Path, fleet: &FleetOverrides) -> Result<Instance, Ap
 /// [`DEFAULT_SCENARIO`] when it exists, or else the demo town generated in
 /// memory (the same town; used when the program runs outside the project
 /// folder). Returns the instance and a description for the summary.
-pub fn resolve_scenario(opts: &PlanOptions) -> Result<(Instance, String), AppError> {
-    if let Some(p) = &opts.input {
+pub fn resolve_scenario(opts: &PlanArgs) -> Result<(Instance, String), AppError> {
+    if let Some(p) = &opts.scenario {
         return Ok((load_scenario(p, &opts.fleet)?, p.display().to_string()));
     }
     let default = Path::new(DEFAULT_SCENARIO);
@@ -60,8 +63,7 @@ pub fn resolve_scenario(opts: &PlanOptions) -> Result<(Instance, String), AppErr
     }
     let inst = town(&TownSpec::demo()).map_err(AppError::Fleet)?;
     // Going through the scenario text keeps this path identical to reading the file.
-    let inst =
-        read_scenario(&crate::io::write_scenario(&inst), "<demo town>").map_err(AppError::Input)?;
+    let inst = read_scenario(&write_scenario(&inst), "<demo town>").map_err(AppError::Input)?;
     let inst = opts.fleet.apply(inst).map_err(AppError::Fleet)?;
     Ok((inst, "the demo town (generated)".to_string()))
 }
@@ -79,19 +81,14 @@ pub struct Hooks<'a> {
 }
 
 /// What a planning run did.
-#[derive(Debug)]
 pub struct PlanRun {
-    /// The instance planned (with overrides applied).
-    pub instance: Instance,
-    /// Where it came from.
+    /// Where the scenario came from.
     pub source: String,
-    /// The solver's result (its plan passed the checker).
-    pub solution: Solution,
     /// Whether the stop flag ended the search.
     pub stopped_early: bool,
     /// The summary table, with cautions.
     pub summary: String,
-    /// The files written, plan file first.
+    /// The files written, in the order of [`render`].
     pub files: Vec<PathBuf>,
 }
 
@@ -115,7 +112,7 @@ pub fn render(
     plan: &Plan,
     extras: &SummaryExtras,
 ) -> Result<Vec<OutputFile>, AppError> {
-    verify(inst, dist, plan).map_err(AppError::Refused)?;
+    verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
     let json = write_plan(inst, plan, extras.lower_bound.as_ref().map(|b| b.0));
     match read_plan_with(&json, "plan.json", inst, dist) {
         Ok(back) if back == *plan => {}
@@ -139,16 +136,17 @@ pub fn render(
 }
 
 /// Plans the scenario of `opts` and writes the plan and reports into
-/// `opts.out`.
-pub fn run_plan(opts: &PlanOptions, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
+/// `opts.out` (checked before the search).
+pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
     let (inst, source) = resolve_scenario(opts)?;
+    prepare_folder(&opts.out)?;
     let stop = hooks
         .stop
         .clone()
         .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
     let mut solver = Solver::new(&inst)
         .seed(opts.seed)
-        .workers(opts.workers)
+        .workers(opts.effective_workers())
         .stop_flag(stop.clone());
     if let Some(t) = opts.effective_time_limit() {
         solver = solver.time_limit(t);
@@ -176,9 +174,7 @@ pub fn run_plan(opts: &PlanOptions, hooks: Hooks<'_>) -> Result<PlanRun, AppErro
     let summary = summary_table(&inst, &solution.plan, &extras);
     let files = write_files(&opts.out, &files)?;
     Ok(PlanRun {
-        instance: inst,
         source,
-        solution,
         stopped_early,
         summary,
         files,
@@ -186,38 +182,88 @@ pub fn run_plan(opts: &PlanOptions, hooks: Hooks<'_>) -> Result<PlanRun, AppErro
 }
 
 /// What re-verifying a plan file found.
-#[derive(Debug)]
 pub struct CheckRun {
-    /// The plan as the file states it ([`read_plan_as_written`]): stated
-    /// loads and costs, recomputed route times.
+    /// The plan as the file states it: stated loads and costs, recomputed
+    /// route times.
     pub plan: Plan,
-    /// Every violation found (empty when the plan is valid).
-    pub violations: Vec<Violation>,
+    /// Every problem found, in the words of the sheets (empty when valid).
+    pub problems: Vec<String>,
+}
+
+/// The checker's findings in the words of the sheets.
+fn describe_all(inst: &Instance, v: &[Violation]) -> Vec<String> {
+    v.iter()
+        .map(|x| arcwright::report::describe(inst, x))
+        .collect()
 }
 
 /// Reads `plan_file` against `scenario` and checks it with the independent
 /// checker (plan and explicit walks).
 ///
-/// The plan file is read with [`read_plan_as_written`], which refuses only a
-/// file that is not a plan of the scenario (bad JSON or schema, another
-/// instance, a service naming no required link or not its two ends): that
-/// is an `Err` ([`AppError::Input`]). Everything else wrong with a readable
-/// file (a street served twice or not at all, a wrong stated load, route
-/// cost or total, the fleet limits) is listed in
-/// [`CheckRun::violations`], all of it, not only the first problem. The
-/// walks are checked only when the plan itself passes.
+/// A file that is not a plan of the scenario is an `Err`
+/// ([`AppError::Input`]); everything else wrong with a readable file is
+/// listed in [`CheckRun::problems`], all of it. The walks are checked only
+/// when the plan itself passes.
 pub fn run_check(
     scenario: &Path,
     plan_file: &Path,
-    fleet: &FleetOverrides,
+    fleet: &FleetArgs,
 ) -> Result<CheckRun, AppError> {
     let inst = load_scenario(scenario, fleet)?;
-    let (name, text) = crate::io::read_text(plan_file).map_err(AppError::Input)?;
+    let (name, text) = arcwright::io::read_text(plan_file).map_err(AppError::Input)?;
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let violations = match check_plan(&inst, &plan) {
         Err(v) => v,
         Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),
     };
-    Ok(CheckRun { plan, violations })
+    Ok(CheckRun {
+        plan,
+        problems: describe_all(&inst, &violations),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use arcwright::model::{Dir, Fleet};
+    use arcwright::plan::Visit;
+
+    fn demo() -> Instance {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(DEFAULT_SCENARIO);
+        load_scenario(&path, &FleetArgs::default()).unwrap()
+    }
+
+    #[test]
+    fn a_plan_failing_the_checker_is_refused() {
+        let inst = demo();
+        let dist = Distances::new(&inst).unwrap();
+        // Every task on its own route: valid except that it needs far more
+        // trucks than the fleet has.
+        let routes: Vec<Vec<Visit>> = (0..inst.tasks().len())
+            .map(|t| vec![Visit::new(t, Dir::Forward)])
+            .collect();
+        let plan = Plan::from_visits(&inst, &dist, routes);
+        match render(&inst, &dist, &plan, &Default::default()) {
+            Err(AppError::Refused(v)) => {
+                assert!(v.iter().any(|x| x.contains("trucks")), "{v:?}");
+            }
+            other => panic!("not refused: {:?}", other.map(|f| f.len())),
+        }
+        // A plan with a misreported cost is refused too.
+        let loose = inst
+            .with_fleet(Fleet::with_capacity(inst.total_demand()))
+            .unwrap();
+        let all: Vec<Visit> = (0..loose.tasks().len())
+            .map(|t| Visit::new(t, Dir::Forward))
+            .collect();
+        let mut bad = Plan::from_visits(&loose, &dist, vec![all]);
+        assert!(render(&loose, &dist, &bad, &Default::default()).is_ok());
+        bad.routes[0].cost -= 1;
+        bad.cost -= 1;
+        assert!(matches!(
+            render(&loose, &dist, &bad, &Default::default()),
+            Err(AppError::Refused(_))
+        ));
+    }
 }
