@@ -596,3 +596,152 @@ fn readme_library_snippet_runs() {
     let readme = std::fs::read_to_string(Path::new(ROOT).join("README.md")).unwrap();
     assert!(readme.contains("Solver::new(&inst).seed(1).workers(1).max_iterations(50).solve()"));
 }
+
+/// Defect: a required two-way self-loop served backward was written as
+/// from = to, read back forward, and the planner refused its own valid plan
+/// ("does not read back to the same plan"), depending on the seed. The
+/// fixture has six such loops; every seed tried failed before the fix.
+#[test]
+fn required_two_way_self_loops_are_planned_for_every_seed() {
+    let scenario = Path::new(ROOT).join("tests/fixtures/self_loops.json");
+    let inst = read_scenario_file(&scenario).unwrap();
+    let loops = inst.tasks().iter().filter(|t| t.tail == t.head && t.either);
+    assert!(loops.count() >= 6);
+    for seed in 1..=4 {
+        let dir = out_dir(&format!("planner-self-loops-{seed}"));
+        let s = seed.to_string();
+        let args = [
+            scenario.to_str().unwrap(),
+            "--seed",
+            &s,
+            "--iterations",
+            "30",
+        ];
+        plan_ok(&args, &dir);
+        check_plan(&inst, &written_plan(&dir, &inst)).unwrap();
+        let o = planner([
+            "check".as_ref(),
+            scenario.as_os_str(),
+            dir.join("plan.json").as_os_str(),
+        ]);
+        assert!(o.status.success(), "seed {seed}: {:?}", text(&o));
+    }
+}
+
+/// `planner check` reads the plan file's `version` and `lower_bound`, and
+/// tells swapped arguments and plan-only options apart from other errors.
+#[test]
+fn check_verifies_version_and_lower_bound_and_explains_misuse() {
+    let dir = out_dir("planner-check-claims");
+    plan_ok(&["--iterations", "10", "--workers", "1"], &dir);
+    let good = dir.join("plan.json");
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&good).unwrap()).unwrap();
+    let cost = json["cost"].as_i64().unwrap();
+    // A lower bound above the plan's own cost is a false claim: exit 1.
+    let mut v = json.clone();
+    v["lower_bound"] = (cost + 1).into();
+    let bound = dir.join("bound-above-cost.json");
+    std::fs::write(&bound, v.to_string()).unwrap();
+    let o = planner(["check".as_ref(), DEMO.as_ref(), bound.as_os_str()]);
+    let (stdout, _) = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{stdout}");
+    assert!(stdout.contains("lower bound of"), "{stdout}");
+    assert!(stdout.contains("1 problem(s)"), "{stdout}");
+    // A plan format this program does not know: exit 2, naming the version.
+    let mut v = json.clone();
+    v["version"] = 2.into();
+    let v2 = dir.join("version-2.json");
+    std::fs::write(&v2, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+    let o = planner(["check".as_ref(), DEMO.as_ref(), v2.as_os_str()]);
+    let (_, stderr) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("version 2"), "{stderr}");
+    // Swapped arguments are named as such.
+    let o = planner(["check".as_ref(), good.as_os_str(), DEMO.as_ref()]);
+    let (_, stderr) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("is a plan file, not a scenario"),
+        "{stderr}"
+    );
+    assert!(stderr.contains("planner check SCENARIO PLAN"), "{stderr}");
+    // Options of a planning run are refused by `check`.
+    for opt in [["--seed", "3"], ["--out", "x"]] {
+        let o = planner(
+            ["check".as_ref(), DEMO.as_ref(), good.as_os_str()]
+                .into_iter()
+                .chain(opt.iter().map(|x| x.as_ref())),
+        );
+        let (_, stderr) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{stderr}");
+        assert!(
+            stderr.contains(&format!("{} means nothing for `check`", opt[0])),
+            "{stderr}"
+        );
+    }
+}
+
+/// plan.json records each route's time (and length when the scenario gives
+/// lengths), the units, and how the plan was made.
+#[test]
+fn plan_file_records_route_times_lengths_and_run_settings() {
+    let dir = out_dir("planner-plan-record");
+    let scenario = Path::new(ROOT).join("tests/fixtures/lengths.json");
+    let s = scenario.to_str().unwrap();
+    plan_ok(
+        &[s, "--iterations", "25", "--seed", "5", "--workers", "2"],
+        &dir,
+    );
+    let inst = read_scenario_file(&scenario).unwrap();
+    let plan = written_plan(&dir, &inst);
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("plan.json")).unwrap()).unwrap();
+    let run = &json["run"];
+    assert_eq!(run["seed"], 5);
+    assert_eq!(run["workers"], 2);
+    assert_eq!(run["max_iterations"], 25);
+    assert!(run["time_limit_s"].is_null());
+    assert!(run["iterations"].as_u64().unwrap() <= 25);
+    assert_eq!(run["crate_version"], env!("CARGO_PKG_VERSION"));
+    assert_eq!(json["units"]["length"], "m");
+    assert_eq!(json["units"]["time"], "min");
+    let dist = Distances::new(&inst).unwrap();
+    for (r, route) in plan.routes.iter().enumerate() {
+        let j = &json["routes"][r];
+        assert_eq!(j["time"].as_i64().unwrap(), route.time);
+        // The length is the sum of the lengths of the streets driven.
+        let walked: i64 = walk(&inst, &dist, &route.visits)
+            .iter()
+            .map(|s| inst.network().links[s.link].length.unwrap())
+            .sum();
+        assert_eq!(j["length"].as_i64().unwrap(), walked);
+    }
+}
+
+/// The output folder is checked before the search: `--out` naming a file,
+/// or a folder that cannot be created, fails at once (a 10-minute search
+/// limit would otherwise be spent first), and nothing is written.
+#[test]
+fn a_bad_output_folder_is_refused_before_the_search() {
+    let dir = out_dir("planner-bad-out");
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("taken.txt");
+    std::fs::write(&file, "not a folder").unwrap();
+    for out in [file.clone(), file.join("sub")] {
+        let start = std::time::Instant::now();
+        let o = planner([
+            "--time-limit".as_ref(),
+            "600".as_ref(),
+            "--quiet".as_ref(),
+            "--out".as_ref(),
+            out.as_os_str(),
+        ]);
+        let (stdout, stderr) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{stdout}\n{stderr}");
+        assert!(start.elapsed().as_secs() < 60, "{:?}", start.elapsed());
+        assert!(stderr.contains("taken.txt"), "{stderr}");
+        assert!(stderr.contains("nothing was searched"), "{stderr}");
+    }
+    assert_eq!(std::fs::read_to_string(&file).unwrap(), "not a folder");
+}

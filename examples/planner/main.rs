@@ -74,7 +74,39 @@ pub enum AppError {
     },
 }
 
+/// Options that only a planning run understands.
+const PLAN_ONLY: [&str; 6] = [
+    "--seed",
+    "--time-limit",
+    "--iterations",
+    "--workers",
+    "--out",
+    "--quiet",
+];
+
+/// `planner check ... --seed 3`: an option that means nothing for `check`
+/// gets a message that says so (clap alone would call it unexpected).
+fn refuse_plan_options_for_check() -> Option<ExitCode> {
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    if args.first().map(String::as_str) != Some("check") {
+        return None;
+    }
+    let opt = args
+        .iter()
+        .take_while(|a| *a != "--")
+        .map(|a| a.split('=').next().unwrap_or(a))
+        .find(|a| PLAN_ONLY.contains(a))?;
+    eprintln!(
+        "planner: {opt} means nothing for `check`, which re-verifies a plan file without \
+         searching or writing; check takes only --capacity, --shift-limit and --max-trucks"
+    );
+    Some(ExitCode::from(2))
+}
+
 fn main() -> ExitCode {
+    if let Some(code) = refuse_plan_options_for_check() {
+        return code;
+    }
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {

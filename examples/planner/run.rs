@@ -7,7 +7,10 @@ use std::sync::Arc;
 
 use arcwright::check::{check_plan, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
-use arcwright::io::plan_json::{read_plan_as_written, read_plan_with, write_plan};
+use arcwright::io::plan_json::{
+    read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
+    RunSettings,
+};
 use arcwright::io::{read_dat_file, read_scenario, read_scenario_file, write_scenario};
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
@@ -105,15 +108,24 @@ pub fn verify(inst: &Instance, dist: &Distances, plan: &Plan) -> Result<(), Vec<
 
 /// The plan file and every report for `plan`, after checking it: a plan that
 /// fails the independent checker is refused ([`AppError::Refused`]), and so
-/// is a plan file that does not read back to the same plan.
+/// is a plan file that does not read back to the same plan. Self-loops are
+/// written served forward ([`Plan::self_loops_forward`]): the same drive, and
+/// the only direction a plan file can state for them.
 pub fn render(
     inst: &Instance,
     dist: &Distances,
     plan: &Plan,
     extras: &SummaryExtras,
+    run: Option<RunSettings>,
 ) -> Result<Vec<OutputFile>, AppError> {
+    let plan = &plan.clone().self_loops_forward(inst);
     verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
-    let json = write_plan(inst, plan, extras.lower_bound.as_ref().map(|b| b.0));
+    let record = PlanRecord {
+        lower_bound: extras.lower_bound.as_ref().map(|b| b.0),
+        route_lengths: arcwright::report::route_lengths(inst, dist, plan),
+        run,
+    };
+    let json = write_plan_record(inst, plan, &record);
     match read_plan_with(&json, "plan.json", inst, dist) {
         Ok(back) if back == *plan => {}
         Ok(_) => {
@@ -170,7 +182,17 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         iterations: Some(solution.stats.iterations),
         stopped_early,
     };
-    let files = render(&inst, &dist, &solution.plan, &extras)?;
+    let run = RunSettings {
+        seed: opts.seed,
+        workers: opts.effective_workers(),
+        time_limit_s: opts.effective_time_limit().map(|t| t.as_secs_f64()),
+        max_iterations: opts.iterations,
+        iterations: solution.stats.iterations,
+        elapsed_s: (solution.stats.elapsed.as_secs_f64() * 1000.0).round() / 1000.0,
+        stopped_early,
+        crate_version: env!("CARGO_PKG_VERSION").to_string(),
+    };
+    let files = render(&inst, &dist, &solution.plan, &extras, Some(run))?;
     let summary = summary_table(&inst, &solution.plan, &extras);
     let files = write_files(&opts.out, &files)?;
     Ok(PlanRun {
@@ -209,18 +231,56 @@ pub fn run_check(
     plan_file: &Path,
     fleet: &FleetArgs,
 ) -> Result<CheckRun, AppError> {
+    refuse_swapped(scenario, plan_file)?;
     let inst = load_scenario(scenario, fleet)?;
     let (name, text) = arcwright::io::read_text(plan_file).map_err(AppError::Input)?;
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
+    let claims = read_plan_claims(&text, &name).map_err(AppError::Input)?;
     let violations = match check_plan(&inst, &plan) {
         Err(v) => v,
         Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),
     };
-    Ok(CheckRun {
-        plan,
-        problems: describe_all(&inst, &violations),
-    })
+    let mut problems = describe_all(&inst, &violations);
+    if let Some(b) = claims.lower_bound {
+        let units = inst.units();
+        if b > plan.cost {
+            problems.push(format!(
+                "the plan claims a lower bound of {}, above its own cost of {}: no plan can cost less than a true lower bound",
+                units.cost_text(b),
+                units.cost_text(plan.cost)
+            ));
+        } else if b < 0 {
+            problems.push(format!("the plan claims a negative lower bound ({b})"));
+        }
+    }
+    Ok(CheckRun { plan, problems })
+}
+
+/// The `format` a JSON file names, if it is JSON with one.
+fn json_format(path: &Path) -> Option<String> {
+    let text = std::fs::read_to_string(path).ok()?;
+    let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
+    let v: serde_json::Value = serde_json::from_str(text).ok()?;
+    v.get("format")?.as_str().map(String::from)
+}
+
+/// `planner check PLAN SCENARIO` (the files swapped) is named as such.
+fn refuse_swapped(scenario: &Path, plan_file: &Path) -> Result<(), AppError> {
+    let order = "the order is `planner check SCENARIO PLAN`";
+    if json_format(scenario).as_deref() == Some("arcwright-plan") {
+        return Err(AppError::Usage(format!(
+            "{} is a plan file, not a scenario: {order}",
+            scenario.display()
+        )));
+    }
+    if json_format(plan_file).as_deref() == Some("arcwright-scenario") {
+        return Err(AppError::Usage(format!(
+            "{} is a scenario, not a plan file: {order}",
+            plan_file.display()
+        )));
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -244,7 +304,7 @@ mod tests {
             .map(|t| vec![Visit::new(t, Dir::Forward)])
             .collect();
         let plan = Plan::from_visits(&inst, &dist, routes);
-        match render(&inst, &dist, &plan, &Default::default()) {
+        match render(&inst, &dist, &plan, &Default::default(), None) {
             Err(AppError::Refused(v)) => {
                 assert!(v.iter().any(|x| x.contains("trucks")), "{v:?}");
             }
@@ -258,11 +318,11 @@ mod tests {
             .map(|t| Visit::new(t, Dir::Forward))
             .collect();
         let mut bad = Plan::from_visits(&loose, &dist, vec![all]);
-        assert!(render(&loose, &dist, &bad, &Default::default()).is_ok());
+        assert!(render(&loose, &dist, &bad, &Default::default(), None).is_ok());
         bad.routes[0].cost -= 1;
         bad.cost -= 1;
         assert!(matches!(
-            render(&loose, &dist, &bad, &Default::default()),
+            render(&loose, &dist, &bad, &Default::default(), None),
             Err(AppError::Refused(_))
         ));
     }

@@ -49,29 +49,96 @@
 //!   against its allowed direction, a wrong load, route cost or total, the
 //!   fleet limits.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
 use crate::plan::{evaluate, Plan, Route, Visit};
 
-/// Writes a plan as JSON (schema in the module docs).
+/// How a plan was made, recorded in the plan file (`run`).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct RunSettings {
+    /// Random seed.
+    pub seed: u64,
+    /// Search threads.
+    pub workers: usize,
+    /// Time limit in seconds, if any.
+    pub time_limit_s: Option<f64>,
+    /// Iteration limit, if any.
+    pub max_iterations: Option<u64>,
+    /// Iterations done.
+    pub iterations: u64,
+    /// Wall-clock time of the search in seconds.
+    pub elapsed_s: f64,
+    /// Whether the search was stopped before its limits (Ctrl-C).
+    pub stopped_early: bool,
+    /// Version of this crate that made the plan.
+    pub crate_version: String,
+}
+
+/// What a plan file records beside the routes.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct PlanRecord {
+    /// The solver's lower bound (`lower_bound`).
+    pub lower_bound: Option<Cost>,
+    /// Length driven by each route, in the scenario's length unit, when the
+    /// scenario gives every street a length (`routes[i].length`).
+    pub route_lengths: Option<Vec<Cost>>,
+    /// How the plan was made (`run`).
+    pub run: Option<RunSettings>,
+}
+
+/// Writes a plan as JSON (schema in the module docs), with the lower bound
+/// when known.
 pub fn write_plan(inst: &Instance, plan: &Plan, lower_bound: Option<Cost>) -> String {
+    write_plan_record(
+        inst,
+        plan,
+        &PlanRecord {
+            lower_bound,
+            ..PlanRecord::default()
+        },
+    )
+}
+
+fn json_str<T: Serialize + ?Sized>(v: &T) -> String {
+    // Strings, numbers, options and plain structs always serialize.
+    serde_json::to_string(v).expect("plain values serialize")
+}
+
+/// Writes a plan as JSON with everything `record` holds: route lengths and
+/// the run settings besides the lower bound; every route's time is written.
+pub fn write_plan_record(inst: &Instance, plan: &Plan, record: &PlanRecord) -> String {
     let net = inst.network();
+    let u = inst.units();
     let mut s = String::new();
     s.push_str("{\n  \"format\": \"arcwright-plan\",\n  \"version\": 1,\n");
     s.push_str(&format!(
-        "  \"instance\": {},\n  \"cost\": {},\n  \"lower_bound\": {},\n  \"routes\": [",
-        serde_json::to_string(&inst.name).expect("string"),
+        "  \"instance\": {},\n  \"units\": {{\"cost\": {}, \"length\": {}, \"time\": {}, \"load\": {}}},\n",
+        json_str(&inst.name),
+        json_str(&u.cost),
+        json_str(&u.length),
+        json_str(&u.time),
+        json_str(&u.load)
+    ));
+    if let Some(run) = &record.run {
+        s.push_str(&format!("  \"run\": {},\n", json_str(run)));
+    }
+    s.push_str(&format!(
+        "  \"cost\": {},\n  \"lower_bound\": {},\n  \"routes\": [",
         plan.cost,
-        lower_bound.map_or("null".to_string(), |b| b.to_string())
+        json_str(&record.lower_bound)
     ));
     for (ri, r) in plan.routes.iter().enumerate() {
         s.push_str(if ri == 0 { "\n" } else { ",\n" });
+        let length = match record.route_lengths.as_ref().and_then(|l| l.get(ri)) {
+            Some(l) => format!("\n      \"length\": {l},"),
+            None => String::new(),
+        };
         s.push_str(&format!(
-            "    {{\n      \"load\": {},\n      \"cost\": {},\n      \"services\": [",
-            r.load, r.cost
+            "    {{\n      \"load\": {},\n      \"cost\": {},\n      \"time\": {},{length}\n      \"services\": [",
+            r.load, r.cost, r.time
         ));
         for (k, v) in r.visits.iter().enumerate() {
             let t = &inst.tasks()[v.task];
@@ -99,15 +166,59 @@ struct FileService {
 struct FileRoute {
     load: Option<Cost>,
     cost: Option<Cost>,
+    time: Option<Cost>,
     services: Vec<FileService>,
 }
 
 #[derive(Deserialize)]
 struct FilePlan {
     format: Option<String>,
+    version: Option<u32>,
     instance: String,
     cost: Option<Cost>,
+    lower_bound: Option<Cost>,
     routes: Vec<FileRoute>,
+}
+
+/// The plan format version written and read.
+pub const PLAN_VERSION: u32 = 1;
+
+/// What a plan file claims besides its routes, for checking it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct PlanClaims {
+    /// The format version (1 when the file does not say).
+    pub version: u32,
+    /// The stated total cost.
+    pub cost: Option<Cost>,
+    /// The stated lower bound.
+    pub lower_bound: Option<Cost>,
+}
+
+/// Reads what a plan file claims besides its routes (version, cost, lower
+/// bound), for [`read_plan_as_written`] callers that check a file.
+///
+/// # Errors
+///
+/// JSON syntax or schema errors, as [`read_plan_as_written`].
+pub fn read_plan_claims(text: &str, file: &str) -> Result<PlanClaims> {
+    let fp = parse_json(text, file)?;
+    Ok(PlanClaims {
+        version: fp.version.unwrap_or(PLAN_VERSION),
+        cost: fp.cost,
+        lower_bound: fp.lower_bound,
+    })
+}
+
+fn parse_json(text: &str, file: &str) -> Result<FilePlan> {
+    serde_json::from_str(text).map_err(|e| {
+        Error::parse(
+            file,
+            Some(e.line()),
+            ParseProblem::Json {
+                message: format!("column {}: {e}", e.column()),
+            },
+        )
+    })
 }
 
 /// Line of the `k`-th (0-based) `"link"` key in the text: the line of the
@@ -143,15 +254,17 @@ fn parse(
     inst: &Instance,
     strict: bool,
 ) -> Result<(FilePlan, Vec<Vec<Visit>>)> {
-    let fp: FilePlan = serde_json::from_str(text).map_err(|e| {
-        Error::parse(
+    let fp = parse_json(text, file)?;
+    if let Some(v) = fp.version.filter(|&v| v != PLAN_VERSION) {
+        return Err(Error::parse(
             file,
-            Some(e.line()),
-            ParseProblem::Json {
-                message: format!("column {}: {e}", e.column()),
+            super::scenario::line_of_key(text, "version"),
+            ParseProblem::Unexpected {
+                expected: "plan format version 1 (the version this program reads)",
+                found: format!("version {v}"),
             },
-        )
-    })?;
+        ));
+    }
     if let Some(f) = &fp.format {
         if f != "arcwright-plan" {
             return Err(Error::parse(
@@ -246,7 +359,11 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         }
         let pr = &plan.routes[pi];
         pi += 1;
-        for (what, stated, computed) in [("load", r.load, pr.load), ("cost", r.cost, pr.cost)] {
+        for (what, stated, computed) in [
+            ("load", r.load, pr.load),
+            ("cost", r.cost, pr.cost),
+            ("time", r.time, pr.time),
+        ] {
             if let Some(st) = stated {
                 if st != computed {
                     return Err(Error::parse(
@@ -274,6 +391,16 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
                 },
             ));
         }
+    }
+    if let Some(b) = fp.lower_bound.filter(|&b| b > plan.cost || b < 0) {
+        return Err(Error::parse(
+            file,
+            super::scenario::line_of_key(text, "lower_bound"),
+            ParseProblem::Unexpected {
+                expected: "a lower bound between 0 and the plan's own cost",
+                found: format!("lower_bound {b} for a plan costing {}", plan.cost),
+            },
+        ));
     }
     Ok(plan)
 }
@@ -317,7 +444,7 @@ pub fn read_plan_as_written(
                 visits,
                 load: r.load.unwrap_or(load),
                 cost: r.cost.unwrap_or(cost),
-                time,
+                time: r.time.unwrap_or(time),
             }
         })
         .collect();

@@ -216,6 +216,12 @@ fn path_string(path: &[Seg]) -> String {
     s
 }
 
+/// The line where the top-level `key` of a JSON object starts, in text
+/// that serde_json has already accepted.
+pub(crate) fn line_of_key(text: &str, key: &'static str) -> Option<usize> {
+    line_of(text, &[Seg::Key(key)])
+}
+
 /// Finds the line where the value at `path` starts, in text that serde_json
 /// has already accepted. `None` when it cannot be found.
 fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
