@@ -396,7 +396,7 @@ fn legend(s: &mut String, inst: &Instance, plan: &Plan, f: &Frame) {
             lx,
             y,
             &sample,
-            &format!("Truck {}: {}", r + 1, route.cost),
+            &format!("Truck {}: {}", r + 1, u.cost_text(route.cost)),
         );
     }
     y += 24.0;
