@@ -490,8 +490,11 @@ fn thirty_route_colours_stay_apart() {
     assert_eq!(colours.len(), 30);
 }
 
+/// Two end points in pixels.
+type Segment = ((f64, f64), (f64, f64));
+
 /// Pixel end points of an SVG `line` or `polyline`.
-fn ends_of(n: roxmltree::Node) -> ((f64, f64), (f64, f64)) {
+fn ends_of(n: roxmltree::Node) -> Segment {
     let f = |a: &str| n.attribute(a).unwrap().parse::<f64>().unwrap();
     if n.tag_name().name() == "line" {
         return ((f("x1"), f("y1")), (f("x2"), f("y2")));
@@ -561,7 +564,7 @@ fn the_map_shows_direction_one_way_streets_and_shared_deadheads() {
         .iter()
         .all(|n| n.attribute("marker-mid") == Some("url(#one-way)")));
     // Every served step has an arrow and runs from its `from` junction.
-    let mut deadheads: Vec<(usize, String, ((f64, f64), (f64, f64)))> = Vec::new();
+    let mut deadheads: Vec<(usize, String, Segment)> = Vec::new();
     for r in 0..plan.routes.len() {
         let serve = by_id(&format!("route-{}-serve", r + 1));
         for n in serve.children().filter(|n| n.is_element()) {

@@ -6,12 +6,17 @@
 //!   "format": "arcwright-plan",
 //!   "version": 1,
 //!   "instance": "gdb1",
+//!   "units": {"cost": null, "length": null, "time": null, "load": null},
+//!   "run": {"seed": 1, "workers": 2, "time_limit_s": null, "max_iterations": 2000,
+//!           "iterations": 2000, "elapsed_s": 0.41, "stopped_early": false,
+//!           "crate_version": "0.1.0"},
 //!   "cost": 316,
 //!   "lower_bound": 252,
 //!   "routes": [
 //!     {
 //!       "load": 5,
 //!       "cost": 74,
+//!       "time": 74,
 //!       "services": [
 //!         {"from": 1, "to": 12, "link": 4},
 //!         {"from": 12, "to": 6, "link": 14}
@@ -32,14 +37,21 @@
 //!   instance's link list (the order of the input file; it tells parallel
 //!   links apart). Between two services, and from and back to the depot, a
 //!   truck drives a shortest deadhead path.
-//! - `load`: the route's total demand; `cost`: its service plus deadhead cost.
+//! - `load`: the route's total demand; `cost`: its service plus deadhead cost;
+//!   `time`: its service plus driving time; `length` (only when every street
+//!   of the scenario has a length): the length it drives.
+//! - `version`: 1 (a file stating another version is refused; a file without
+//!   one is read as version 1); `units`: the scenario's units, `null` where
+//!   undeclared; `run` (optional, [`RunSettings`]): how the plan was made.
+//!   Readers ignore `units`, `run` and route `length`.
 //!
 //! Two readers; errors of both name the file and, for services, the line.
 //!
 //! - [`read_plan`] (and [`read_plan_with`]) is strict: it checks that every
 //!   `(from, to, link)` is a required link served in an allowed direction,
 //!   that no link is served twice, that the instance name matches, and that
-//!   every stated cost and load equals the recomputed one. Whether every task
+//!   every stated cost, load and time equals the recomputed one, and that a
+//!   stated lower bound lies between 0 and the plan's cost. Whether every task
 //!   is served and routes respect the fleet is left to [`crate::check`].
 //! - [`read_plan_as_written`] checks only the structure (JSON syntax and
 //!   schema, the instance name, and that each service names a required link
@@ -423,8 +435,9 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
 /// - each route's `load` and `cost` and the plan's `cost` are the stated
 ///   ones; a figure the file leaves out is recomputed (with `dist`), so that
 ///   only stated figures can be found wrong;
-/// - the file has no route times: [`Route::time`] is recomputed with `dist`
-///   (service time plus driving time along the least-cost legs).
+/// - a route's `time` is the stated one; a file without route times gets
+///   [`Route::time`] recomputed with `dist` (service time plus driving time
+///   along the least-cost legs).
 pub fn read_plan_as_written(
     text: &str,
     file: &str,

@@ -7,13 +7,17 @@
 //! | `format` | string | always `"arcwright-scenario"` |
 //! | `version` | integer | always `1` |
 //! | `name` | string, optional | a name for reports (default `""`) |
+//! | `units` | object, optional | `{ "cost": string?, "length": string?, "time": string?, "load": string? }`: the unit of every cost, of street lengths, of times and the shift limit, of demands and the capacity (1 to 24 characters each; see [`crate::model::Units`]). Undeclared units are shown as `cost units`, ... |
+//! | `coordinates` | object, optional | `{ "system": "wgs84" }` (`x` longitude, `y` latitude, degrees) or `{ "system": "planar", "origin": { "lon": number, "lat": number }? }` (metres east and north; the origin places the point (0, 0) on the Earth); see [`crate::model::Coordinates`]. Absent: undeclared, never guessed |
 //! | `junctions` | array | `{ "id": integer, "x": number?, "y": number? }`; ids are any distinct non-negative integers (OSM node ids, say) |
 //! | `streets` | array | see below |
 //! | `yard` | integer | id of the junction the trucks leave from and return to (the depot) |
 //! | `fleet` | object | `{ "capacity": integer, "shift_limit": integer?, "max_trucks": integer? }` |
 //!
 //! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
-//! "drive_time": integer?, "name": string?, "service": {...}? }`:
+//! "length": integer?, "drive_time": integer?, "name": string?, "service":
+//! {...}? }` (`length`, in the `length` unit, is shown on the sheets and
+//! never decides the plan):
 //! `one_way` (default `false`) means it may only be driven from `from` to
 //! `to`; `cost` is paid each time it is driven without serving
 //! (deadheading); `drive_time` defaults to `cost`. A street with a `service`
@@ -25,10 +29,12 @@
 //! limit. Unknown fields are rejected, so a misspelt field is an error, not
 //! silently ignored.
 //!
-//! All costs, times and demands are exact integers in `0..=`[`MAX_NUMBER`].
-//! Coordinates are decimal numbers (any planar or lon/lat system); a
-//! coordinate that is not finite cannot be written to JSON and is written as
-//! absent.
+//! All costs, lengths, times and demands are exact integers in
+//! `0..=`[`MAX_NUMBER`]. Coordinates are decimal numbers, checked against the
+//! declared system when read ([`crate::model::Coordinates::check_point`]:
+//! finite, longitude within ±180° and latitude within ±90° for WGS 84, planar
+//! values within 40,000 km); an impossible one is a
+//! [`ParseProblem::Coordinate`] at its JSON path (`junctions[3].y`).
 //!
 //! ```
 //! use arcwright::io::scenario::{read_scenario, write_scenario};

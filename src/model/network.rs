@@ -8,7 +8,8 @@ pub struct Junction {
     /// The junction's number in the source data (1-based in the public sets,
     /// node ids for map data). Plans written to files use this number.
     pub id: u64,
-    /// Optional coordinates (any planar or lon/lat system; used for maps).
+    /// Optional coordinates, in the system the instance declares
+    /// ([`crate::model::Instance::coordinates`]); used for maps.
     pub x: Option<f64>,
     /// See `x`.
     pub y: Option<f64>,

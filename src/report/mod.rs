@@ -10,7 +10,10 @@
 //! - [`svg`]: a map of the network and the routes;
 //! - [`summary_table`]: a plain-text table of the routes and totals.
 //!
-//! Every sheet and the summary start with [`CAUTIONS`].
+//! The Markdown sheets and the summary carry the [`CAUTIONS`]; the CSV sheets
+//! are plain tables (header on line 1) for spreadsheets. Every number is
+//! labelled with the unit the scenario declares ([`crate::model::Units`]),
+//! and [`describe`] puts the checker's findings in the sheets' words.
 
 pub mod geo;
 pub mod sheets;
@@ -25,7 +28,7 @@ use std::time::Duration;
 use crate::model::{Coordinates, Cost, Instance};
 use crate::plan::Plan;
 
-/// Printed at the head of every route sheet and summary.
+/// Printed in the Markdown route sheets and the summary.
 pub const CAUTIONS: [&str; 4] = [
     "This plan is advice for a licensed transport planner, not an order: check it before any truck leaves the yard.",
     "Check height, weight and width limits and turn restrictions on every street; the street data may not record them.",
