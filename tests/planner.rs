@@ -565,8 +565,12 @@ fn scenario_kind_is_told_by_name_or_by_content() {
     let inst = arcwright::io::read_dat(dat, "tiny").unwrap().instance;
     let json = dir.join("tiny.scenario");
     std::fs::write(&json, write_scenario(&inst)).unwrap();
-    for input in [&txt, &json] {
-        let out = dir.join(input.extension().unwrap());
+    // A JSON scenario with a byte-order mark, as some editors write, and a
+    // name that does not say JSON, is still read as JSON.
+    let bom = dir.join("tiny-bom.txt");
+    std::fs::write(&bom, format!("\u{feff}{}", write_scenario(&inst))).unwrap();
+    for input in [&txt, &json, &bom] {
+        let out = dir.join(input.file_stem().unwrap());
         plan_ok(&[input.to_str().unwrap(), "--iterations", "10"], &out);
         let plan = written_plan(&out, &inst);
         check_plan(&inst, &plan).unwrap();
@@ -704,6 +708,17 @@ fn plan_file_records_route_times_lengths_and_run_settings() {
     assert!(run["time_limit_s"].is_null());
     assert!(run["iterations"].as_u64().unwrap() <= 25);
     assert_eq!(run["crate_version"], env!("CARGO_PKG_VERSION"));
+    assert!(run.get("elapsed_s").is_none(), "no clock readings");
+    // Same seed, workers and iteration limit: the same file, byte for byte.
+    let again = out_dir("planner-plan-record-again");
+    plan_ok(
+        &[s, "--iterations", "25", "--seed", "5", "--workers", "2"],
+        &again,
+    );
+    assert_eq!(
+        std::fs::read(dir.join("plan.json")).unwrap(),
+        std::fs::read(again.join("plan.json")).unwrap()
+    );
     assert_eq!(json["units"]["length"], "m");
     assert_eq!(json["units"]["time"], "min");
     let dist = Distances::new(&inst).unwrap();

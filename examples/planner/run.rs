@@ -188,7 +188,6 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         time_limit_s: opts.effective_time_limit().map(|t| t.as_secs_f64()),
         max_iterations: opts.iterations,
         iterations: solution.stats.iterations,
-        elapsed_s: (solution.stats.elapsed.as_secs_f64() * 1000.0).round() / 1000.0,
         stopped_early,
         crate_version: env!("CARGO_PKG_VERSION").to_string(),
     };

@@ -8,7 +8,7 @@
 //!   "instance": "gdb1",
 //!   "units": {"cost": null, "length": null, "time": null, "load": null},
 //!   "run": {"seed": 1, "workers": 2, "time_limit_s": null, "max_iterations": 2000,
-//!           "iterations": 2000, "elapsed_s": 0.41, "stopped_early": false,
+//!           "iterations": 2000, "stopped_early": false,
 //!           "crate_version": "0.1.0"},
 //!   "cost": 316,
 //!   "lower_bound": 252,
@@ -68,7 +68,8 @@ use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
 use crate::plan::{evaluate, Plan, Route, Visit};
 
-/// How a plan was made, recorded in the plan file (`run`).
+/// How a plan was made, recorded in the plan file (`run`). No clock
+/// readings: a run with an iteration limit writes the same file every time.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct RunSettings {
     /// Random seed.
@@ -81,8 +82,6 @@ pub struct RunSettings {
     pub max_iterations: Option<u64>,
     /// Iterations done.
     pub iterations: u64,
-    /// Wall-clock time of the search in seconds.
-    pub elapsed_s: f64,
     /// Whether the search was stopped before its limits (Ctrl-C).
     pub stopped_early: bool,
     /// Version of this crate that made the plan.
