@@ -281,6 +281,11 @@ fn research_files_without_coordinates_get_sheets_but_no_maps() {
     valid(&inst, &dist, &plan);
     assert!(geo::feature_collection(&inst, &dist, &plan).is_none());
     assert!(svg::map(&inst, &dist, &plan).is_none());
+    let summary = report::summary_table(&inst, &plan, &Default::default());
+    assert!(
+        summary.contains("gives no junction coordinates"),
+        "{summary}"
+    );
     let total: i64 = (0..plan.routes.len())
         .map(|r| {
             sheets::route_rows(&inst, &dist, &plan, r)

@@ -134,7 +134,7 @@ fn check(k: &cli::CheckArgs) -> ExitCode {
                 k.plan.display(),
                 k.scenario.display(),
                 run.plan.routes.len(),
-                run.plan.cost
+                run.cost_text
             );
             ExitCode::SUCCESS
         }

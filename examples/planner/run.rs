@@ -209,6 +209,8 @@ pub struct CheckRun {
     pub plan: Plan,
     /// Every problem found, in the words of the sheets (empty when valid).
     pub problems: Vec<String>,
+    /// The plan's stated cost with its unit.
+    pub cost_text: String,
 }
 
 /// The checker's findings in the words of the sheets.
@@ -253,7 +255,12 @@ pub fn run_check(
             problems.push(format!("the plan claims a negative lower bound ({b})"));
         }
     }
-    Ok(CheckRun { plan, problems })
+    let cost_text = inst.units().cost_text(plan.cost);
+    Ok(CheckRun {
+        plan,
+        problems,
+        cost_text,
+    })
 }
 
 /// The `format` a JSON file names, if it is JSON with one.

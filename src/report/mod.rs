@@ -257,7 +257,16 @@ pub fn route_lengths(
 /// Why a map or GeoJSON is not written, when it is not.
 pub fn maps_note(inst: &Instance) -> Option<String> {
     if geo::points(inst).is_none() {
-        return Some("No map: the scenario gives no coordinates for some junctions.".into());
+        let js = &inst.network().junctions;
+        let missing = js.iter().filter(|j| j.x.is_none() || j.y.is_none()).count();
+        return Some(if missing == js.len() {
+            "No map and no GeoJSON: the scenario gives no junction coordinates.".into()
+        } else {
+            format!(
+                "No map and no GeoJSON: {missing} of {} junctions have no coordinates.",
+                js.len()
+            )
+        });
     }
     match inst.coordinates() {
         Coordinates::Undeclared => Some(
