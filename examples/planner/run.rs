@@ -122,7 +122,10 @@ pub fn render(
     verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
     let record = PlanRecord {
         lower_bound: extras.lower_bound.as_ref().map(|b| b.0),
-        route_lengths: arcwright::report::route_lengths(inst, dist, plan),
+        route_lengths: extras
+            .route_lengths
+            .clone()
+            .or_else(|| arcwright::report::route_lengths(inst, dist, plan)),
         run,
     };
     let json = write_plan_record(inst, plan, &record);
@@ -181,6 +184,7 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         run_time: Some(solution.stats.elapsed),
         iterations: Some(solution.stats.iterations),
         stopped_early,
+        route_lengths: arcwright::report::route_lengths(&inst, &dist, &solution.plan),
     };
     let run = RunSettings {
         seed: opts.seed,

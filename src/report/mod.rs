@@ -73,10 +73,17 @@ pub fn bundle(
 ) -> Vec<OutputFile> {
     // The walks are expanded once (one shortest-path search per deadhead leg).
     let rows = sheets::all_rows(inst, dist, plan);
+    let mut extras = extras.clone();
+    if extras.route_lengths.is_none() && sheets::shows_lengths(inst) {
+        extras.route_lengths = rows
+            .iter()
+            .map(|r| r.last().map_or(Some(0), |x| x.length_so_far))
+            .collect();
+    }
     let mut out = vec![
         OutputFile {
             name: "summary.txt".into(),
-            contents: summary_table(inst, plan, extras),
+            contents: summary_table(inst, plan, &extras),
         },
         OutputFile {
             name: "sheets.md".into(),
@@ -118,6 +125,10 @@ pub struct SummaryExtras {
     pub iterations: Option<u64>,
     /// Whether the search was stopped early (Ctrl-C).
     pub stopped_early: bool,
+    /// Length driven by each route ([`route_lengths`]); the summary shows a
+    /// length column only when these are given. [`bundle`] fills them in
+    /// from the sheets when the scenario has lengths.
+    pub route_lengths: Option<Vec<Cost>>,
 }
 
 /// The plan as a plain-text table: one line per truck (streets served, load,
@@ -127,7 +138,11 @@ pub struct SummaryExtras {
 pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> String {
     let fleet = inst.fleet();
     let u = inst.units();
-    let (lengths, times) = (sheets::shows_lengths(inst), sheets::shows_times(inst));
+    let lens = extras
+        .route_lengths
+        .as_ref()
+        .filter(|l| l.len() == plan.routes.len());
+    let (lengths, times) = (lens.is_some(), sheets::shows_times(inst));
     let mut out = String::new();
     let _ = writeln!(out, "Plan for {}", inst.name);
     let mut head = format!(
@@ -141,10 +156,6 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
         let _ = write!(head, "  {:>20}", "time");
     }
     let _ = writeln!(out, "{head}");
-    let lens = lengths
-        .then(|| crate::paths::Distances::new(inst).ok())
-        .flatten()
-        .and_then(|d| route_lengths(inst, &d, plan));
     let (mut total_service, mut total_time, mut total_load, mut total_len) = (0, 0, 0, 0);
     let line = |out: &mut String, cells: [String; 6], len: Cost, time: Cost| {
         let mut l = format!(
@@ -165,7 +176,7 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
     };
     for (r, route) in plan.routes.iter().enumerate() {
         let service: Cost = route.visits.iter().map(|v| inst.tasks()[v.task].cost).sum();
-        let len = lens.as_ref().map_or(0, |l| l[r]);
+        let len = lens.map_or(0, |l| l[r]);
         total_service += service;
         total_time += route.time;
         total_load += route.load;
@@ -197,6 +208,15 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
         total_len,
         total_time,
     );
+    summary_footer(&mut out, inst, extras);
+    out
+}
+
+/// The lines under the summary table: units, fleet, bound and gap, run
+/// time, what was not drawn and why, and the cautions.
+fn summary_footer(out: &mut String, inst: &Instance, extras: &SummaryExtras) {
+    let fleet = inst.fleet();
+    let u = inst.units();
     let _ = writeln!(out, "{}", sheets::units_note(inst));
     let mut limits = format!("capacity {}", u.load_text(fleet.capacity));
     if let Some(s) = fleet.shift_limit {
@@ -230,7 +250,6 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
     for c in CAUTIONS {
         let _ = writeln!(out, " - {c}");
     }
-    out
 }
 
 /// The length each route drives (service and deadhead, along its explicit

@@ -9,7 +9,7 @@
 
 use std::fmt::Write as _;
 
-use crate::model::{Cost, Instance};
+use crate::model::{Cost, Instance, Units};
 use crate::paths::Distances;
 use crate::plan::{walk, Plan};
 
@@ -290,6 +290,39 @@ pub fn markdown_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> 
         yard,
         units_note(inst)
     );
+    let (head, align) = md_header(inst);
+    for (r, (route, rows)) in plan.routes.iter().zip(all).enumerate() {
+        let served = rows.iter().filter(|x| x.action == Action::Serve).count();
+        let _ = writeln!(out, "## Truck {}\n", r + 1);
+        let mut line = format!(
+            "{} streets served, load {}, cost {}",
+            served,
+            u.load_text(route.load),
+            u.cost_text(route.cost)
+        );
+        if let Some(len) = lengths
+            .then(|| rows.last().and_then(|x| x.length_so_far))
+            .flatten()
+        {
+            let _ = write!(line, ", length {}", u.length_text(len));
+        }
+        if times {
+            let _ = write!(line, ", time {}", u.time_text(route.time));
+        }
+        let _ = writeln!(out, "{line}.\n");
+        let _ = writeln!(out, "{head}\n{align}");
+        for x in rows {
+            let _ = writeln!(out, "{}", md_row(u, lengths, times, x));
+        }
+        out.push('\n');
+    }
+    out
+}
+
+/// The header and alignment rows of a Markdown sheet table.
+fn md_header(inst: &Instance) -> (String, String) {
+    let u = inst.units();
+    let (lengths, times) = (shows_lengths(inst), shows_times(inst));
     let mut head = format!(
         "| step | street | from → to | action | cost ({}) |",
         u.cost_label()
@@ -313,64 +346,44 @@ pub fn markdown_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> 
         head.push_str(" time so far |");
         align.push_str("---:|");
     }
-    for (r, (route, rows)) in plan.routes.iter().zip(all).enumerate() {
-        let served = rows.iter().filter(|x| x.action == Action::Serve).count();
-        let _ = writeln!(out, "## Truck {}\n", r + 1);
-        let mut line = format!(
-            "{} streets served, load {}, cost {}",
-            served,
-            u.load_text(route.load),
-            u.cost_text(route.cost)
+    (head, align)
+}
+
+/// One step as a row of a Markdown sheet table (columns of [`md_header`]).
+fn md_row(u: &Units, lengths: bool, times: bool, x: &SheetRow) -> String {
+    let mut cells = format!(
+        "| {} | {} | {} → {} | {} | {} |",
+        x.step,
+        md_cell(&x.street),
+        x.from,
+        x.to,
+        x.action.label(),
+        x.cost
+    );
+    if lengths {
+        let _ = write!(
+            cells,
+            " {} |",
+            x.length.map_or(String::new(), |v| v.to_string())
         );
-        if let Some(len) = lengths
-            .then(|| rows.last().and_then(|x| x.length_so_far))
-            .flatten()
-        {
-            let _ = write!(line, ", length {}", u.length_text(len));
-        }
-        if times {
-            let _ = write!(line, ", time {}", u.time_text(route.time));
-        }
-        let _ = writeln!(out, "{line}.\n");
-        let _ = writeln!(out, "{head}\n{align}");
-        for x in rows {
-            let mut cells = format!(
-                "| {} | {} | {} → {} | {} | {} |",
-                x.step,
-                md_cell(&x.street),
-                x.from,
-                x.to,
-                x.action.label(),
-                x.cost
-            );
-            if lengths {
-                let _ = write!(
-                    cells,
-                    " {} |",
-                    x.length.map_or(String::new(), |v| v.to_string())
-                );
-            }
-            if times {
-                let _ = write!(cells, " {} |", x.step_time);
-            }
-            let _ = write!(cells, " {} | {} |", x.load, x.cost_so_far);
-            if lengths {
-                let _ = write!(
-                    cells,
-                    " {} |",
-                    x.length_so_far.map_or(String::new(), |v| v.to_string())
-                );
-            }
-            if times {
-                let t = match u.clock(x.time) {
-                    Some(c) => format!("{} ({c})", x.time),
-                    None => x.time.to_string(),
-                };
-                let _ = write!(cells, " {t} |");
-            }
-            let _ = writeln!(out, "{cells}");
-        }
-        out.push('\n');
     }
-    out
+    if times {
+        let _ = write!(cells, " {} |", x.step_time);
+    }
+    let _ = write!(cells, " {} | {} |", x.load, x.cost_so_far);
+    if lengths {
+        let _ = write!(
+            cells,
+            " {} |",
+            x.length_so_far.map_or(String::new(), |v| v.to_string())
+        );
+    }
+    if times {
+        let t = match u.clock(x.time) {
+            Some(c) => format!("{} ({c})", x.time),
+            None => x.time.to_string(),
+        };
+        let _ = write!(cells, " {t} |");
+    }
+    cells
 }

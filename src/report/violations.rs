@@ -138,6 +138,15 @@ pub fn describe(inst: &Instance, v: &Violation) -> String {
             units.cost_text(*reported),
             units.cost_text(*actual)
         ),
+        walk => describe_walk(inst, walk),
+    }
+}
+
+/// The findings of [`crate::check::check_walks`] (street-by-street steps).
+fn describe_walk(inst: &Instance, v: &Violation) -> String {
+    use Violation::*;
+    let street = |l: usize| street_ref(inst, l);
+    match v {
         UnknownLink { at, link, links } => format!(
             "{}: no street #{link} (the scenario has {links})",
             step_at(at)
@@ -179,5 +188,7 @@ pub fn describe(inst: &Instance, v: &Violation) -> String {
             step_at(at),
             street(*link)
         ),
+        // Findings about plans are worded by `describe`.
+        plan => plan.to_string(),
     }
 }
