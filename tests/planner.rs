@@ -693,10 +693,17 @@ fn plan_file_records_route_times_lengths_and_run_settings() {
     let dir = out_dir("planner-plan-record");
     let scenario = Path::new(ROOT).join("tests/fixtures/lengths.json");
     let s = scenario.to_str().unwrap();
-    plan_ok(
+    let stdout = plan_ok(
         &[s, "--iterations", "25", "--seed", "5", "--workers", "2"],
         &dir,
     );
+    // The summary shows length and time apart from cost, with their units.
+    assert!(
+        stdout.contains("Units: costs in EUR, lengths in m, times in min"),
+        "{stdout}"
+    );
+    let head = stdout.lines().find(|l| l.starts_with("truck")).unwrap();
+    assert!(head.contains("length") && head.contains("time"), "{head}");
     let inst = read_scenario_file(&scenario).unwrap();
     let plan = written_plan(&dir, &inst);
     let json: serde_json::Value =
