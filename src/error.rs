@@ -189,6 +189,10 @@ pub enum ParseProblem {
         /// What the input has instead.
         found: String,
     },
+    /// A junction coordinate that cannot be in the scenario's declared
+    /// coordinate system (not finite, a latitude beyond ±90°, ...).
+    #[error("{0}")]
+    Coordinate(crate::model::CoordError),
     /// A cost or load stated in a plan file differs from the recomputed one.
     #[error("{what}: the file states {stated}, recomputed {computed}")]
     Mismatch {

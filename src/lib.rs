@@ -11,8 +11,9 @@
 //! (single-tour routes and lower bounds), [`search`] (the fleet solver,
 //! [`Solver`]; its internals `construct` and `improve` are crate-private,
 //! public only with the non-default `internals` feature for the kernel
-//! benchmarks), [`demo`] and [`report`] (demo towns and outputs for people),
-//! and [`app`] (the logic of the `planner` example program).
+//! benchmarks), [`demo`] and [`report`] (demo towns and outputs for people,
+//! rendered as text). The `planner` program that writes them into a folder
+//! is an example (`examples/planner/`), not library API.
 //!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
@@ -45,11 +46,6 @@ macro_rules! internal_mod {
         pub(crate) mod $name;
     };
 }
-
-// `app` leaves the library (issue 8, planner branch); its docs are not
-// brought up to the lints here.
-#[allow(clippy::missing_errors_doc)]
-pub mod app;
 pub mod bounds;
 pub mod check;
 // Solver internals: the arc matrix, Path-Scanning, giant tours and split.

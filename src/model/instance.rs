@@ -1,6 +1,6 @@
 use serde::{Deserialize, Serialize};
 
-use super::{Cost, Fleet, Network, ServeDirection};
+use super::{CoordError, Coordinates, Cost, Fleet, Network, ServeDirection, Units};
 
 /// Why a network, fleet and yard do not make a valid instance.
 ///
@@ -163,6 +163,8 @@ impl Task {
 pub struct Instance {
     /// A name for reports.
     pub name: String,
+    units: Units,
+    coordinates: Coordinates,
     network: Network,
     fleet: Fleet,
     depot: usize,
@@ -241,6 +243,8 @@ impl Instance {
         }
         let inst = Instance {
             name: name.into(),
+            units: Units::default(),
+            coordinates: Coordinates::Undeclared,
             network,
             fleet,
             depot,
@@ -356,7 +360,46 @@ impl Instance {
     /// The first [`ModelError`] with the new fleet (a capacity that is not positive, a street
     /// heavier than a truck, no truck for the work).
     pub fn with_fleet(&self, fleet: Fleet) -> Result<Instance, ModelError> {
-        Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)
+        let inst = Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)?;
+        Ok(Instance {
+            units: self.units.clone(),
+            coordinates: self.coordinates,
+            ..inst
+        })
+    }
+
+    /// The units the scenario declares for its numbers.
+    pub fn units(&self) -> &Units {
+        &self.units
+    }
+
+    /// The instance with these units declared.
+    pub fn with_units(self, units: Units) -> Instance {
+        Instance { units, ..self }
+    }
+
+    /// The coordinate system of the junctions' `x` and `y`.
+    pub fn coordinates(&self) -> Coordinates {
+        self.coordinates
+    }
+
+    /// The instance with its junction coordinates declared to be in
+    /// `system`, after checking every junction's coordinates against it.
+    ///
+    /// # Errors
+    ///
+    /// The index of the first junction whose coordinates cannot be in
+    /// `system` (see [`Coordinates::check_point`]), with the reason.
+    pub fn with_coordinates(self, system: Coordinates) -> Result<Instance, (usize, CoordError)> {
+        for (i, j) in self.network.junctions.iter().enumerate() {
+            if let (Some(x), Some(y)) = (j.x, j.y) {
+                system.check_point(x, y).map_err(|e| (i, e))?;
+            }
+        }
+        Ok(Instance {
+            coordinates: system,
+            ..self
+        })
     }
 }
 
@@ -387,6 +430,7 @@ fn check_links(network: &Network, fleet: &Fleet, problems: &mut Vec<ModelError>)
         };
         neg("cost", l.cost);
         neg("time", l.time.unwrap_or(0));
+        neg("length", l.length.unwrap_or(0));
         let Some(s) = &l.service else { continue };
         neg("service cost", s.cost);
         neg("service time", s.time.unwrap_or(0));
