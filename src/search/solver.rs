@@ -366,64 +366,82 @@ impl<'a> Solver<'a> {
             }
         };
         self.announce(Phase::Bound, None, 0, start, 0);
-        let lb = bound(inst, dist);
-        self.announce(Phase::Construction, None, lb.value, start, 0);
-        let m = prepare(inst, dist)?;
-        let stats0 = |iterations, ttb| Stats {
-            iterations,
-            elapsed: start.elapsed(),
-            time_to_best: ttb,
-            workers: self.workers,
-            seed: self.seed,
-        };
-        if m.n == 0 {
-            let plan = Plan {
-                routes: Vec::new(),
-                cost: 0,
+        // The bound runs beside the district search (it only reports the
+        // gap there); the island search waits for it (it stops at the bound).
+        std::thread::scope(|scope| {
+            let pending = scope.spawn(|| bound(inst, dist));
+            let m = prepare(inst, dist)?;
+            let districts = match self.decomposition {
+                Decomposition::Auto => (m.n > DISTRICTS_FROM).then_some(DISTRICT_STREETS),
+                Decomposition::Off => None,
+                Decomposition::Districts { streets } => Some(streets.max(2)),
             };
-            return Ok(self.finish(plan, lb, stats0(0, Duration::ZERO)));
-        }
-        let districts = match self.decomposition {
-            Decomposition::Auto => (m.n > DISTRICTS_FROM).then_some(DISTRICT_STREETS),
-            Decomposition::Off => None,
-            Decomposition::Districts { streets } => Some(streets.max(2)),
-        };
-        let cand = if m.n > LISTED_FROM {
-            candidate_lists(inst, &m, CANDIDATES)
-        } else {
-            Vec::new()
-        };
-        let neigh = if cand.is_empty() {
-            neighbour_lists(&m, DEFAULT_NEIGHBOURS)
-        } else {
-            cand.iter()
-                .map(|c| c[..c.len().min(DEFAULT_NEIGHBOURS)].to_vec())
-                .collect()
-        };
-        let ctx = Ctx {
-            m: &m,
-            neigh: &neigh,
-            deadline: self.time_limit.map(|t| start + t),
-            stop: self.stop.clone(),
-            stop_at: self.target.unwrap_or(Cost::MIN).max(lb.value),
-            start,
-        };
-        let (cost, routes, found_at, iterations) = match districts {
-            Some(size) => self.by_districts(&ctx, &cand, size, lb.value)?,
-            None => self.evolve(&ctx, lb.value)?,
-        };
-        let visits: Vec<Vec<crate::plan::Visit>> = routes
-            .iter()
-            .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
-            .collect();
-        let plan = Plan::from_visits(inst, dist, visits);
-        debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
-        debug_assert!(
-            crate::check::check_plan(inst, &plan).is_ok(),
-            "the solver's plan fails the checker: {:?}",
-            crate::check::check_plan(inst, &plan)
-        );
-        Ok(self.finish(plan, lb, stats0(iterations, found_at)))
+            let join = |h: std::thread::ScopedJoinHandle<'_, LowerBound>| {
+                h.join().expect("the bound's thread panicked")
+            };
+            let (lb_now, pending) = match districts {
+                Some(_) if m.n > 0 => (None, Some(pending)),
+                _ => (Some(join(pending)), None),
+            };
+            let known = lb_now.as_ref().map_or(0, |l| l.value);
+            self.announce(Phase::Construction, None, known, start, 0);
+            let stats0 = |iterations, ttb| Stats {
+                iterations,
+                elapsed: start.elapsed(),
+                time_to_best: ttb,
+                workers: self.workers,
+                seed: self.seed,
+            };
+            if m.n == 0 {
+                let plan = Plan {
+                    routes: Vec::new(),
+                    cost: 0,
+                };
+                let lb = lb_now.expect("joined");
+                return Ok(self.finish(plan, lb, stats0(0, Duration::ZERO)));
+            }
+            let cand = if m.n > LISTED_FROM {
+                candidate_lists(inst, &m, CANDIDATES)
+            } else {
+                Vec::new()
+            };
+            let neigh = if cand.is_empty() {
+                neighbour_lists(&m, DEFAULT_NEIGHBOURS)
+            } else {
+                cand.iter()
+                    .map(|c| c[..c.len().min(DEFAULT_NEIGHBOURS)].to_vec())
+                    .collect()
+            };
+            let ctx = Ctx {
+                m: &m,
+                neigh: &neigh,
+                deadline: self.time_limit.map(|t| start + t),
+                stop: self.stop.clone(),
+                stop_at: self.target.unwrap_or(Cost::MIN).max(known),
+                start,
+            };
+            let (cost, routes, found_at, iterations) = match districts {
+                Some(size) => self.by_districts(&ctx, &cand, size)?,
+                None => self.evolve(&ctx, known)?,
+            };
+            let lb = match (lb_now, pending) {
+                (Some(lb), _) => lb,
+                (None, Some(h)) => join(h),
+                (None, None) => unreachable!("the bound is joined or pending"),
+            };
+            let visits: Vec<Vec<crate::plan::Visit>> = routes
+                .iter()
+                .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
+                .collect();
+            let plan = Plan::from_visits(inst, dist, visits);
+            debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
+            debug_assert!(
+                crate::check::check_plan(inst, &plan).is_ok(),
+                "the solver's plan fails the checker: {:?}",
+                crate::check::check_plan(inst, &plan)
+            );
+            Ok(self.finish(plan, lb, stats0(iterations, found_at)))
+        })
     }
 
     /// The islands' search: initial populations, then epochs until a limit,
@@ -574,8 +592,8 @@ impl<'a> Solver<'a> {
         ctx: &Ctx<'_>,
         cand: &[Vec<u32>],
         size: usize,
-        lower_bound: Cost,
     ) -> Result<Best, SolveError> {
+        let lower_bound = 0; // computed beside this search
         let m = ctx.m;
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(self.workers)
@@ -584,6 +602,20 @@ impl<'a> Solver<'a> {
         let (mut cost, mut routes) = pool.install(|| self.first_plan(ctx, cand))?;
         let mut found_at = ctx.start.elapsed();
         self.announce(Phase::Districts, Some(cost), lower_bound, ctx.start, 0);
+        {
+            // One descent on the whole plan: moves across district borders.
+            let mut ls = LocalSearch::new(m, ctx.neigh);
+            ls.interrupt_at(ctx.deadline, ctx.stop.clone());
+            let mut rng = ChaCha12Rng::seed_from_u64(self.seed);
+            let d = ls.run(&routes, &mut rng);
+            if d.feasible && d.cost < cost {
+                cost = d.cost;
+                routes = d.routes;
+                found_at = ctx.start.elapsed();
+                self.announce(Phase::Districts, Some(cost), lower_bound, ctx.start, 0);
+            }
+        }
+        let per_district = DISTRICT_OFFSPRING;
         let limits = Limits {
             deadline: ctx.deadline,
             stop: ctx.stop.clone(),
@@ -593,7 +625,7 @@ impl<'a> Solver<'a> {
         let (mut iterations, mut k) = (0u64, 0u64);
         let expected = m.n.div_ceil(size).max(1) as u64;
         while cost > ctx.stop_at && !ctx.should_stop() && budget > 0 {
-            let per = DISTRICT_OFFSPRING.min((budget / expected).max(1));
+            let per = per_district.min((budget / expected).max(1));
             let r =
                 pool.install(|| districts::round(m, &mut routes, size, per, self.seed, k, &limits));
             k += 1;
