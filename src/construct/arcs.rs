@@ -27,6 +27,8 @@
 //! real route and one at or above it uses a missing path. Sums stay far from
 //! `i64` overflow (a route would need 2^16 missing legs at cost scale 100).
 
+use rayon::prelude::*;
+
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::{Distances, UNREACHABLE};
 use crate::plan::Visit;
@@ -162,13 +164,23 @@ impl ArcMatrix {
         } else {
             Vec::new()
         };
-        for (i, &u) in rows.iter().enumerate() {
-            for (j, &v) in cols.iter().enumerate() {
-                cost[i * w + j] = conv(dist.cost(u, v))?;
-                if timed {
-                    time[i * w + j] = conv(dist.time(u, v))?;
-                }
-            }
+        // Rows in parallel (rayon); the first overflow in row order is reported.
+        let fill = |m: &mut [i32], f: &(dyn Fn(usize, usize) -> Cost + Sync)| {
+            let found: Vec<Result<(), MatrixOverflow>> = m
+                .par_chunks_mut(w)
+                .zip(rows.par_iter())
+                .map(|(row, &u)| {
+                    for (x, &v) in row.iter_mut().zip(cols) {
+                        *x = conv(f(u, v))?;
+                    }
+                    Ok(())
+                })
+                .collect();
+            found.into_iter().collect::<Result<(), MatrixOverflow>>()
+        };
+        fill(&mut cost, &|u, v| dist.cost(u, v))?;
+        if timed {
+            fill(&mut time, &|u, v| dist.time(u, v))?;
         }
         Ok(ArcMatrix {
             n,

@@ -315,7 +315,20 @@ impl<'a> Solver<'a> {
         self
     }
 
-    /// How large instances are searched (default [`Decomposition::Auto`]).
+    /// How large instances are searched (default [`Decomposition::Auto`]:
+    /// district improvement above [`DISTRICTS_FROM`] streets).
+    ///
+    /// ```
+    /// use arcwright::demo::{town, TownSpec};
+    /// use arcwright::{check::check_plan, Decomposition, Solver};
+    /// let inst = town(&TownSpec::new(3, 4)).unwrap();
+    /// let sol = Solver::new(&inst)
+    ///     .decomposition(Decomposition::Districts { streets: 30 })
+    ///     .max_iterations(100)
+    ///     .solve()
+    ///     .unwrap();
+    /// assert!(check_plan(&inst, &sol.plan).is_ok());
+    /// ```
     pub fn decomposition(mut self, d: Decomposition) -> Self {
         self.decomposition = d;
         self
