@@ -40,6 +40,7 @@ pub mod demo;
 pub mod error;
 pub mod improve;
 pub mod io;
+pub mod map;
 pub mod model;
 pub mod paths;
 pub mod plan;

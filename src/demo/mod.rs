@@ -199,6 +199,7 @@ impl Builder {
             time: Some((length / speed).round().max(1.0) as Cost),
             service,
             name: Some(name.to_string()),
+            ..Link::default()
         })
     }
 }

@@ -11,9 +11,11 @@
 //! | `streets` | array | see below |
 //! | `yard` | integer | id of the junction the trucks leave from and return to (the depot) |
 //! | `fleet` | object | `{ "capacity": integer, "shift_limit": integer?, "max_trucks": integer? }` |
+//! | `turn_restrictions` | array, optional | `{ "rule": string, "from_street": integer, "via": id, "to_street": integer }`, see below |
 //!
 //! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
-//! "drive_time": integer?, "name": string?, "service": {...}? }`:
+//! "drive_time": integer?, "name": string?, "class": string?, "geometry":
+//! [[x, y], ...]?, "service": {...}? }`:
 //! `one_way` (default `false`) means it may only be driven from `from` to
 //! `to`; `cost` is paid each time it is driven without serving
 //! (deadheading); `drive_time` defaults to `cost`. A street with a `service`
@@ -22,8 +24,18 @@
 //! service cost, `directions` to `"either"`). A street whose two sides are
 //! served separately is written as two streets with `"directions":
 //! "forward"`, one each way. Omitted `shift_limit` / `max_trucks` mean no
-//! limit. Unknown fields are rejected, so a misspelt field is an error, not
-//! silently ignored.
+//! limit. `class` is the road class (the OpenStreetMap `highway=*` value,
+//! such as `"residential"`); `geometry` is the street's shape for maps, the
+//! points from `from` to `to` (both included) in the junctions' coordinate
+//! system; without it maps draw a straight line. Unknown fields are rejected,
+//! so a misspelt field is an error, not silently ignored.
+//!
+//! A turn restriction (read from OpenStreetMap `type=restriction` relations
+//! and kept for turn-aware routing; the solver does not use them yet) says
+//! that a truck arriving at junction `via` along street number `from_street`
+//! (0-based position in `streets`) may not turn into street `to_street`
+//! (`rule` starting with `no_`, such as `"no_left_turn"`), or may only turn
+//! into it (`rule` starting with `only_`, such as `"only_straight_on"`).
 //!
 //! All costs, times and demands are exact integers in `0..=`[`MAX_NUMBER`].
 //! Coordinates are decimal numbers (any planar or lon/lat system); a
@@ -76,6 +88,7 @@ use super::MAX_NUMBER;
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{
     Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection, ServiceSpec,
+    TurnRestriction,
 };
 
 /// The value of the `format` field.
@@ -94,6 +107,17 @@ struct FileRec {
     streets: Vec<StreetRec>,
     yard: u64,
     fleet: FleetRec,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    turn_restrictions: Vec<TurnRec>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TurnRec {
+    rule: String,
+    from_street: usize,
+    via: u64,
+    to_street: usize,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -118,6 +142,10 @@ struct StreetRec {
     drive_time: Option<i64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     name: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    class: Option<String>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    geometry: Vec<[f64; 2]>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     service: Option<ServiceRec>,
 }
@@ -455,6 +483,38 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             time: s.drive_time,
             service,
             name: s.name.clone(),
+            geometry: s.geometry.clone(),
+            class: s.class.clone(),
+        });
+    }
+    let mut turn_restrictions = Vec::with_capacity(rec.turn_restrictions.len());
+    for (i, t) in rec.turn_restrictions.iter().enumerate() {
+        let p = |k: &'static str| vec![Seg::Key("turn_restrictions"), Seg::Index(i), Seg::Key(k)];
+        if !(t.rule.starts_with("no_") || t.rule.starts_with("only_")) {
+            return Err(at(
+                p("rule"),
+                ParseProblem::Unexpected {
+                    expected: "a rule starting with no_ or only_",
+                    found: t.rule.clone(),
+                },
+            ));
+        }
+        for (k, street) in [("from_street", t.from_street), ("to_street", t.to_street)] {
+            if street >= links.len() {
+                return Err(at(
+                    p(k),
+                    ParseProblem::Unexpected {
+                        expected: "the number of a street (0-based position in `streets`)",
+                        found: street.to_string(),
+                    },
+                ));
+            }
+        }
+        turn_restrictions.push(TurnRestriction {
+            rule: t.rule.clone(),
+            from: t.from_street,
+            via: lookup(p("via"), t.via)?,
+            to: t.to_street,
         });
     }
     let depot = lookup(vec![Seg::Key("yard")], rec.yard)?;
@@ -484,7 +544,11 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
         shift_limit: rec.fleet.shift_limit,
         max_vehicles: rec.fleet.max_trucks,
     };
-    let network = Network { junctions, links };
+    let network = Network {
+        junctions,
+        links,
+        turn_restrictions,
+    };
     Instance::new(rec.name, network, fleet, depot).map_err(|m| {
         let path = model_error_path(&m);
         at(path, ParseProblem::Model(m))
@@ -548,6 +612,13 @@ pub fn write_scenario(inst: &Instance) -> String {
                 cost: l.cost,
                 drive_time: l.time,
                 name: l.name.clone(),
+                class: l.class.clone(),
+                geometry: l
+                    .geometry
+                    .iter()
+                    .copied()
+                    .filter(|p| p[0].is_finite() && p[1].is_finite())
+                    .collect(),
                 service: l.service.as_ref().map(|s| ServiceRec {
                     demand: s.demand,
                     cost: s.cost,
@@ -565,6 +636,16 @@ pub fn write_scenario(inst: &Instance) -> String {
             shift_limit: inst.fleet().shift_limit,
             max_trucks: inst.fleet().max_vehicles,
         },
+        turn_restrictions: net
+            .turn_restrictions
+            .iter()
+            .map(|t| TurnRec {
+                rule: t.rule.clone(),
+                from_street: t.from,
+                via: id(t.via),
+                to_street: t.to,
+            })
+            .collect(),
     };
     // Plain structs of integers, strings, booleans and finite floats always
     // serialize; a failure here would be a bug in this function.

@@ -19,7 +19,7 @@ mod network;
 
 pub use fleet::Fleet;
 pub use instance::{Dir, Instance, ModelError, Task};
-pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec};
+pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec, TurnRestriction};
 
 /// Exact integer cost, time or demand.
 pub type Cost = i64;
