@@ -72,6 +72,7 @@ class Reader(osmium.SimpleHandler):
         self.loc = {}
         self.ways = []
         self.rels = []
+        self.rels_full = []
 
     def node(self, n):
         # Same float as the Rust side: the fixed-point value divided by 1e7.
@@ -87,6 +88,8 @@ class Reader(osmium.SimpleHandler):
             rule = r.tags.get("restriction") or r.tags.get("restriction:hgv") or ""
             members = [(m.type, m.ref, m.role) for m in r.members]
             self.rels.append((r.id, rule, members))
+            self.rels_full.append((r.id, ([(m.type, m.ref, m.role) for m in r.members],
+                                          {t.k: t.v for t in r.tags})))
 
 
 def direction(tags):
@@ -317,6 +320,48 @@ def export_geojson(r, profile):
     return fc, ways
 
 
+# A small cut for the OSM XML reader (lon_min, lat_min, lon_max, lat_max):
+# the ways of the profile's classes with a node in the box, complete (all
+# their nodes the extract holds), and every restriction relation.
+CUT = (24.938, 60.165, 24.946, 60.170)
+
+
+def write_cut(r, profile, path):
+    x0, y0, x1, y1 = CUT
+    inside = lambda n: n in r.loc and x0 <= r.loc[n][0] <= x1 and y0 <= r.loc[n][1] <= y1
+    ways = [w for w in r.ways if w[2]["highway"] in profile["classes"] and any(inside(n) for n in w[1])]
+    nodes = sorted({n for w in ways for n in w[1] if n in r.loc})
+    if os.path.exists(path):
+        os.remove(path)
+    wr = osmium.SimpleWriter(path)
+    for n in nodes:
+        wr.add_node(osmium.osm.mutable.Node(id=n, location=osmium.osm.Location(*r.loc[n])))
+    for wid, refs, tags in sorted(ways):
+        wr.add_way(osmium.osm.mutable.Way(id=wid, nodes=refs, tags=tags))
+    for rid, (members, tags) in sorted(r.rels_full):
+        wr.add_relation(osmium.osm.mutable.Relation(id=rid, members=members, tags=tags))
+    wr.close()
+    with open(path, encoding="utf-8") as f:
+        text = f.read()
+    head, rest = text.split("\n", 1)
+    with open(path, "w", encoding="utf-8") as f:
+        f.write(head + "\n<!-- Map data © OpenStreetMap contributors, ODbL 1.0 "
+                "(https://www.openstreetmap.org/copyright); cut by scripts/osm_reference.py -->\n" + rest)
+    return ways
+
+
+def write_no_highways(path):
+    """Three nodes and a building: a valid PBF without streets."""
+    if os.path.exists(path):
+        os.remove(path)
+    wr = osmium.SimpleWriter(path)
+    pts = [(24.9400, 60.1650), (24.9410, 60.1650), (24.9410, 60.1655)]
+    for i, p in enumerate(pts, 1):
+        wr.add_node(osmium.osm.mutable.Node(id=i, location=osmium.osm.Location(*p)))
+    wr.add_way(osmium.osm.mutable.Way(id=1, nodes=[1, 2, 3, 1], tags={"building": "yes"}))
+    wr.close()
+
+
 def main():
     pbf = sys.argv[1] if len(sys.argv) > 1 else os.path.join(ROOT, "..", "shared", "osm", "helsinki.osm.pbf")
     with open(os.path.join(ROOT, "src", "map", "profiles", "refuse.toml"), "rb") as f:
@@ -346,6 +391,10 @@ def main():
     )
     d = os.path.join(ROOT, "tests", "fixtures", "osm")
     os.makedirs(d, exist_ok=True)
+    cut_ways = write_cut(r, profile, os.path.join(d, "helsinki_cut.osm"))
+    cut, _ = build(cut_ways, r.rels, r.loc, profile)
+    out["cut"] = dict(bbox=list(CUT), ways=len(cut_ways), **cut)
+    write_no_highways(os.path.join(d, "no_highways.osm.pbf"))
     with open(os.path.join(d, "helsinki_reference.json"), "w") as f:
         json.dump(out, f, indent=2)
         f.write("\n")
