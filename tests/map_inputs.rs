@@ -394,3 +394,32 @@ fn a_profile_with_an_unknown_road_class_is_an_error() {
     );
     assert!(m.contains("typo.toml:"), "{m}");
 }
+
+#[test]
+fn streets_too_heavy_for_one_truck_are_cut_or_named() {
+    let extra = "  <node id=\"5\" lat=\"59.9995\" lon=\"24.0005\"/>\n  <node id=\"6\" lat=\"59.9995\" lon=\"24.0015\"/>\n".to_string()
+        + "  <way id=\"301\"><nd ref=\"1\"/><nd ref=\"5\"/><nd ref=\"6\"/><nd ref=\"2\"/><tag k=\"highway\" v=\"residential\"/><tag k=\"name\" v=\"Loop Lane\"/></way>\n";
+    let map = parse_osm_xml(&town(&extra), "town.osm").unwrap();
+    // 400 kg per km of kerb, both kerbs: a 100 kg truck serves at most 125 m
+    // in one pass; the 180 m lane is cut at its inner nodes.
+    let mut small = MapOptions::default();
+    small.profile.truck.capacity = 100;
+    let b = build_scenario(&map, &small).unwrap();
+    assert_eq!(b.report.long_cuts, 2);
+    let pieces = b
+        .graph
+        .streets
+        .iter()
+        .filter(|s| s.name.as_deref() == Some("Loop Lane"));
+    assert_eq!(pieces.count(), 3);
+    assert!(b.instance.tasks().iter().all(|t| t.demand <= 100));
+    // A single 111 m piece cannot be cut: a typed error naming the street.
+    small.profile.truck.capacity = 50;
+    let m = is(build_scenario(&map, &small), |e| {
+        matches!(e, MapError::Model { .. })
+    });
+    assert!(
+        m.contains("street Side 10") && m.contains("capacity 50"),
+        "{m}"
+    );
+}

@@ -7,6 +7,7 @@ use super::contract::{contract, keep_strong, Chain};
 use super::error::MapError;
 use super::graph::{segments, FilterStats, WayAttr};
 use super::length::polyline_metres;
+use super::long::cut_long;
 use super::profile::Profile;
 use super::raw::RawMap;
 use super::yard::{centre, nearest, YardChoice, YardHow, YardReport};
@@ -97,6 +98,8 @@ pub struct StreetGraph {
     pub ways_closed: usize,
     /// References to nodes the file does not hold (clipped extracts).
     pub missing_node_refs: usize,
+    /// Cuts made in streets too long for one truck to serve in one pass.
+    pub long_cuts: usize,
 }
 
 /// Builds the street graph of a map under a profile, with the yard.
@@ -145,6 +148,7 @@ pub fn build_graph(
     }
     let dropped = dropped(map, &attrs, &gone);
     let chains = contract(&kept, &attrs, node_yard);
+    let (chains, long_cuts) = cut_long(chains, &attrs, &map.nodes, profile);
     let mut ids: Vec<i64> = chains
         .iter()
         .flat_map(|c| [c.nodes[0], c.nodes[c.nodes.len() - 1]])
@@ -181,6 +185,7 @@ pub fn build_graph(
         ways_other_class: stats.ways_other_class,
         ways_closed: stats.ways_closed,
         missing_node_refs: stats.missing_node_refs,
+        long_cuts,
     })
 }
 

@@ -45,6 +45,9 @@
 //!    (and, one-way, one arrives and one leaves), they are joined into one
 //!    street that keeps the whole polyline.
 //! 7. **Lengths** are geodesic on the WGS84 ellipsoid (Karney's algorithm).
+//!    A required street too long for one truck to serve in one pass is cut
+//!    at inner nodes into pieces a truck can serve (reported as
+//!    [`BuildReport::long_cuts`]; none in ordinary town maps).
 //! 8. **Turn restrictions**: `type=restriction` relations whose `restriction`
 //!    (else `restriction:hgv`) starts with `no_` or `only_`, with one `from`
 //!    way, one `via` node and one `to` way, where the via node is a junction
@@ -97,6 +100,7 @@ mod error;
 mod geojson;
 mod graph;
 mod length;
+mod long;
 mod pbf;
 mod profile;
 mod raw;

@@ -44,6 +44,8 @@ pub struct BuildReport {
     pub ways_closed: usize,
     /// References to nodes missing from the file.
     pub missing_node_refs: usize,
+    /// Cuts made in streets too long for one truck to serve in one pass.
+    pub long_cuts: usize,
 }
 
 impl BuildReport {
@@ -83,6 +85,7 @@ impl BuildReport {
             ways_other_class: graph.ways_other_class,
             ways_closed: graph.ways_closed,
             missing_node_refs: graph.missing_node_refs,
+            long_cuts: graph.long_cuts,
         }
     }
 }
@@ -126,6 +129,13 @@ impl fmt::Display for BuildReport {
             km(self.required_length_m),
             self.tasks
         )?;
+        if self.long_cuts > 0 {
+            writeln!(
+                f,
+                "  {} cuts made in streets too long for one truck to serve in one pass",
+                self.long_cuts
+            )?;
+        }
         if self.dropped.pieces > 0 {
             writeln!(
                 f,
