@@ -54,19 +54,25 @@
 //!     { "id": 30 }
 //!   ],
 //!   "streets": [
-//!     { "from": 10, "to": 20, "cost": 4, "name": "Mill Lane",
+//!     { "from": 10, "to": 20, "cost": 4, "name": "Mill Lane", "class": "residential",
+//!       "geometry": [[0.0, 0.0], [50.0, 12.5], [100.0, 0.0]],
 //!       "service": { "demand": 2, "cost": 6, "time": 9, "directions": "either" } },
 //!     { "from": 20, "to": 30, "one_way": true, "cost": 5, "drive_time": 7,
 //!       "service": { "demand": 3, "cost": 5, "directions": "forward" } },
 //!     { "from": 30, "to": 10, "cost": 7 }
 //!   ],
 //!   "yard": 10,
-//!   "fleet": { "capacity": 10, "shift_limit": 480, "max_trucks": 2 }
+//!   "fleet": { "capacity": 10, "shift_limit": 480, "max_trucks": 2 },
+//!   "turn_restrictions": [
+//!     { "rule": "no_left_turn", "from_street": 0, "via": 20, "to_street": 1 }
+//!   ]
 //! }"#;
 //! let inst = read_scenario(text, "three.json").unwrap();
 //! assert_eq!(inst.tasks().len(), 2);
 //! assert_eq!(inst.depot(), 0);
 //! assert_eq!(inst.fleet().max_vehicles, Some(2));
+//! assert_eq!(inst.network().links[0].geometry.len(), 3);
+//! assert_eq!(inst.network().turn_restrictions[0].via, 1);
 //! // Writing and reading again gives the same instance.
 //! let again = read_scenario(&write_scenario(&inst), "again.json").unwrap();
 //! assert_eq!(again, inst);
