@@ -4,6 +4,7 @@
 //!
 //! ```toml
 //! name = "refuse collection"
+//! load_unit = "kg"                           # unit of demands and capacity (default kg)
 //! closed_access = ["no", "private"]          # access / vehicle / motor_vehicle / hgv values not driven
 //! closed_service = ["parking_aisle", "driveway"]   # service=* kinds not driven
 //!
@@ -106,10 +107,16 @@ struct DemandRec {
     per_km_of_kerb: u32,
 }
 
+fn kg() -> String {
+    "kg".to_string()
+}
+
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct ProfileRec {
     name: String,
+    #[serde(default = "kg")]
+    load_unit: String,
     #[serde(default)]
     closed_access: Vec<String>,
     #[serde(default)]
@@ -124,6 +131,8 @@ struct ProfileRec {
 pub struct Profile {
     /// A name for reports.
     pub name: String,
+    /// The unit of demands and capacity (default `kg`).
+    pub load_unit: String,
     /// `access`, `vehicle`, `motor_vehicle` and `hgv` values that close a way.
     pub closed_access: Vec<String>,
     /// `service=*` values that close a way.
@@ -243,8 +252,17 @@ impl Profile {
             }
             classes.insert(name, rule);
         }
+        if !(1..=24).contains(&rec.load_unit.chars().count())
+            || rec.load_unit.chars().any(char::is_control)
+        {
+            return Err(problem(
+                None,
+                "load_unit must be 1 to 24 characters of text".into(),
+            ));
+        }
         Ok(Profile {
             name: rec.name,
+            load_unit: rec.load_unit,
             closed_access: rec.closed_access,
             closed_service: rec.closed_service,
             truck: rec.truck,
