@@ -423,3 +423,38 @@ fn streets_too_heavy_for_one_truck_are_cut_or_named() {
         "{m}"
     );
 }
+
+#[test]
+fn demand_by_address_counts_the_nearest_served_street() {
+    // Two houses just south of Side 101 (1-2), one building with an address
+    // just north of Side 103 (3-4), and one address far out of town.
+    let extra = r#"  <node id="50" lat="59.99995" lon="24.0005"><tag k="addr:housenumber" v="1"/></node>
+  <node id="51" lat="59.99995" lon="24.0015"><tag k="addr:housenumber" v="3"/></node>
+  <node id="52" lat="60.01" lon="24.01"><tag k="addr:housenumber" v="99"/></node>
+  <node id="60" lat="60.00105" lon="24.0010"/>
+  <node id="61" lat="60.00105" lon="24.0012"/>
+  <node id="62" lat="60.00110" lon="24.0012"/>
+  <way id="70"><nd ref="60"/><nd ref="61"/><nd ref="62"/><nd ref="60"/><tag k="building" v="house"/><tag k="addr:housenumber" v="2"/></way>
+"#;
+    let map = parse_osm_xml(&town(extra), "town.osm").unwrap();
+    assert_eq!(map.addresses.len(), 4);
+    let mut opts = MapOptions::default();
+    opts.profile.demand_per_address = Some(10);
+    let b = build_scenario(&map, &opts).unwrap();
+    assert_eq!(b.report.addresses_snapped, Some(3));
+    let inst = &b.instance;
+    let demand = |name: &str| {
+        inst.tasks()
+            .iter()
+            .filter(|t| inst.network().links[t.link].name.as_deref() == Some(name))
+            .map(|t| t.demand)
+            .collect::<Vec<_>>()
+    };
+    assert_eq!(demand("Side 101"), vec![20]);
+    assert_eq!(demand("Side 103"), vec![10]);
+    assert!(demand("Side 102").is_empty(), "no address: only driven");
+    // Without per_address the same map is served by kerb length.
+    let b = build_scenario(&map, &MapOptions::default()).unwrap();
+    assert_eq!(b.report.addresses_snapped, None);
+    assert_eq!(b.instance.tasks().len(), 4);
+}

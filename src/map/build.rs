@@ -3,12 +3,13 @@
 
 use std::collections::{BTreeSet, HashMap};
 
+use super::address::count_addresses;
 use super::contract::{contract, keep_strong, Chain};
 use super::error::MapError;
 use super::graph::{segments, FilterStats, WayAttr};
 use super::length::polyline_metres;
 use super::long::cut_long;
-use super::profile::Profile;
+use super::profile::{Profile, Serve};
 use super::raw::RawMap;
 use super::yard::{centre, nearest, YardChoice, YardHow, YardReport};
 
@@ -40,6 +41,8 @@ pub struct Street {
     pub required: Option<bool>,
     /// The GeoJSON `demand_per_km` setting, when given.
     pub demand_per_km: Option<u32>,
+    /// Address points given to this street (demand per address).
+    pub addresses: u32,
 }
 
 /// A junction of the built network.
@@ -100,6 +103,11 @@ pub struct StreetGraph {
     pub missing_node_refs: usize,
     /// Cuts made in streets too long for one truck to serve in one pass.
     pub long_cuts: usize,
+    /// Address points in the map.
+    pub addresses_read: usize,
+    /// Address points given to a served street; `Some` when demand is
+    /// counted by address (the profile asks for it and the map has them).
+    pub addresses_snapped: Option<usize>,
 }
 
 /// Builds the street graph of a map under a profile, with the yard.
@@ -169,10 +177,28 @@ pub fn build_graph(
             at: map.nodes[&n],
         })
         .collect();
-    let streets: Vec<Street> = chains
+    let mut streets: Vec<Street> = chains
         .iter()
         .map(|c| street(map, &attrs, &index, c))
         .collect();
+    let addresses_snapped = match profile.demand_per_address {
+        Some(_) if !map.addresses.is_empty() => {
+            let served: Vec<bool> = streets
+                .iter()
+                .map(|s| {
+                    s.required
+                        .unwrap_or(profile.classes[&s.class].serve != Serve::No)
+                })
+                .collect();
+            let snap = f64::from(profile.address_snap_m);
+            let (counts, snapped) = count_addresses(&streets, &served, &map.addresses, snap);
+            for (s, c) in streets.iter_mut().zip(counts) {
+                s.addresses = c;
+            }
+            Some(snapped)
+        }
+        _ => None,
+    };
     let turns = turns(map, &streets, &index);
     let yard = place_yard(&file, &junctions, &index, yard)?;
     Ok(StreetGraph {
@@ -186,6 +212,8 @@ pub fn build_graph(
         ways_closed: stats.ways_closed,
         missing_node_refs: stats.missing_node_refs,
         long_cuts,
+        addresses_read: map.addresses.len(),
+        addresses_snapped,
     })
 }
 
@@ -245,6 +273,7 @@ fn street(
         end_ways: (map.ways[c.end_ways.0].id, map.ways[c.end_ways.1].id),
         required: a.overrides.required,
         demand_per_km: a.overrides.demand_per_km,
+        addresses: 0,
     }
 }
 

@@ -10,7 +10,7 @@ use std::collections::{BTreeMap, HashMap};
 use geojson::{GeoJson, JsonObject, JsonValue, Value};
 
 use super::error::{Element, MapError};
-use super::raw::{MapFormat, Overrides, RawMap, RawWay, KEYS};
+use super::raw::{MapFormat, Overrides, RawMap, RawWay, ADDRESS_KEY, KEYS};
 
 /// The class given to a line without a `highway` property.
 pub const DEFAULT_CLASS: &str = "unclassified";
@@ -69,6 +69,17 @@ pub fn parse_geojson(text: &str, file: &str) -> Result<RawMap, MapError> {
         let lines: Vec<&Vec<Vec<f64>>> = match f.geometry.as_ref().map(|g| &g.value) {
             Some(Value::LineString(c)) => vec![c],
             Some(Value::MultiLineString(c)) => c.iter().collect(),
+            Some(Value::Point(p))
+                if f.properties
+                    .as_ref()
+                    .is_some_and(|o| o.contains_key(ADDRESS_KEY)) =>
+            {
+                if let [lon, lat, ..] = p.as_slice() {
+                    map.addresses.push([*lon, *lat]);
+                }
+                *other.entry("address Point").or_default() += 1;
+                continue;
+            }
             Some(v) => {
                 *other.entry(v.type_name()).or_default() += 1;
                 continue;

@@ -64,7 +64,9 @@
 //!   `serve_kmh` (serving);
 //! - **demand**: load units (kg in the built-in profiles), length × the
 //!   profile's `per_km_of_kerb` × kerbs served (2 when both sides are served
-//!   in one pass, 1 per pass when one side at a time);
+//!   in one pass, 1 per pass when one side at a time); or, with the
+//!   profile's `per_address` and a map with address points, `per_address` ×
+//!   the addresses nearest to the street (see [`Profile`]);
 //! - **fleet**: the profile's truck capacity, shift (seconds) and truck limit.
 //!
 //! Junctions carry WGS84 longitude (`x`) and latitude (`y`); every link
@@ -94,6 +96,7 @@
 //! and the geodesic lengths; the PBF reader reads the file twice to keep only
 //! the nodes of streets in memory. Yard snapping is a scan of the junctions.
 
+mod address;
 mod build;
 mod contract;
 mod error;

@@ -12,7 +12,9 @@ use std::path::Path;
 use osmpbf::{Element as Pbf, ElementReader, RelMemberType};
 
 use super::error::MapError;
-use super::raw::{restriction_rule, street_tags, MapFormat, RawMap, RawRestriction, RawWay};
+use super::raw::{
+    restriction_rule, street_tags, MapFormat, RawMap, RawRestriction, RawWay, ADDRESS_KEY,
+};
 
 fn open(path: &Path, file: &str) -> Result<ElementReader<BufReader<File>>, MapError> {
     let f = File::open(path).map_err(|source| MapError::Io {
@@ -20,6 +22,11 @@ fn open(path: &Path, file: &str) -> Result<ElementReader<BufReader<File>>, MapEr
         source,
     })?;
     Ok(ElementReader::new(BufReader::new(f)))
+}
+
+/// The same float as `value / 1e7` everywhere (fixed-point OSM positions).
+fn lon_lat(lon: i32, lat: i32) -> [f64; 2] {
+    [f64::from(lon) / 1e7, f64::from(lat) / 1e7]
 }
 
 fn broken(file: &str, e: osmpbf::Error) -> MapError {
@@ -45,6 +52,9 @@ pub fn read_pbf(path: &Path) -> Result<RawMap, MapError> {
             elements += 1;
             match el {
                 Pbf::Way(w) => {
+                    if w.tags().any(|(k, _)| k == ADDRESS_KEY) {
+                        map.address_ways.push(w.refs().collect());
+                    }
                     if let Some(tags) = street_tags(w.tags()) {
                         map.ways.push(RawWay {
                             id: w.id(),
@@ -78,7 +88,18 @@ pub fn read_pbf(path: &Path) -> Result<RawMap, MapError> {
                     }
                     map.restrictions.push(rr);
                 }
-                Pbf::Node(_) | Pbf::DenseNode(_) => {}
+                Pbf::Node(n) => {
+                    if n.tags().any(|(k, _)| k == ADDRESS_KEY) {
+                        map.addresses
+                            .push(lon_lat(n.decimicro_lon(), n.decimicro_lat()));
+                    }
+                }
+                Pbf::DenseNode(n) => {
+                    if n.tags().any(|(k, _)| k == ADDRESS_KEY) {
+                        map.addresses
+                            .push(lon_lat(n.decimicro_lon(), n.decimicro_lat()));
+                    }
+                }
             }
         })
         .map_err(|e| broken(&file, e))?;
@@ -87,11 +108,15 @@ pub fn read_pbf(path: &Path) -> Result<RawMap, MapError> {
         .iter()
         .flat_map(|w| w.nodes.iter().copied())
         .collect();
+    let for_addresses: HashSet<i64> = map.address_ways.iter().flatten().copied().collect();
     let nodes = &mut map.nodes;
+    let mut address_nodes = std::collections::HashMap::new();
     let mut keep = |id: i64, lon: i32, lat: i32| {
         if wanted.contains(&id) {
-            // The same float as `lon as f64 / 1e7` everywhere (fixed-point OSM).
-            nodes.insert(id, [f64::from(lon) / 1e7, f64::from(lat) / 1e7]);
+            nodes.insert(id, lon_lat(lon, lat));
+        }
+        if for_addresses.contains(&id) {
+            address_nodes.insert(id, lon_lat(lon, lat));
         }
     };
     open(path, &file)?
@@ -101,6 +126,7 @@ pub fn read_pbf(path: &Path) -> Result<RawMap, MapError> {
             _ => {}
         })
         .map_err(|e| broken(&file, e))?;
+    map.resolve_address_ways(&address_nodes);
     map.elements = elements;
     Ok(map)
 }

@@ -15,6 +15,8 @@
 //!
 //! [demand]
 //! per_km_of_kerb = 400  # load units per km of one kerb
+//! per_address = 25      # optional: load units per address point instead
+//! address_snap_m = 50   # optional: largest address-to-street distance (default 50)
 //!
 //! [classes]             # the road classes (OSM highway=*) trucks may drive
 //! residential = { drive_kmh = 25, serve = "both_sides", serve_kmh = 5 }
@@ -27,6 +29,14 @@
 //! `"each_side"` (one kerb per pass: two required streets, one each way on a
 //! two-way street, both in the driving direction on a one-way street). A
 //! street served on both sides in one pass yields the demand of two kerbs.
+//!
+//! With `per_address`, and a map that has address points (OSM nodes and
+//! buildings with `addr:housenumber`; GeoJSON Point features with that
+//! property), each address is given to the nearest served street within
+//! `address_snap_m` metres and a street's demand is `per_address` times its
+//! addresses (split between the two passes of a street served one side at a
+//! time); a served street without an address is then only driven. A map
+//! without address points falls back to the load per km of kerb.
 //! The full defaults are in `src/map/profiles/refuse.toml` and
 //! `src/map/profiles/gritting.toml`.
 
@@ -101,10 +111,18 @@ pub struct TruckDefaults {
     pub max_trucks: Option<usize>,
 }
 
+fn fifty() -> u32 {
+    50
+}
+
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct DemandRec {
     per_km_of_kerb: u32,
+    #[serde(default)]
+    per_address: Option<u32>,
+    #[serde(default = "fifty")]
+    address_snap_m: u32,
 }
 
 fn kg() -> String {
@@ -141,6 +159,12 @@ pub struct Profile {
     pub truck: TruckDefaults,
     /// Load per km of one kerb.
     pub demand_per_km_of_kerb: u32,
+    /// Load per address point, when demand is counted by address (maps
+    /// without address points fall back to the load per km of kerb).
+    pub demand_per_address: Option<u32>,
+    /// Largest distance, metres, from an address point to the street it is
+    /// given to (default 50).
+    pub address_snap_m: u32,
     /// The road classes the trucks may drive, with their rules.
     pub classes: BTreeMap<String, ClassRule>,
 }
@@ -267,6 +291,8 @@ impl Profile {
             closed_service: rec.closed_service,
             truck: rec.truck,
             demand_per_km_of_kerb: rec.demand.per_km_of_kerb,
+            demand_per_address: rec.demand.per_address,
+            address_snap_m: rec.demand.address_snap_m,
             classes,
         })
     }

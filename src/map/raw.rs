@@ -94,6 +94,13 @@ pub struct RawMap {
     pub ways: Vec<RawWay>,
     /// Turn-restriction relations.
     pub restrictions: Vec<RawRestriction>,
+    /// Address points: positions `[lon, lat]` of nodes (GeoJSON: Point
+    /// features) with an `addr:housenumber`, and the centres of ways with one
+    /// (buildings), for demand per address.
+    pub addresses: Vec<[f64; 2]>,
+    /// Ways with an `addr:housenumber` (buildings): their nodes, turned into
+    /// [`RawMap::addresses`] once node positions are known.
+    pub(crate) address_ways: Vec<Vec<i64>>,
     /// How many elements the file held in all (nodes, ways, relations or
     /// features), for the "empty map" check.
     pub elements: usize,
@@ -109,6 +116,27 @@ impl RawMap {
             ways: Vec::new(),
             restrictions: Vec::new(),
             elements: 0,
+            addresses: Vec::new(),
+            address_ways: Vec::new(),
+        }
+    }
+
+    /// Adds the centre (mean of the distinct nodes the file holds) of every
+    /// address way to [`RawMap::addresses`].
+    pub(crate) fn resolve_address_ways(&mut self, positions: &HashMap<i64, [f64; 2]>) {
+        for nodes in std::mem::take(&mut self.address_ways) {
+            let mut seen = std::collections::HashSet::new();
+            let pts: Vec<[f64; 2]> = nodes
+                .iter()
+                .filter(|n| seen.insert(**n))
+                .filter_map(|n| positions.get(n).copied())
+                .collect();
+            if !pts.is_empty() {
+                let k = pts.len() as f64;
+                let lon = pts.iter().map(|p| p[0]).sum::<f64>() / k;
+                let lat = pts.iter().map(|p| p[1]).sum::<f64>() / k;
+                self.addresses.push([lon, lat]);
+            }
         }
     }
 }
@@ -124,6 +152,9 @@ pub(crate) fn street_tags<'a>(
         .collect();
     kept.contains_key("highway").then_some(kept)
 }
+
+/// The tag that makes a node or way an address point.
+pub const ADDRESS_KEY: &str = "addr:housenumber";
 
 /// The rule of a restriction relation from its tags, if it is one.
 pub(crate) fn restriction_rule<'a>(

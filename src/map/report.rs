@@ -46,6 +46,11 @@ pub struct BuildReport {
     pub missing_node_refs: usize,
     /// Cuts made in streets too long for one truck to serve in one pass.
     pub long_cuts: usize,
+    /// Address points in the map.
+    pub addresses_read: usize,
+    /// Address points given to a served street, when demand is counted by
+    /// address.
+    pub addresses_snapped: Option<usize>,
 }
 
 impl BuildReport {
@@ -86,6 +91,8 @@ impl BuildReport {
             ways_closed: graph.ways_closed,
             missing_node_refs: graph.missing_node_refs,
             long_cuts: graph.long_cuts,
+            addresses_read: graph.addresses_read,
+            addresses_snapped: graph.addresses_snapped,
         }
     }
 }
@@ -129,6 +136,13 @@ impl fmt::Display for BuildReport {
             km(self.required_length_m),
             self.tasks
         )?;
+        if let Some(n) = self.addresses_snapped {
+            writeln!(
+                f,
+                "  demand by address: {n} of {} address points on served streets",
+                self.addresses_read
+            )?;
+        }
         if self.long_cuts > 0 {
             writeln!(
                 f,

@@ -24,8 +24,9 @@ fn load(length_m: f64, per_km: u32, kerbs: f64) -> Cost {
     (length_m * f64::from(per_km) * kerbs / 1000.0).round() as Cost
 }
 
-/// The links of one street: `(link, is the reverse pass)`.
-fn links_of(s: &Street, profile: &Profile) -> Vec<Link> {
+/// The links of one street (two for a street served one side at a time).
+/// `by_address`: demand is counted per address point.
+fn links_of(s: &Street, profile: &Profile, by_address: bool) -> Vec<Link> {
     let rule = &profile.classes[&s.class];
     let cost = cost_m(s.length_m);
     let base = Link {
@@ -39,14 +40,28 @@ fn links_of(s: &Street, profile: &Profile) -> Vec<Link> {
         geometry: s.geometry.clone(),
         class: Some(s.class.clone()),
     };
-    let required = s.required.unwrap_or(rule.serve != Serve::No);
+    let per_address = match (by_address, s.demand_per_km, profile.demand_per_address) {
+        (true, None, Some(p)) => Some(Cost::from(p)),
+        _ => None,
+    };
+    // Counted by address, a served street without an address is only
+    // driven (unless the map itself requires it).
+    let nothing_there = per_address.is_some() && s.addresses == 0 && s.required != Some(true);
+    let required = s.required.unwrap_or(rule.serve != Serve::No) && !nothing_there;
     if !required {
         return vec![base];
     }
     let per_km = s.demand_per_km.unwrap_or(profile.demand_per_km_of_kerb);
     let serve_kmh = rule.serve_kmh.unwrap_or(rule.drive_kmh);
+    let n = Cost::from(s.addresses);
+    // `kerbs`: 2.0 for both sides, 1.0 / -1.0 for the first / second pass.
     let spec = |kerbs: f64, direction| ServiceSpec {
-        demand: load(s.length_m, per_km, kerbs),
+        demand: match per_address {
+            Some(p) if kerbs > 1.5 => p * n,
+            Some(p) if kerbs > 0.0 => p * (n - n / 2),
+            Some(p) => p * (n / 2),
+            None => load(s.length_m, per_km, kerbs.abs()),
+        },
         cost,
         time: Some(seconds(s.length_m, serve_kmh)),
         direction,
@@ -60,7 +75,7 @@ fn links_of(s: &Street, profile: &Profile) -> Vec<Link> {
         }],
         Serve::EachSide => {
             let mut back = Link {
-                service: Some(spec(1.0, ServeDirection::Forward)),
+                service: Some(spec(-1.0, ServeDirection::Forward)),
                 ..base.clone()
             };
             if !s.one_way {
@@ -105,7 +120,7 @@ pub fn to_instance(
     let mut first_link = Vec::with_capacity(graph.streets.len());
     for (i, s) in graph.streets.iter().enumerate() {
         first_link.push(links.len());
-        for l in links_of(s, profile) {
+        for l in links_of(s, profile, graph.addresses_snapped.is_some()) {
             links.push(l);
             street_of.push(i);
         }

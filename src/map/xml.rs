@@ -6,12 +6,14 @@ use quick_xml::events::{BytesStart, Event};
 use quick_xml::{Reader, XmlVersion};
 
 use super::error::{Element, MapError};
-use super::raw::{restriction_rule, street_tags, MapFormat, RawMap, RawRestriction, RawWay};
+use super::raw::{
+    restriction_rule, street_tags, MapFormat, RawMap, RawRestriction, RawWay, ADDRESS_KEY,
+};
 
 /// The element being read.
 enum Open {
     None,
-    Node,
+    Node([f64; 2], bool),
     Way(i64, Vec<i64>, Vec<(String, String)>),
     Relation(i64, Vec<(String, i64, String)>, Vec<(String, String)>),
 }
@@ -116,7 +118,7 @@ pub fn parse_osm_xml(text: &str, file: &str) -> Result<RawMap, MapError> {
                     });
                 }
                 map.nodes.insert(id, [lon, lat]);
-                open = Open::Node;
+                open = Open::Node([lon, lat], false);
             }
             "way" => {
                 map.elements += 1;
@@ -141,10 +143,12 @@ pub fn parse_osm_xml(text: &str, file: &str) -> Result<RawMap, MapError> {
             }
             "tag" => {
                 let (k, v) = (get(&attrs, "k"), get(&attrs, "v"));
-                if let (Some(k), Some(v), Open::Way(_, _, tags) | Open::Relation(_, _, tags)) =
-                    (k, v, &mut open)
-                {
-                    tags.push((k.to_string(), v.to_string()));
+                match (k, v, &mut open) {
+                    (Some(k), Some(v), Open::Way(_, _, tags) | Open::Relation(_, _, tags)) => {
+                        tags.push((k.to_string(), v.to_string()))
+                    }
+                    (Some(ADDRESS_KEY), Some(_), Open::Node(_, address)) => *address = true,
+                    _ => {}
                 }
             }
             _ => {}
@@ -153,12 +157,17 @@ pub fn parse_osm_xml(text: &str, file: &str) -> Result<RawMap, MapError> {
             finish(&mut map, std::mem::replace(&mut open, Open::None));
         }
     }
+    let positions = map.nodes.clone();
+    map.resolve_address_ways(&positions);
     Ok(map)
 }
 
 fn finish(map: &mut RawMap, open: Open) {
     match open {
         Open::Way(id, nodes, tags) => {
+            if tags.iter().any(|(k, _)| k == ADDRESS_KEY) {
+                map.address_ways.push(nodes.clone());
+            }
             if let Some(tags) = street_tags(tags.iter().map(|(k, v)| (k.as_str(), v.as_str()))) {
                 map.ways.push(RawWay {
                     id,
@@ -192,6 +201,7 @@ fn finish(map: &mut RawMap, open: Open) {
             }
             map.restrictions.push(rr);
         }
-        Open::Node | Open::None => {}
+        Open::Node(at, true) => map.addresses.push(at),
+        Open::Node(..) | Open::None => {}
     }
 }
