@@ -139,6 +139,33 @@ pub struct MapOptions {
     pub yard: Option<YardChoice>,
 }
 
+impl MapOptions {
+    /// Options from command-line text: a profile name (`refuse`,
+    /// `gritting`) or TOML file, and a yard `LON,LAT` or `node:ID`; `None`
+    /// keeps the default (refuse profile, yard nearest the centre).
+    ///
+    /// ```
+    /// use arcwright::map::{MapOptions, YardChoice};
+    /// let o = MapOptions::from_args(Some("gritting"), Some("node:7")).unwrap();
+    /// assert_eq!(o.yard, Some(YardChoice::Node(7)));
+    /// assert!(MapOptions::from_args(None, Some("north")).is_err());
+    /// ```
+    ///
+    /// # Errors
+    ///
+    /// [`MapError::YardSyntax`] for a yard that is not `LON,LAT` or
+    /// `node:ID`; the errors of [`Profile::read_file`] for a profile file.
+    pub fn from_args(profile: Option<&str>, yard: Option<&str>) -> Result<MapOptions, MapError> {
+        Ok(MapOptions {
+            profile: match profile {
+                Some(p) => Profile::named_or_file(p)?,
+                None => Profile::refuse(),
+            },
+            yard: yard.map(str::parse).transpose()?,
+        })
+    }
+}
+
 impl Default for MapOptions {
     fn default() -> Self {
         MapOptions {
