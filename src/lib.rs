@@ -10,9 +10,9 @@
 //! [`check`] (independent plan checker), [`postman`] and [`bounds`]
 //! (single-tour routes and lower bounds), [`construct`], [`improve`] and
 //! [`search`] (the fleet solver), [`map`] (OpenStreetMap and GeoJSON street
-//! maps in), [`demo`] and [`report`] (demo towns and
-//! outputs for people), and [`app`] (the logic of the `planner` example
-//! program).
+//! maps in), [`demo`] and [`report`] (demo towns and outputs for people,
+//! rendered as text). The `planner` program that writes them into a folder is
+//! an example (`examples/planner/`), not library API.
 //!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
@@ -33,7 +33,6 @@
 //! assert!(sol.cost >= sol.lower_bound.value);
 //! ```
 
-pub mod app;
 pub mod bounds;
 pub mod check;
 pub mod construct;

@@ -67,10 +67,14 @@
 //!   in one pass, 1 per pass when one side at a time); or, with the
 //!   profile's `per_address` and a map with address points, `per_address` ×
 //!   the addresses nearest to the street (see [`Profile`]);
+//! - **length**: metres, as the cost;
 //! - **fleet**: the profile's truck capacity, shift (seconds) and truck limit.
 //!
-//! Junctions carry WGS84 longitude (`x`) and latitude (`y`); every link
-//! carries its polyline ([`crate::model::Link::geometry`]) and road class.
+//! The instance declares these units (cost `m`, length `m`, time `s`, load
+//! the profile's `load_unit`) and its coordinate system,
+//! [`crate::model::Coordinates::Wgs84`]: junctions carry longitude (`x`) and
+//! latitude (`y`); every link carries its polyline
+//! ([`crate::model::Link::geometry`]) and road class.
 //!
 //! # GeoJSON
 //!

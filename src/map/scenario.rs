@@ -2,11 +2,11 @@
 //! demands as exact integers, one or two required links per served street.
 
 use super::build::{Street, StreetGraph};
-use super::error::MapError;
+use super::error::{Element, MapError};
 use super::profile::{Profile, Serve};
 use crate::model::{
-    Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection, ServiceSpec,
-    TurnRestriction,
+    Coordinates, Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection,
+    ServiceSpec, TurnRestriction, Units,
 };
 
 /// Whole metres (the unit of costs).
@@ -37,6 +37,7 @@ fn links_of(s: &Street, profile: &Profile, by_address: bool) -> Vec<Link> {
         time: Some(seconds(s.length_m, rule.drive_kmh)),
         service: None,
         name: s.name.clone(),
+        length: Some(cost),
         geometry: s.geometry.clone(),
         class: Some(s.class.clone()),
     };
@@ -162,6 +163,20 @@ pub fn to_instance(
     };
     let inst = Instance::new(name, network, fleet, graph.yard.0)
         .map_err(|e| model_error(graph, &street_of, file, e))?;
+    let units = Units {
+        cost: Some("m".into()),
+        length: Some("m".into()),
+        time: Some("s".into()),
+        load: Some(profile.load_unit.clone()),
+    };
+    let inst = inst
+        .with_units(units)
+        .with_coordinates(Coordinates::Wgs84)
+        .map_err(|(j, e)| MapError::Element {
+            file: file.to_string(),
+            element: Element::Node(graph.junctions[j].node),
+            problem: e.to_string(),
+        })?;
     Ok((inst, street_of))
 }
 

@@ -8,7 +8,8 @@ pub struct Junction {
     /// The junction's number in the source data (1-based in the public sets,
     /// node ids for map data). Plans written to files use this number.
     pub id: u64,
-    /// Optional coordinates (any planar or lon/lat system; used for maps).
+    /// Optional coordinates, in the system the instance declares
+    /// ([`crate::model::Instance::coordinates`]); used for maps.
     pub x: Option<f64>,
     /// See `x`.
     pub y: Option<f64>,
@@ -58,6 +59,9 @@ pub struct Link {
     pub service: Option<ServiceSpec>,
     /// Street name, for route sheets.
     pub name: Option<String>,
+    /// Length of the street, in the scenario's length unit, when known
+    /// (reports only; costs decide the plan).
+    pub length: Option<Cost>,
     /// The street's shape for maps: points `[x, y]` (lon/lat or planar, as
     /// the junctions) from the `from` junction to the `to` junction, both
     /// included. Empty: a straight line between the two junctions.
@@ -176,6 +180,11 @@ impl Network {
     /// True when there are no junctions.
     pub fn is_empty(&self) -> bool {
         self.junctions.is_empty()
+    }
+
+    /// Whether any link has a length.
+    pub fn has_lengths(&self) -> bool {
+        self.links.iter().any(|l| l.length.is_some())
     }
 
     /// Whether any link carries an explicit time (then times may differ from costs).
