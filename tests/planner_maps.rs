@@ -77,7 +77,7 @@ fn plan_map(map: &Path, extra: &[&str], dir: &Path) -> String {
     let out = dir.join("out");
     let saved = dir.join("built.json");
     let mut args: Vec<&std::ffi::OsStr> = vec![map.as_os_str()];
-    args.extend(extra.iter().map(|a| std::ffi::OsStr::new(a)));
+    args.extend(extra.iter().map(std::ffi::OsStr::new));
     args.extend([
         "--iterations".as_ref(),
         "20".as_ref(),
