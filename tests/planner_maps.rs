@@ -153,6 +153,11 @@ fn osm_extract_is_planned_with_profile_and_yard_and_checked() {
     assert!(stdout.contains("gritting"), "{stdout}");
     assert!(stdout.contains("31 turn restrictions"), "{stdout}");
     assert!(stdout.contains("snapped"), "{stdout}");
+    // OpenStreetMap data: every output for people carries its attribution.
+    for f in ["plan.svg", "plan.geojson", "summary.txt", "sheets.md"] {
+        let t = std::fs::read_to_string(dir.join("out").join(f)).unwrap();
+        assert!(t.contains("© OpenStreetMap contributors"), "{f}");
+    }
     // `check` rebuilds the same network from the map with the same options.
     let plan = dir.join("out/plan.json");
     let o = planner(&[

@@ -18,7 +18,7 @@ use arcwright::plan::{walk, Plan};
 use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
 use arcwright::{Progress, Solver};
 
-use arcwright::map::{load_map, MapOptions};
+use arcwright::map::{load_map, MapFormat, MapOptions};
 
 use crate::cli::{FleetArgs, MapArgs, PlanArgs, DEFAULT_SCENARIO};
 use crate::output::{prepare_folder, write_files};
@@ -31,6 +31,8 @@ pub struct Loaded {
     pub instance: Instance,
     /// What the map builder made of a map file (printed before the plan).
     pub map_report: Option<String>,
+    /// Built from OpenStreetMap data: outputs carry its attribution.
+    pub osm: bool,
 }
 
 /// Reads a scenario: a street map when the name says so
@@ -47,6 +49,7 @@ pub fn load_scenario(path: &Path, fleet: &FleetArgs, map: &MapArgs) -> Result<Lo
         return Ok(Loaded {
             instance: fleet.apply(built.instance).map_err(AppError::Fleet)?,
             map_report: Some(built.report.to_string()),
+            osm: built.report.format != MapFormat::GeoJson,
         });
     }
     if *map != MapArgs::default() {
@@ -58,6 +61,7 @@ pub fn load_scenario(path: &Path, fleet: &FleetArgs, map: &MapArgs) -> Result<Lo
     Ok(Loaded {
         instance: read_scenario_or_dat(path, fleet)?,
         map_report: None,
+        osm: false,
     })
 }
 
@@ -114,6 +118,7 @@ pub fn resolve_scenario(opts: &PlanArgs) -> Result<(Loaded, String), AppError> {
     let loaded = Loaded {
         instance: inst,
         map_report: None,
+        osm: false,
     };
     Ok((loaded, "the demo town (generated)".to_string()))
 }
@@ -250,8 +255,12 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         stopped_early,
         crate_version: env!("CARGO_PKG_VERSION").to_string(),
     };
-    let files = render(&inst, &dist, &solution.plan, &extras, Some(run))?;
-    let summary = summary_table(&inst, &solution.plan, &extras);
+    let mut files = render(&inst, &dist, &solution.plan, &extras, Some(run))?;
+    let mut summary = summary_table(&inst, &solution.plan, &extras);
+    if loaded.osm {
+        attribute_osm(&mut files);
+        summary.push_str(&format!("\n{OSM_ATTRIBUTION}\n"));
+    }
     let files = write_files(&opts.out, &files)?;
     Ok(PlanRun {
         source,
@@ -261,6 +270,49 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         summary,
         files,
     })
+}
+
+/// The attribution OpenStreetMap's licence asks of anything made from its data.
+pub const OSM_ATTRIBUTION: &str =
+    "Map data © OpenStreetMap contributors, ODbL 1.0 (https://www.openstreetmap.org/copyright)";
+
+/// Adds the OpenStreetMap attribution to the map picture (bottom right), the
+/// GeoJSON (a foreign member `attribution`), the summary and the sheets.
+fn attribute_osm(files: &mut [arcwright::report::OutputFile]) {
+    for f in files.iter_mut() {
+        match f.name.as_str() {
+            "plan.svg" => {
+                let height: f64 = f
+                    .contents
+                    .split("height=\"")
+                    .nth(1)
+                    .and_then(|r| r.split('"').next())
+                    .and_then(|h| h.parse().ok())
+                    .unwrap_or(0.0);
+                let text = format!(
+                    "<text id=\"attribution\" x=\"992\" y=\"{:.0}\" text-anchor=\"end\" font-size=\"10\" fill=\"#555555\">{}</text>\n</svg>\n",
+                    height - 8.0,
+                    arcwright::report::svg::xml_escape(OSM_ATTRIBUTION)
+                );
+                if let Some(end) = f.contents.rfind("</svg>") {
+                    f.contents.truncate(end);
+                    f.contents.push_str(&text);
+                }
+            }
+            "plan.geojson" => {
+                if let Ok(mut v) = serde_json::from_str::<serde_json::Value>(&f.contents) {
+                    v["attribution"] = serde_json::json!(OSM_ATTRIBUTION);
+                    if let Ok(t) = serde_json::to_string_pretty(&v) {
+                        f.contents = t;
+                    }
+                }
+            }
+            "summary.txt" | "sheets.md" => {
+                f.contents.push_str(&format!("\n{OSM_ATTRIBUTION}\n"));
+            }
+            _ => {}
+        }
+    }
 }
 
 /// Writes the scenario as JSON, through a temporary file renamed into place
