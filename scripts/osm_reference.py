@@ -41,8 +41,10 @@ Rules (the same as `src/map/mod.rs` documents):
    way and from the `to` way.
 
 Usage: python3 scripts/osm_reference.py ../shared/osm/helsinki.osm.pbf
-       (writes tests/fixtures/osm/helsinki_reference.json and
-        tests/fixtures/osm/helsinki_streets.geojson)
+       (writes, in tests/fixtures/osm/: helsinki_reference.json, the numbers;
+        helsinki_streets.geojson, the GeoJSON export; helsinki_cut.osm, an
+        OSM XML cut of the city centre, whose numbers are `cut` in the
+        reference; no_highways.osm.pbf, three nodes and a building)
 
 Libraries: osmium (pyosmium) 4.3.2, networkx 3.6.1, geographiclib 2.x,
 Python 3.11 (tomllib).
@@ -369,7 +371,7 @@ def main():
     r = Reader()
     r.apply_file(pbf)
     full, streets = build(r.ways, r.rels, r.loc, profile)
-    # A few streets to compare lengths with: the longest named ones.
+    # A few streets to compare lengths with: the longest ones.
     named = sorted((s for s in streets if s["nodes"][0] != s["nodes"][-1]),
                    key=lambda s: -s["length"])[:6]
     samples = [dict(from_node=s["nodes"][0], to_node=s["nodes"][-1], first_way=s["ways"][0],
