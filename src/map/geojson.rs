@@ -91,31 +91,7 @@ pub fn parse_geojson(text: &str, file: &str) -> Result<RawMap, MapError> {
         };
         let (tags, overrides) = properties(f.properties.as_ref(), file, i)?;
         for line in lines {
-            if line.len() < 2 {
-                return Err(element(
-                    file,
-                    i,
-                    "a line needs at least two positions".into(),
-                ));
-            }
-            let mut nodes = Vec::with_capacity(line.len());
-            for p in line {
-                let (lon, lat) = match p.as_slice() {
-                    [lon, lat, ..] => (*lon + 0.0, *lat + 0.0),
-                    _ => return Err(element(file, i, "a position needs two numbers".into())),
-                };
-                if !(-180.0..=180.0).contains(&lon) || !(-90.0..=90.0).contains(&lat) {
-                    return Err(element(
-                        file,
-                        i,
-                        format!("position {lon}, {lat} is not a longitude, latitude"),
-                    ));
-                }
-                let next = ids.len() as i64 + 1;
-                let id = *ids.entry((lon.to_bits(), lat.to_bits())).or_insert(next);
-                map.nodes.insert(id, [lon, lat]);
-                nodes.push(id);
-            }
+            let nodes = line_nodes(line, &mut ids, &mut map, file, i)?;
             map.ways.push(RawWay {
                 id: i as i64,
                 nodes,
@@ -135,6 +111,43 @@ pub fn parse_geojson(text: &str, file: &str) -> Result<RawMap, MapError> {
         });
     }
     Ok(map)
+}
+
+/// The node ids of a line's positions (new ids for new positions).
+fn line_nodes(
+    line: &[Vec<f64>],
+    ids: &mut HashMap<(u64, u64), i64>,
+    map: &mut RawMap,
+    file: &str,
+    i: usize,
+) -> Result<Vec<i64>, MapError> {
+    if line.len() < 2 {
+        return Err(element(
+            file,
+            i,
+            "a line needs at least two positions".into(),
+        ));
+    }
+    let mut nodes = Vec::with_capacity(line.len());
+    for p in line {
+        let (lon, lat) = match p.as_slice() {
+            // `+ 0.0` turns -0.0 into 0.0: one position, one node.
+            [lon, lat, ..] => (*lon + 0.0, *lat + 0.0),
+            _ => return Err(element(file, i, "a position needs two numbers".into())),
+        };
+        if !(-180.0..=180.0).contains(&lon) || !(-90.0..=90.0).contains(&lat) {
+            return Err(element(
+                file,
+                i,
+                format!("position {lon}, {lat} is not a longitude, latitude"),
+            ));
+        }
+        let next = ids.len() as i64 + 1;
+        let id = *ids.entry((lon.to_bits(), lat.to_bits())).or_insert(next);
+        map.nodes.insert(id, [lon, lat]);
+        nodes.push(id);
+    }
+    Ok(nodes)
 }
 
 /// The OSM-style tags and our own settings of a feature.
