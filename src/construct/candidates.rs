@@ -147,3 +147,55 @@ pub fn candidate_lists(inst: &Instance, m: &ArcMatrix, k: usize) -> Vec<Vec<u32>
         )
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::construct::path_scanning::{path_scan_listed, RULES};
+    use crate::demo::{town, TownSpec};
+    use crate::improve::local_search::neighbour_lists;
+    use crate::paths::Distances;
+    use rand_chacha::ChaCha12Rng;
+
+    fn setup() -> (Instance, ArcMatrix) {
+        let inst = town(&TownSpec::new(4, 6)).expect("town");
+        let dist = Distances::new(&inst).expect("paths");
+        let m = ArcMatrix::new(&inst, &dist).expect("matrix");
+        (inst, m)
+    }
+
+    #[test]
+    fn candidate_lists_find_the_exact_nearest_street_almost_always() {
+        let (inst, m) = setup();
+        let cand = candidate_lists(&inst, &m, 16);
+        let exact = neighbour_lists(&m, 1);
+        let mut same = 0;
+        for u in 0..m.n {
+            assert!(cand[u].len() <= 16 && !cand[u].contains(&(u as u32)));
+            let gaps: Vec<i64> = cand[u].iter().map(|&v| m.task_gap(u, v as usize)).collect();
+            assert!(gaps.windows(2).all(|w| w[0] <= w[1]));
+            // The exact nearest gap (all pairs) is a lower bound of ours.
+            let best = m.task_gap(u, exact[u][0] as usize);
+            assert!(gaps[0] >= best);
+            same += usize::from(gaps[0] == best);
+        }
+        assert!(same * 100 >= m.n * 95, "{same} of {}", m.n);
+    }
+
+    #[test]
+    fn listed_path_scanning_serves_every_street_once_within_limits() {
+        let (inst, m) = setup();
+        let cand = candidate_lists(&inst, &m, 16);
+        for rule in RULES {
+            let routes = path_scan_listed::<ChaCha12Rng>(&m, &cand, rule, None);
+            let mut seen = vec![0; m.n];
+            for r in &routes {
+                assert!(m.route_feasible(r), "{rule:?}");
+                for &a in r {
+                    seen[ArcMatrix::task(a)] += 1;
+                }
+            }
+            assert!(seen.iter().all(|&c| c == 1), "{rule:?}");
+        }
+    }
+}
