@@ -93,6 +93,38 @@ pub struct MatrixOverflow {
     pub value: Cost,
 }
 
+/// A stored entry for a deadhead of `x`.
+fn conv(x: Cost) -> Result<i32, MatrixOverflow> {
+    if x >= UNREACHABLE {
+        Ok(MISSING)
+    } else if x > MAX_LEG {
+        Err(MatrixOverflow { value: x })
+    } else {
+        Ok(x as i32)
+    }
+}
+
+/// Fills `m` (rows of `cols.len()` entries) with `f(row junction, column
+/// junction)`, rows in parallel (rayon); reports the first overflow in row order.
+fn fill_rows(
+    m: &mut [i32],
+    rows: &[usize],
+    cols: &[usize],
+    f: &(dyn Fn(usize, usize) -> Cost + Sync),
+) -> Result<(), MatrixOverflow> {
+    let found: Vec<Result<(), MatrixOverflow>> = m
+        .par_chunks_mut(cols.len().max(1))
+        .zip(rows.par_iter())
+        .map(|(row, &u)| {
+            for (x, &v) in row.iter_mut().zip(cols) {
+                *x = conv(f(u, v))?;
+            }
+            Ok(())
+        })
+        .collect();
+    found.into_iter().collect()
+}
+
 impl ArcMatrix {
     /// Builds the matrices from the instance's shortest paths.
     ///
@@ -122,15 +154,6 @@ impl ArcMatrix {
             }
         }
         let timed = inst.fleet().shift_limit.is_some();
-        let conv = |x: Cost| -> Result<i32, MatrixOverflow> {
-            if x >= UNREACHABLE {
-                Ok(MISSING)
-            } else if x > MAX_LEG {
-                Err(MatrixOverflow { value: x })
-            } else {
-                Ok(x as i32)
-            }
-        };
         // Local numbering of the junctions the arcs touch (all are keys of
         // `dist`, which holds at least the depot and the task ends).
         let mut local: Vec<usize> = start.iter().chain(&end).copied().collect();
@@ -164,23 +187,9 @@ impl ArcMatrix {
         } else {
             Vec::new()
         };
-        // Rows in parallel (rayon); the first overflow in row order is reported.
-        let fill = |m: &mut [i32], f: &(dyn Fn(usize, usize) -> Cost + Sync)| {
-            let found: Vec<Result<(), MatrixOverflow>> = m
-                .par_chunks_mut(w)
-                .zip(rows.par_iter())
-                .map(|(row, &u)| {
-                    for (x, &v) in row.iter_mut().zip(cols) {
-                        *x = conv(f(u, v))?;
-                    }
-                    Ok(())
-                })
-                .collect();
-            found.into_iter().collect::<Result<(), MatrixOverflow>>()
-        };
-        fill(&mut cost, &|u, v| dist.cost(u, v))?;
+        fill_rows(&mut cost, rows, cols, &|u, v| dist.cost(u, v))?;
         if timed {
-            fill(&mut time, &|u, v| dist.time(u, v))?;
+            fill_rows(&mut time, rows, cols, &|u, v| dist.time(u, v))?;
         }
         Ok(ArcMatrix {
             n,
