@@ -18,6 +18,7 @@
 //! every task has a fixed service direction.
 
 mod capacity;
+pub mod lp;
 mod single;
 
 pub(crate) use capacity::depot_cuts;

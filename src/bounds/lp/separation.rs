@@ -1,0 +1,240 @@
+//! Separation: finding cuts that the current LP point violates.
+//!
+//! Candidate junction sets come from
+//! - the Gomory–Hu tree of the graph weighted by `x` (every subtree below the
+//!   yard): among them a minimum `T`-odd cut, `T` the junctions of odd
+//!   degree in the required links, so every violated odd-cut inequality is
+//!   found (Padberg & Rao 1982, Math. Oper. Res. 7);
+//! - the Gomory–Hu tree weighted by `x + r` (`r`: required links per pair),
+//!   whose minimum cuts are the small left-hand sides `x(δ(S)) + r(S)` of
+//!   the capacity inequality `x(δ(S)) + r(S) ≥ 2k(S)` (a heuristic, as in
+//!   Belenguer & Benavent 2003);
+//! - the connected pieces of the support of `x` joined with the required
+//!   links, and the sets of junctions at least a given distance from the
+//!   yard with their connected pieces (depot-distance levels).
+//!
+//! Each candidate's right-hand side is computed exactly by
+//! [`Formulation::cut`], which holds whatever the candidate; floats only
+//! choose which sets to try.
+
+use std::collections::{HashSet, VecDeque};
+
+use super::formulation::{Cut, Formulation};
+use super::mincut::{CutTree, FlowGraph};
+use crate::model::Cost;
+
+/// A cut is added only when violated by more than this.
+pub const MIN_VIOLATION: f64 = 1e-4;
+
+/// Largest number of junctions on which the Gomory–Hu trees are built.
+pub const MAX_TREE_JUNCTIONS: usize = 2500;
+
+/// Reusable separation state for one formulation.
+pub struct Separator {
+    /// Required links per column.
+    req: Vec<f64>,
+    /// Depot-distance level sets, computed once.
+    levels: Vec<Vec<bool>>,
+}
+
+impl Separator {
+    /// Prepares the separation of `form`'s cuts.
+    pub fn new(form: &Formulation) -> Separator {
+        let mut req = vec![0.0; form.columns().len()];
+        let pair: std::collections::HashMap<(usize, usize), usize> = form
+            .columns()
+            .iter()
+            .enumerate()
+            .map(|(i, c)| ((c.u, c.v), i))
+            .collect();
+        for (a, b) in form.task_ends() {
+            if let Some(&i) = pair.get(&(a.min(b), a.max(b))) {
+                req[i] += 1.0;
+            }
+        }
+        Separator {
+            req,
+            levels: depot_levels(form),
+        }
+    }
+
+    /// Cuts violated at `x` by more than [`MIN_VIOLATION`] whose sets are
+    /// not in `seen`, most violated first, at most `max_cuts`; their sets are
+    /// added to `seen`.
+    pub fn separate(
+        &self,
+        form: &Formulation,
+        x: &[f64],
+        max_cuts: usize,
+        seen: &mut HashSet<Vec<usize>>,
+    ) -> Vec<Cut> {
+        let mut found: Vec<(f64, Cut)> = Vec::new();
+        let mut local: HashSet<Vec<usize>> = HashSet::new();
+        let mut consider = |mask: &[bool]| {
+            if let Some(cut) = form.cut(mask) {
+                let viol = cut.rhs as f64 - form.lhs(&cut, x);
+                if viol > MIN_VIOLATION && !seen.contains(&cut.set) && local.insert(cut.set.clone())
+                {
+                    found.push((viol, cut));
+                }
+            }
+        };
+        let n = form.junctions();
+        if n <= MAX_TREE_JUNCTIONS {
+            let zero = vec![0.0; x.len()];
+            for mask in tree_sets(form, x, &zero) {
+                consider(&mask);
+            }
+            for mask in tree_sets(form, x, &self.req) {
+                consider(&mask);
+            }
+        }
+        for mask in support_pieces(form, x, &self.req) {
+            consider(&mask);
+        }
+        for level in &self.levels {
+            consider(level);
+            for mask in pieces_within(form, level) {
+                consider(&mask);
+            }
+        }
+        found.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.set.cmp(&b.1.set)));
+        found.truncate(max_cuts);
+        found
+            .into_iter()
+            .map(|(_, c)| {
+                seen.insert(c.set.clone());
+                c
+            })
+            .collect()
+    }
+}
+
+/// The subtree sets of the Gomory–Hu tree of weights `x + extra`, rooted at
+/// the yard (each mask is a subtree, so it avoids the yard).
+fn tree_sets(form: &Formulation, x: &[f64], extra: &[f64]) -> Vec<Vec<bool>> {
+    let n = form.junctions();
+    let depot = form.depot();
+    // Relabel so that the yard is vertex 0.
+    let label = |v: usize| {
+        if v == depot {
+            0
+        } else if v == 0 {
+            depot
+        } else {
+            v
+        }
+    };
+    let edges: Vec<(usize, usize, f64)> = form
+        .columns()
+        .iter()
+        .enumerate()
+        .map(|(i, c)| (label(c.u), label(c.v), x[i].max(0.0) + extra[i]))
+        .collect();
+    let mut g = FlowGraph::new(n, &edges);
+    let tree = CutTree::new(&mut g);
+    tree.subtrees()
+        .into_iter()
+        .skip(1)
+        .map(|members| {
+            let mut mask = vec![false; n];
+            for v in members {
+                mask[label(v)] = true;
+            }
+            mask
+        })
+        .collect()
+}
+
+/// Connected pieces of the graph of the columns with `x > 1e-6` or a
+/// required link, except the yard's piece.
+fn support_pieces(form: &Formulation, x: &[f64], req: &[f64]) -> Vec<Vec<bool>> {
+    let keep: Vec<bool> = (0..x.len()).map(|i| x[i] > 1e-6 || req[i] > 0.0).collect();
+    let all = vec![true; form.junctions()];
+    pieces(form, &all, &keep)
+}
+
+/// Connected pieces of the junctions in `within` (through any column).
+fn pieces_within(form: &Formulation, within: &[bool]) -> Vec<Vec<bool>> {
+    let keep = vec![true; form.columns().len()];
+    let p = pieces(form, within, &keep);
+    if p.len() <= 1 {
+        Vec::new()
+    } else {
+        p
+    }
+}
+
+/// Connected pieces of the junctions in `within` through the columns in
+/// `keep`, the yard's piece left out, pieces without a task end left out.
+fn pieces(form: &Formulation, within: &[bool], keep: &[bool]) -> Vec<Vec<bool>> {
+    let n = form.junctions();
+    let adj = form.adjacency();
+    let mut comp = vec![usize::MAX; n];
+    let mut count = 0;
+    for s in 0..n {
+        if !within[s] || comp[s] != usize::MAX {
+            continue;
+        }
+        comp[s] = count;
+        let mut q = VecDeque::from([s]);
+        while let Some(v) = q.pop_front() {
+            for &(c, w) in &adj[v] {
+                let w = w as usize;
+                if keep[c as usize] && within[w] && comp[w] == usize::MAX {
+                    comp[w] = count;
+                    q.push_back(w);
+                }
+            }
+        }
+        count += 1;
+    }
+    let mut has_task = vec![false; count];
+    for (a, b) in form.task_ends() {
+        for v in [a, b] {
+            if comp[v] != usize::MAX {
+                has_task[comp[v]] = true;
+            }
+        }
+    }
+    let depot_comp = comp[form.depot()];
+    (0..count)
+        .filter(|&k| has_task[k] && k != depot_comp)
+        .map(|k| comp.iter().map(|&c| c == k).collect())
+        .collect()
+}
+
+/// The sets `{v : dist(v) ≥ t}` for every distinct positive shortest-path
+/// distance `t` from the yard (columns' costs), nearest first.
+fn depot_levels(form: &Formulation) -> Vec<Vec<bool>> {
+    let n = form.junctions();
+    let adj = form.adjacency();
+    let cols = form.columns();
+    let mut dist = vec![Cost::MAX; n];
+    let mut heap = std::collections::BinaryHeap::new();
+    dist[form.depot()] = 0;
+    heap.push(std::cmp::Reverse((0 as Cost, form.depot())));
+    while let Some(std::cmp::Reverse((d, v))) = heap.pop() {
+        if d > dist[v] {
+            continue;
+        }
+        for &(c, w) in &adj[v] {
+            let nd = d + cols[c as usize].cost;
+            if nd < dist[w as usize] {
+                dist[w as usize] = nd;
+                heap.push(std::cmp::Reverse((nd, w as usize)));
+            }
+        }
+    }
+    let mut values: Vec<Cost> = dist
+        .iter()
+        .copied()
+        .filter(|&d| d > 0 && d < Cost::MAX)
+        .collect();
+    values.sort_unstable();
+    values.dedup();
+    values
+        .into_iter()
+        .map(|t| dist.iter().map(|&d| d >= t && d < Cost::MAX).collect())
+        .collect()
+}
