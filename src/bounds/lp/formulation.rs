@@ -139,6 +139,26 @@ impl Formulation {
         &self.adj
     }
 
+    /// Each task's ends, demand and service time (loops included).
+    pub(crate) fn task_data(&self) -> impl Iterator<Item = (usize, usize, Cost, Cost)> + '_ {
+        self.tasks.iter().map(|t| (t.a, t.b, t.demand, t.time))
+    }
+
+    /// The vehicle count `k` for a set touched by tasks of total demand `d`
+    /// and service time `t` (see [`Self::cut`]).
+    pub(crate) fn vehicles(&self, d: Cost, t: Cost) -> i64 {
+        let mut k = ceil_div(d, self.capacity).max(1);
+        if let Some(l) = self.shift {
+            k = k.max(ceil_div(t, l));
+        }
+        k
+    }
+
+    /// The capacity `Q`.
+    pub(crate) fn capacity(&self) -> Cost {
+        self.capacity
+    }
+
     /// The two ends of each task (loops included).
     pub(crate) fn task_ends(&self) -> impl Iterator<Item = (usize, usize)> + '_ {
         self.tasks.iter().map(|t| (t.a, t.b))
@@ -226,10 +246,7 @@ impl Formulation {
         if !touch {
             return 0;
         }
-        let mut k = ceil_div(d, self.capacity).max(1);
-        if let Some(l) = self.shift {
-            k = k.max(ceil_div(t, l));
-        }
+        let k = self.vehicles(d, t);
         (2 * k - r).max(r % 2)
     }
 

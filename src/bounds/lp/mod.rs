@@ -54,6 +54,7 @@
 
 mod backend;
 mod formulation;
+mod growth;
 mod guard;
 mod mincut;
 pub mod rounding;

@@ -20,6 +20,7 @@
 use std::collections::{HashSet, VecDeque};
 
 use super::formulation::{Cut, Formulation};
+use super::growth::Grower;
 use super::mincut::{CutTree, FlowGraph};
 use crate::model::Cost;
 
@@ -29,12 +30,16 @@ pub const MIN_VIOLATION: f64 = 1e-4;
 /// Largest number of junctions on which the Gomory–Hu trees are built.
 pub const MAX_TREE_JUNCTIONS: usize = 2500;
 
+/// Largest number of junctions added to a seed by greedy growth.
+pub const MAX_GROWTH_STEPS: usize = 400;
+
 /// Reusable separation state for one formulation.
 pub struct Separator {
     /// Required links per column.
     req: Vec<f64>,
     /// Depot-distance level sets, computed once.
     levels: Vec<Vec<bool>>,
+    grower: Grower,
 }
 
 impl Separator {
@@ -55,6 +60,7 @@ impl Separator {
         Separator {
             req,
             levels: depot_levels(form),
+            grower: Grower::new(form),
         }
     }
 
@@ -80,13 +86,16 @@ impl Separator {
             }
         };
         let n = form.junctions();
+        let mut seeds: Vec<Vec<usize>> = Vec::new();
         if n <= MAX_TREE_JUNCTIONS {
             let zero = vec![0.0; x.len()];
             for mask in tree_sets(form, x, &zero) {
                 consider(&mask);
+                seeds.push((0..n).filter(|&v| mask[v]).collect());
             }
             for mask in tree_sets(form, x, &self.req) {
                 consider(&mask);
+                seeds.push((0..n).filter(|&v| mask[v]).collect());
             }
         }
         for mask in support_pieces(form, x, &self.req) {
@@ -94,7 +103,32 @@ impl Separator {
         }
         for level in &self.levels {
             consider(level);
+            seeds.push((0..n).filter(|&v| level[v]).collect());
             for mask in pieces_within(form, level) {
+                consider(&mask);
+            }
+        }
+        let depot = form.depot();
+        let mut touched = vec![false; n];
+        for (a, b) in form.task_ends() {
+            touched[a] = true;
+            touched[b] = true;
+        }
+        seeds.extend(
+            (0..n)
+                .filter(|&v| touched[v] && v != depot)
+                .map(|v| vec![v]),
+        );
+        let steps = n.min(MAX_GROWTH_STEPS);
+        for seed in &seeds {
+            for mask in self.grower.grow(form, x, seed, false, steps, MIN_VIOLATION) {
+                consider(&mask);
+            }
+        }
+        let outer_seeds =
+            std::iter::once(depot).chain((0..n).filter(|&v| touched[v] && v != depot));
+        for v in outer_seeds {
+            for mask in self.grower.grow(form, x, &[v], true, steps, MIN_VIOLATION) {
                 consider(&mask);
             }
         }
