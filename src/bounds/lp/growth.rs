@@ -9,6 +9,23 @@
 use super::formulation::Formulation;
 use crate::model::Cost;
 
+/// How one growth runs.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct Growth {
+    /// False: the set grows away from the yard (which is never added) and
+    /// is the cut's set. True: the yard is added to the seed and the cut's
+    /// set is the complement of the growing set.
+    pub outer: bool,
+    /// Most junctions added.
+    pub max_steps: usize,
+    /// Only sets violated by more than this are returned.
+    pub min_violation: f64,
+    /// Seed of the xorshift generator perturbing the gains.
+    pub seed: u64,
+    /// Gains are perturbed uniformly in `[0, amplitude)` (0: plain greedy).
+    pub amplitude: f64,
+}
+
 /// Per-junction task incidence, built once per formulation.
 pub struct Grower {
     /// Tasks with an end at each junction (a loop once).
@@ -71,10 +88,7 @@ impl Grower {
         }
     }
 
-    /// Grows from `seed` for at most `max_steps` additions. With `outer`
-    /// false the set grows away from the yard (which is never added) and is
-    /// the cut's set; with `outer` true the yard is added to the seed and
-    /// the cut's set is the complement of the growing set. Returns the sets whose exact cut is violated by more than
+    /// Grows from `seed` as `how` says. Returns the sets whose exact cut is violated by more than
     /// `min_violation` at `x`: the most violated set on the way, if any, as a
     /// membership mask.
     pub fn grow(
@@ -82,10 +96,15 @@ impl Grower {
         form: &Formulation,
         x: &[f64],
         seed: &[usize],
-        outer: bool,
-        max_steps: usize,
-        min_violation: f64,
+        how: Growth,
     ) -> Vec<Vec<bool>> {
+        let Growth {
+            outer,
+            max_steps,
+            min_violation,
+            ..
+        } = how;
+        let mut rng = how.seed | 1;
         let n = form.junctions();
         let mut s = State {
             inside: vec![false; n],
@@ -127,7 +146,13 @@ impl Grower {
                 if s.inside[v] {
                     continue;
                 }
-                let g = self.gain(form, x, &s, v, q);
+                let mut g = self.gain(form, x, &s, v, q);
+                if how.amplitude > 0.0 {
+                    rng ^= rng << 13;
+                    rng ^= rng >> 7;
+                    rng ^= rng << 17;
+                    g += (rng % 1024) as f64 / 1024.0 * how.amplitude;
+                }
                 if pick.is_none_or(|p| g > p.0) {
                     pick = Some((g, v));
                 }

