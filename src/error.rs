@@ -112,6 +112,10 @@ pub enum ParseProblem {
     /// A plan file is for another instance.
     #[error("the plan is for instance `{found}`, not `{expected}`")]
     WrongInstance { expected: String, found: String },
+    /// A junction coordinate that cannot be in the scenario's declared
+    /// coordinate system (not finite, a latitude beyond ±90°, ...).
+    #[error("{0}")]
+    Coordinate(crate::model::CoordError),
     /// A cost or load stated in a plan file differs from the recomputed one.
     #[error("{what}: the file states {stated}, recomputed {computed}")]
     Mismatch {

@@ -10,8 +10,8 @@
 //! [`check`] (independent plan checker), [`postman`] and [`bounds`]
 //! (single-tour routes and lower bounds), [`construct`], [`improve`] and
 //! [`search`] (the fleet solver), [`demo`] and [`report`] (demo towns and
-//! outputs for people), and [`app`] (the logic of the `planner` example
-//! program).
+//! outputs for people, rendered as text). The `planner` program that writes
+//! them into a folder is an example (`examples/planner/`), not library API.
 //!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
@@ -32,7 +32,6 @@
 //! assert!(sol.cost >= sol.lower_bound.value);
 //! ```
 
-pub mod app;
 pub mod bounds;
 pub mod check;
 pub mod construct;
