@@ -11,6 +11,8 @@
 //! cargo run --release --example bound_report -- --lp-only --secs 10 --set egl
 //! ```
 //!
+//! `--scenario FILE` runs only the LP bound on one JSON scenario (e.g. a
+//! town made by `make_town`) and prints each improvement.
 //! `--secs S` is the LP bound's time budget per instance (default 10),
 //! `--set NAME` limits the LP part to one set, `--lp-only` skips the
 //! combinatorial bounds, `--verbose` prints one line per instance.
@@ -38,11 +40,59 @@ fn main() {
     };
     let secs: f64 = value("--secs").map_or(10.0, |v| v.parse().expect("--secs S"));
     let only_set = value("--set");
+    if let Some(file) = value("--scenario") {
+        scenario_report(&file, secs);
+        return;
+    }
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
     if !flag("--lp-only") {
         combinatorial(&root);
     }
     lp_report(&root, secs, only_set.as_deref(), flag("--verbose"));
+}
+
+/// The LP bound on one scenario, printing every improvement.
+fn scenario_report(file: &str, secs: f64) {
+    use arcwright::bounds::lp::LpBound;
+    let inst = arcwright::io::scenario::read_scenario_file(file).expect("readable scenario");
+    println!(
+        "{file}: {} junctions, {} links, {} tasks; service cost {}",
+        inst.network().len(),
+        inst.network().links.len(),
+        inst.tasks().len(),
+        inst.total_service_cost()
+    );
+    let dist = Distances::new(&inst).expect("distances");
+    let t = Instant::now();
+    let comb = bound(&inst, &dist);
+    println!(
+        "best combinatorial bound {} ({}) in {:.2} s",
+        comb.value,
+        comb.by,
+        t.elapsed().as_secs_f64()
+    );
+    let res = LpBound::new(&inst)
+        .expect("the LP bound applies")
+        .time_limit(Duration::from_secs_f64(secs))
+        .on_progress(|p| {
+            println!(
+                "  {:>8.2} s  round {:>3}  cuts {:>6}  bound {}",
+                p.elapsed.as_secs_f64(),
+                p.round,
+                p.cuts,
+                p.bound
+            )
+        })
+        .run();
+    println!(
+        "LP bound {} (lp value {:.2}) after {} rounds, {} cuts, {:.2} s{}",
+        res.bound,
+        res.lp_value,
+        res.rounds,
+        res.cuts,
+        res.elapsed.as_secs_f64(),
+        if res.finished { "" } else { " (not finished)" }
+    );
 }
 
 /// The LP bound on every instance (of `only_set`), `secs` seconds each.

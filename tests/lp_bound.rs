@@ -15,7 +15,7 @@ use std::path::Path;
 use std::sync::atomic::AtomicBool;
 use std::sync::{Arc, Mutex};
 
-use arcwright::bounds::lp::separation::Separator;
+use arcwright::bounds::lp::separation::{Limits, Separator};
 use arcwright::bounds::lp::{solve_cuts, ClarabelBackend, Formulation, LpBound};
 use arcwright::check::check_plan;
 use arcwright::io::{read_dat_file, read_reference};
@@ -169,7 +169,12 @@ fn odd_cut_is_found() {
     let form = Formulation::new(&inst);
     let sep = Separator::new(&form);
     let x = vec![0.0; form.columns().len()];
-    let cuts = sep.separate(&form, &x, 100, &mut HashSet::new());
+    let limits = Limits {
+        max_cuts: 100,
+        round: 0,
+        deadline: None,
+    };
+    let cuts = sep.separate(&form, &x, &limits, &mut HashSet::new());
     let odd = cuts
         .iter()
         .find(|c| c.set == vec![1])
@@ -204,7 +209,12 @@ fn capacity_cut_is_found() {
     let form = Formulation::new(&inst);
     let sep = Separator::new(&form);
     let x = vec![0.0; form.columns().len()];
-    let cuts = sep.separate(&form, &x, 100, &mut HashSet::new());
+    let limits = Limits {
+        max_cuts: 100,
+        round: 0,
+        deadline: None,
+    };
+    let cuts = sep.separate(&form, &x, &limits, &mut HashSet::new());
     let cap = cuts
         .iter()
         .find(|c| c.set == vec![1, 2, 3])
@@ -218,7 +228,7 @@ fn capacity_cut_is_found() {
         .position(|c| (c.u, c.v) == (0, 1))
         .unwrap();
     x[c01] = 6.0;
-    let cuts = sep.separate(&form, &x, 100, &mut HashSet::new());
+    let cuts = sep.separate(&form, &x, &limits, &mut HashSet::new());
     assert!(cuts.iter().any(|c| c.set == vec![2, 3] && c.rhs == 4));
     let res = LpBound::new(&inst).unwrap().max_rounds(20).run();
     assert_eq!(res.bound, 67);

@@ -18,6 +18,7 @@
 //! choose which sets to try.
 
 use std::collections::{HashSet, VecDeque};
+use std::time::Instant;
 
 use super::formulation::{Cut, Formulation};
 use super::growth::{Grower, Growth};
@@ -37,6 +38,11 @@ pub const MAX_GROWTH_STEPS: usize = 400;
 /// Measured on egl: three passes instead of one raise the average bound /
 /// best known from 0.9874 to about 0.989 at the same time per instance.
 pub const GROWTH_NOISE: [f64; 3] = [0.0, 0.5, 1.0];
+
+/// Most junction additions (over all growths) per separation round:
+/// keeps a round under about a second on networks of thousands of
+/// junctions (all seeds are grown on the public sets).
+pub const GROWTH_WORK: usize = 400_000;
 
 /// Reusable separation state for one formulation.
 pub struct Separator {
@@ -69,14 +75,31 @@ impl Separator {
         }
     }
 
+    /// The level cuts (depot-distance sets) with a positive right-hand
+    /// side: with them alone the LP is at least
+    /// [`crate::bounds::depot_cut_bound`] (its per-level crossings, priced at
+    /// the level widths, form a feasible dual).
+    pub fn level_cuts(&self, form: &Formulation, seen: &mut HashSet<Vec<usize>>) -> Vec<Cut> {
+        let mut out = Vec::new();
+        for level in &self.levels {
+            if let Some(cut) = form.cut(level) {
+                if seen.insert(cut.set.clone()) {
+                    out.push(cut);
+                }
+            }
+        }
+        out
+    }
+
     /// Cuts violated at `x` by more than [`MIN_VIOLATION`] whose sets are
-    /// not in `seen`, most violated first, at most `max_cuts`; their sets are
-    /// added to `seen`.
+    /// not in `seen`, most violated first, at most `limits.max_cuts`; their
+    /// sets are added to `seen`. Past `limits.deadline` no more candidates
+    /// are tried (what was found is returned).
     pub fn separate(
         &self,
         form: &Formulation,
         x: &[f64],
-        max_cuts: usize,
+        limits: &Limits,
         seen: &mut HashSet<Vec<usize>>,
     ) -> Vec<Cut> {
         let mut found: Vec<(f64, Cut)> = Vec::new();
@@ -90,23 +113,28 @@ impl Separator {
                 }
             }
         };
+        let late = || limits.deadline.is_some_and(|d| Instant::now() >= d);
         let n = form.junctions();
         let mut seeds: Vec<Vec<usize>> = Vec::new();
         if n <= MAX_TREE_JUNCTIONS {
             let zero = vec![0.0; x.len()];
-            for mask in tree_sets(form, x, &zero) {
-                consider(&mask);
-                seeds.push((0..n).filter(|&v| mask[v]).collect());
-            }
-            for mask in tree_sets(form, x, &self.req) {
-                consider(&mask);
-                seeds.push((0..n).filter(|&v| mask[v]).collect());
+            for weights in [&zero, &self.req] {
+                for mask in tree_sets(form, x, weights) {
+                    consider(&mask);
+                    seeds.push((0..n).filter(|&v| mask[v]).collect());
+                }
+                if late() {
+                    break;
+                }
             }
         }
         for mask in support_pieces(form, x, &self.req) {
             consider(&mask);
         }
         for level in &self.levels {
+            if late() {
+                break;
+            }
             consider(level);
             seeds.push((0..n).filter(|&v| level[v]).collect());
             for mask in pieces_within(form, level) {
@@ -119,14 +147,18 @@ impl Separator {
             touched[a] = true;
             touched[b] = true;
         }
-        seeds.extend(
-            (0..n)
-                .filter(|&v| touched[v] && v != depot)
-                .map(|v| vec![v]),
-        );
+        let singles: Vec<usize> = (0..n).filter(|&v| touched[v] && v != depot).collect();
+        seeds.extend(singles.iter().map(|&v| vec![v]));
         let steps = n.min(MAX_GROWTH_STEPS);
+        // At most GROWTH_WORK / steps growths per round, spread evenly over
+        // the seeds and shifted every round.
+        let passes = GROWTH_NOISE.len() + 1;
+        let per_pass = (GROWTH_WORK / steps.max(1) / passes).max(1);
         for (pass, amplitude) in GROWTH_NOISE.iter().enumerate() {
-            for (i, seed) in seeds.iter().enumerate() {
+            for i in spread(seeds.len(), per_pass, limits.round + pass) {
+                if late() {
+                    break;
+                }
                 let how = Growth {
                     outer: false,
                     max_steps: steps,
@@ -134,14 +166,17 @@ impl Separator {
                     seed: ((pass as u64 + 1) * 0x9E37_79B9_7F4A_7C15) ^ i as u64,
                     amplitude: *amplitude,
                 };
-                for mask in self.grower.grow(form, x, seed, how) {
+                for mask in self.grower.grow(form, x, &seeds[i], how) {
                     consider(&mask);
                 }
             }
         }
-        let outer_seeds =
-            std::iter::once(depot).chain((0..n).filter(|&v| touched[v] && v != depot));
-        for v in outer_seeds {
+        let outer = std::iter::once(depot)
+            .chain(spread(singles.len(), per_pass, limits.round).map(|i| singles[i]));
+        for v in outer {
+            if late() {
+                break;
+            }
             let how = Growth {
                 outer: true,
                 max_steps: steps,
@@ -153,7 +188,7 @@ impl Separator {
             }
         }
         found.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.set.cmp(&b.1.set)));
-        found.truncate(max_cuts);
+        found.truncate(limits.max_cuts);
         found
             .into_iter()
             .map(|(_, c)| {
@@ -162,6 +197,29 @@ impl Separator {
             })
             .collect()
     }
+}
+
+/// How much one separation round may do.
+#[derive(Clone, Debug)]
+pub struct Limits {
+    /// Most cuts returned.
+    pub max_cuts: usize,
+    /// Round number (shifts the sample of growth seeds on large networks).
+    pub round: usize,
+    /// Try no more candidates after this instant.
+    pub deadline: Option<Instant>,
+}
+
+/// `take` indices out of `0..len`, evenly spread, shifted by `shift`; all of
+/// them when `take >= len`.
+fn spread(len: usize, take: usize, shift: usize) -> impl Iterator<Item = usize> {
+    let take = take.min(len);
+    let offset = if len > take {
+        shift % (len / take.max(1)).max(1)
+    } else {
+        0
+    };
+    (0..take).map(move |k| (k * len / take.max(1) + offset) % len.max(1))
 }
 
 /// The subtree sets of the Gomory–Hu tree of weights `x + extra`, rooted at
