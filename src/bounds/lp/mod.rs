@@ -98,7 +98,9 @@ pub struct LpResult {
     /// The sound integer lower bound: service cost plus the ceiling of the
     /// exact Lagrangian deadhead value (the best over all rounds).
     pub bound: Cost,
-    /// The last LP value, service cost included (float, for display only).
+    /// The last LP value, service cost included (float, for display only;
+    /// from an interrupted solve when time ran out, so it may differ from
+    /// `bound` either way).
     pub lp_value: f64,
     /// LP solves done.
     pub rounds: usize,

@@ -141,6 +141,31 @@ impl Separator {
                 consider(&mask);
             }
         }
+        self.grow_all(form, x, limits, seeds, &mut consider);
+        found.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.set.cmp(&b.1.set)));
+        found.truncate(limits.max_cuts);
+        found
+            .into_iter()
+            .map(|(_, c)| {
+                seen.insert(c.set.clone());
+                c
+            })
+            .collect()
+    }
+
+    /// Greedy growth ([`Grower`]) from `seeds` and from every task end,
+    /// inward (three passes, see [`GROWTH_NOISE`]) and outward from the
+    /// yard, within [`GROWTH_WORK`]; every set found goes to `consider`.
+    fn grow_all(
+        &self,
+        form: &Formulation,
+        x: &[f64],
+        limits: &Limits,
+        mut seeds: Vec<Vec<usize>>,
+        consider: &mut impl FnMut(&[bool]),
+    ) {
+        let late = || limits.deadline.is_some_and(|d| Instant::now() >= d);
+        let n = form.junctions();
         let depot = form.depot();
         let mut touched = vec![false; n];
         for (a, b) in form.task_ends() {
@@ -187,15 +212,6 @@ impl Separator {
                 consider(&mask);
             }
         }
-        found.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.set.cmp(&b.1.set)));
-        found.truncate(limits.max_cuts);
-        found
-            .into_iter()
-            .map(|(_, c)| {
-                seen.insert(c.set.clone());
-                c
-            })
-            .collect()
     }
 }
 
