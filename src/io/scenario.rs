@@ -79,7 +79,7 @@ use std::path::Path;
 use serde::{Deserialize, Serialize};
 
 use super::MAX_NUMBER;
-use crate::error::{Error, ParseProblem, Result};
+use crate::error::{Error, ParseProblem, Problems, Result};
 use crate::model::{
     Coordinates, Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection,
     ServiceSpec, Units,
@@ -383,172 +383,104 @@ impl Scan<'_> {
 }
 
 /// Reads a scenario file from disk.
+///
+/// # Errors
+/// [`Error::Io`] when the file cannot be read, [`ParseProblem::NotUtf8`] (with its line) when
+/// it is not UTF-8, and the errors of [`read_scenario`].
 pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
     let (name, text) = super::read_text(path.as_ref())?;
     read_scenario(&text, &name)
 }
 
 /// Parses scenario JSON text. `file` names the source in errors.
+///
+/// A byte-order mark before the JSON is skipped. After the JSON itself
+/// reads, validation goes on past the first problem and reports them all
+/// (up to [`crate::model::MAX_PROBLEMS`]) in one [`Error::Several`].
+///
+/// # Errors
+/// [`ParseProblem::Json`] for JSON syntax or a value of the wrong type (at
+/// its line, with the column), a wrong `format` or `version`, and then each
+/// problem of the content at its JSON path and line: a junction id given
+/// twice or unknown, a number above [`MAX_NUMBER`], a negative shift limit,
+/// or an invalid instance ([`ParseProblem::Model`]).
+///
+/// # Complexity
+/// `O(L + V + E)` for `L` bytes of text, `V` junctions and `E` streets
+/// (finding the line of a problem scans the text once per problem).
+///
+/// ```
+/// let text = r#"{"format": "arcwright-scenario", "version": 1, "name": "lane",
+///   "junctions": [{"id": 1}, {"id": 2}],
+///   "streets": [{"from": 1, "to": 2, "cost": 60, "name": "Mill Lane",
+///                "service": {"demand": 12, "cost": 75}}],
+///   "yard": 1, "fleet": {"capacity": 100}}"#;
+/// let inst = arcwright::io::read_scenario(text, "lane.json").unwrap();
+/// assert_eq!(inst.tasks()[0].cost, 75);
+/// let bad = text.replace("\"to\": 2", "\"to\": 7");
+/// let e = arcwright::io::read_scenario(&bad, "lane.json").unwrap_err();
+/// assert_eq!(e.to_string(), "lane.json:3: at `streets[0].to`: no junction has id 7");
+/// ```
 pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     // A byte-order mark, as some editors write, is not JSON: skip it.
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let rec: FileRec = serde_json::from_str(text).map_err(|e| {
-        let line = (e.line() > 0).then_some(e.line());
-        Error::parse(
-            file,
-            line,
-            ParseProblem::Json {
-                message: e.to_string(),
-            },
-        )
-    })?;
-    let at = |path: Vec<Seg>, problem: ParseProblem| {
-        Error::parse(
-            file,
-            line_of(text, &path),
-            ParseProblem::AtPath {
-                path: path_string(&path),
-                problem: Box::new(problem),
-            },
-        )
+    let rec: FileRec = serde_json::from_str(text).map_err(|e| Error::json(file, &e))?;
+    let mut c = Collect {
+        file,
+        text,
+        problems: Problems::new(file),
     };
     if rec.format != FORMAT_TAG {
-        return Err(at(
+        c.at(
             vec![Seg::Key("format")],
             ParseProblem::Unexpected {
                 expected: "\"arcwright-scenario\"",
                 found: rec.format.clone(),
             },
-        ));
+        );
+        return Err(c.problems.failed());
     }
     if rec.version != VERSION {
-        return Err(at(
+        c.at(
             vec![Seg::Key("version")],
             ParseProblem::Unexpected {
                 expected: "version 1",
                 found: rec.version.to_string(),
             },
-        ));
+        );
+        return Err(c.problems.failed());
     }
-    let limit = |path: Vec<Seg>, what: &'static str, v: i64| -> Result<()> {
-        if v > MAX_NUMBER {
-            return Err(at(
-                path,
-                ParseProblem::TooLarge {
-                    what,
-                    value: v as u64,
-                    max: MAX_NUMBER as u64,
-                },
-            ));
-        }
-        Ok(())
-    };
-    let mut index: HashMap<u64, usize> = HashMap::with_capacity(rec.junctions.len());
-    let mut junctions = Vec::with_capacity(rec.junctions.len());
-    for (i, j) in rec.junctions.iter().enumerate() {
-        if let Some(&first) = index.get(&j.id) {
-            return Err(at(
-                vec![Seg::Key("junctions"), Seg::Index(i), Seg::Key("id")],
-                ParseProblem::DuplicateJunction { id: j.id, first },
-            ));
-        }
-        index.insert(j.id, i);
-        junctions.push(Junction {
-            id: j.id,
-            x: j.x,
-            y: j.y,
-        });
-    }
-    let lookup = |path: Vec<Seg>, id: u64| -> Result<usize> {
-        index
-            .get(&id)
-            .copied()
-            .ok_or_else(|| at(path, ParseProblem::UnknownJunction { id }))
-    };
-    let mut links = Vec::with_capacity(rec.streets.len());
-    for (i, s) in rec.streets.iter().enumerate() {
-        let p = |k: &'static str| vec![Seg::Key("streets"), Seg::Index(i), Seg::Key(k)];
-        let ps = |k: &'static str| {
-            vec![
-                Seg::Key("streets"),
-                Seg::Index(i),
-                Seg::Key("service"),
-                Seg::Key(k),
-            ]
-        };
-        let from = lookup(p("from"), s.from)?;
-        let to = lookup(p("to"), s.to)?;
-        limit(p("cost"), "cost", s.cost)?;
-        if let Some(len) = s.length {
-            limit(p("length"), "length", len)?;
-        }
-        if let Some(t) = s.drive_time {
-            limit(p("drive_time"), "drive time", t)?;
-        }
-        let service = match &s.service {
-            None => None,
-            Some(sv) => {
-                limit(ps("demand"), "demand", sv.demand)?;
-                limit(ps("cost"), "service cost", sv.cost)?;
-                if let Some(t) = sv.time {
-                    limit(ps("time"), "service time", t)?;
-                }
-                Some(ServiceSpec {
-                    demand: sv.demand,
-                    cost: sv.cost,
-                    time: sv.time,
-                    direction: match sv.directions {
-                        Directions::Either => ServeDirection::Either,
-                        Directions::Forward => ServeDirection::Forward,
-                    },
-                })
+    let (junctions, index) = c.junctions(&rec.junctions);
+    let links = c.streets(&rec.streets, &index);
+    let depot = c.lookup(&index, vec![Seg::Key("yard")], rec.yard);
+    let fleet = c.fleet(&rec.fleet);
+    let at = |path: Vec<Seg>, problem: ParseProblem| c.error_at(path, problem);
+    let units = read_units(rec.units.as_ref(), &at);
+    let system = read_system(rec.coordinates.as_ref(), &at);
+    let (units, system) = match (units, system) {
+        (Ok(u), Ok(s)) => (Some(u), Some(s)),
+        (u, s) => {
+            for e in [u.err(), s.err()].into_iter().flatten() {
+                c.problems.push(e);
             }
-        };
-        links.push(Link {
-            from,
-            to,
-            oneway: s.one_way,
-            cost: s.cost,
-            time: s.drive_time,
-            service,
-            name: s.name.clone(),
-            length: s.length,
-        });
-    }
-    let depot = lookup(vec![Seg::Key("yard")], rec.yard)?;
-    limit(
-        vec![Seg::Key("fleet"), Seg::Key("capacity")],
-        "capacity",
-        rec.fleet.capacity,
-    )?;
-    if let Some(t) = rec.fleet.shift_limit {
-        limit(
-            vec![Seg::Key("fleet"), Seg::Key("shift_limit")],
-            "shift limit",
-            t,
-        )?;
-        if t < 0 {
-            return Err(at(
-                vec![Seg::Key("fleet"), Seg::Key("shift_limit")],
-                ParseProblem::Negative {
-                    what: "shift limit",
-                    value: t,
-                },
-            ));
+            (None, None)
         }
-    }
-    let fleet = Fleet {
-        capacity: rec.fleet.capacity,
-        shift_limit: rec.fleet.shift_limit,
-        max_vehicles: rec.fleet.max_trucks,
+    };
+    let (Some(depot), Some(units), Some(system), true) =
+        (depot, units, system, c.problems.is_empty())
+    else {
+        return Err(c.problems.failed());
     };
     let network = Network { junctions, links };
-    let units = read_units(rec.units.as_ref(), &at)?;
-    let system = read_system(rec.coordinates.as_ref(), &at)?;
-    let inst = Instance::new(rec.name, network, fleet, depot).map_err(|m| {
-        let path = model_error_path(&m);
-        at(path, ParseProblem::Model(m))
-    })?;
+    let inst = match Instance::validate(rec.name, network, fleet, depot) {
+        Ok(inst) => inst,
+        Err(all) => {
+            for m in all {
+                c.at(model_error_path(&m), ParseProblem::Model(m));
+            }
+            return Err(c.problems.failed());
+        }
+    };
     inst.with_units(units)
         .with_coordinates(system)
         .map_err(|(j, e)| {
@@ -557,11 +489,153 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             } else {
                 "y"
             };
-            at(
+            c.error_at(
                 vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
                 ParseProblem::Coordinate(e),
             )
         })
+}
+
+/// The problems of one scenario text, each at its JSON path and line.
+struct Collect<'t> {
+    file: &'t str,
+    text: &'t str,
+    problems: Problems,
+}
+
+impl Collect<'_> {
+    /// The error for `problem` at `path`, with its line.
+    fn error_at(&self, path: Vec<Seg>, problem: ParseProblem) -> Error {
+        Error::parse(
+            self.file,
+            line_of(self.text, &path),
+            ParseProblem::AtPath {
+                path: path_string(&path),
+                problem: Box::new(problem),
+            },
+        )
+    }
+
+    /// Records `problem` at `path`.
+    fn at(&mut self, path: Vec<Seg>, problem: ParseProblem) {
+        let e = self.error_at(path, problem);
+        self.problems.push(e);
+    }
+
+    /// `v` if it is at most [`MAX_NUMBER`], else a problem and `None`.
+    fn limit(&mut self, path: Vec<Seg>, what: &'static str, v: i64) -> Option<i64> {
+        if v > MAX_NUMBER {
+            let problem = ParseProblem::TooLarge {
+                what,
+                value: v as u64,
+                max: MAX_NUMBER as u64,
+            };
+            self.at(path, problem);
+            return None;
+        }
+        Some(v)
+    }
+
+    fn junctions(&mut self, recs: &[JunctionRec]) -> (Vec<Junction>, HashMap<u64, usize>) {
+        let mut index: HashMap<u64, usize> = HashMap::with_capacity(recs.len());
+        let mut junctions = Vec::with_capacity(recs.len());
+        for (i, j) in recs.iter().enumerate() {
+            if let Some(&first) = index.get(&j.id) {
+                self.at(
+                    vec![Seg::Key("junctions"), Seg::Index(i), Seg::Key("id")],
+                    ParseProblem::DuplicateJunction { id: j.id, first },
+                );
+            } else {
+                index.insert(j.id, i);
+            }
+            junctions.push(Junction {
+                id: j.id,
+                x: j.x,
+                y: j.y,
+            });
+        }
+        (junctions, index)
+    }
+
+    fn lookup(&mut self, index: &HashMap<u64, usize>, path: Vec<Seg>, id: u64) -> Option<usize> {
+        let found = index.get(&id).copied();
+        if found.is_none() {
+            self.at(path, ParseProblem::UnknownJunction { id });
+        }
+        found
+    }
+
+    /// The streets as links; a street with an unknown end is left out (its
+    /// problem is recorded).
+    fn streets(&mut self, recs: &[StreetRec], index: &HashMap<u64, usize>) -> Vec<Link> {
+        let mut links = Vec::with_capacity(recs.len());
+        for (i, s) in recs.iter().enumerate() {
+            let p = |k: &'static str| vec![Seg::Key("streets"), Seg::Index(i), Seg::Key(k)];
+            let ps = |k: &'static str| {
+                let mut v = p("service");
+                v.push(Seg::Key(k));
+                v
+            };
+            let from = self.lookup(index, p("from"), s.from);
+            let to = self.lookup(index, p("to"), s.to);
+            let mut ok = self.limit(p("cost"), "cost", s.cost).is_some();
+            if let Some(len) = s.length {
+                ok &= self.limit(p("length"), "length", len).is_some();
+            }
+            if let Some(t) = s.drive_time {
+                ok &= self.limit(p("drive_time"), "drive time", t).is_some();
+            }
+            if let Some(sv) = &s.service {
+                ok &= self.limit(ps("demand"), "demand", sv.demand).is_some();
+                ok &= self.limit(ps("cost"), "service cost", sv.cost).is_some();
+                if let Some(t) = sv.time {
+                    ok &= self.limit(ps("time"), "service time", t).is_some();
+                }
+            }
+            let (Some(from), Some(to), true) = (from, to, ok) else {
+                continue;
+            };
+            links.push(Link {
+                from,
+                to,
+                oneway: s.one_way,
+                cost: s.cost,
+                time: s.drive_time,
+                service: s.service.as_ref().map(|sv| ServiceSpec {
+                    demand: sv.demand,
+                    cost: sv.cost,
+                    time: sv.time,
+                    direction: match sv.directions {
+                        Directions::Either => ServeDirection::Either,
+                        Directions::Forward => ServeDirection::Forward,
+                    },
+                }),
+                name: s.name.clone(),
+                length: s.length,
+            });
+        }
+        links
+    }
+
+    fn fleet(&mut self, rec: &FleetRec) -> Fleet {
+        let p = |k: &'static str| vec![Seg::Key("fleet"), Seg::Key(k)];
+        self.limit(p("capacity"), "capacity", rec.capacity);
+        if let Some(t) = rec.shift_limit {
+            self.limit(p("shift_limit"), "shift limit", t);
+            if t < 0 {
+                let problem = ParseProblem::Negative {
+                    what: "shift limit",
+                    value: t,
+                };
+                self.at(p("shift_limit"), problem);
+            }
+        }
+        Fleet {
+            capacity: rec.capacity,
+            shift_limit: rec.shift_limit,
+            max_vehicles: rec.max_trucks,
+        }
+    }
 }
 
 /// The declared units, each checked ([`Units::valid_unit`]).
