@@ -63,7 +63,6 @@ pub mod separation;
 pub use backend::{BackendError, ClarabelBackend, LpBackend, LpPoint};
 pub use formulation::{Column, Cut, Formulation};
 pub use guard::{applies, Why, MAX_COST};
-pub use mincut::{CutTree, FlowGraph};
 
 use std::collections::HashSet;
 use std::sync::atomic::{AtomicBool, Ordering};
