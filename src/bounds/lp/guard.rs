@@ -66,3 +66,27 @@ pub fn applies(inst: &Instance) -> Result<(), Why> {
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{Fleet, Network};
+
+    #[test]
+    fn refuses_costs_beyond_exact_range() {
+        let mut net = Network::with_junctions(2);
+        net.add_required_edge(0, 1, 5, 1);
+        let ok = Instance::new("ok", net.clone(), Fleet::with_capacity(1), 0).unwrap();
+        assert_eq!(applies(&ok), Ok(()));
+        net.add_edge(0, 1, MAX_COST + 1);
+        let big = Instance::new("big", net, Fleet::with_capacity(1), 0).unwrap();
+        assert_eq!(
+            applies(&big),
+            Err(Why::CostTooLarge {
+                link: 1,
+                cost: MAX_COST + 1,
+                max: MAX_COST
+            })
+        );
+    }
+}
