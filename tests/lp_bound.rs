@@ -44,7 +44,7 @@ fn link(from: usize, to: usize, cost: i64, oneway: bool, demand: Option<i64>, fw
             },
         }),
         name: None,
-        length: None,
+        ..Link::default()
     }
 }
 
