@@ -5,7 +5,8 @@
 
 mod common;
 
-use std::sync::Mutex;
+use std::sync::atomic::AtomicBool;
+use std::sync::{Arc, Mutex};
 
 use arcwright::check::check_plan;
 use arcwright::demo::{town, TownSpec};
@@ -79,6 +80,20 @@ fn district_rounds_never_make_the_plan_worse() {
     assert!(costs.windows(2).all(|w| w[1] < w[0]), "{costs:?}");
     assert_eq!(*costs.last().unwrap(), sol.cost);
     assert!(check_plan(&inst, &sol.plan).is_ok());
+}
+
+#[test]
+fn a_raised_stop_flag_still_returns_a_checked_plan() {
+    let inst = small_town();
+    let stop = Arc::new(AtomicBool::new(true));
+    let sol = Solver::new(&inst)
+        .decomposition(districts(40))
+        .stop_flag(stop)
+        .solve()
+        .expect("the construction is returned");
+    assert!(check_plan(&inst, &sol.plan).is_ok());
+    assert_eq!(sol.stats.iterations, 0);
+    assert_eq!(sol.plan.visits(), inst.tasks().len());
 }
 
 /// `k` copies of `one` sharing only the yard (no fleet bound, no shift): its
