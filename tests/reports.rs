@@ -9,7 +9,7 @@ use arcwright::model::{
     Coordinates, Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec,
 };
 use arcwright::paths::Distances;
-use arcwright::plan::{evaluate, walk, Plan, Visit};
+use arcwright::plan::{totals, walk, Plan, Totals, Visit};
 use arcwright::report::{self, geo, sheets, svg};
 
 /// A simple feasible plan independent of the solver: tasks in link order,
@@ -25,7 +25,7 @@ fn greedy(inst: &Instance, dist: &Distances) -> Plan {
         let fits = |r: &Vec<Visit>, d: Dir| {
             let mut r = r.clone();
             r.push(Visit::new(i, d));
-            let (load, cost, time) = evaluate(inst, dist, &r);
+            let Totals { load, cost, time } = totals(inst, dist, &r);
             let ok =
                 load <= inst.fleet().capacity && inst.fleet().shift_limit.is_none_or(|s| time <= s);
             ok.then_some(cost)

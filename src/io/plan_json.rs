@@ -66,7 +66,7 @@ use serde::{Deserialize, Serialize};
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
-use crate::plan::{evaluate, Plan, Route, Visit};
+use crate::plan::{totals, Plan, Route, Totals, Visit};
 
 /// How a plan was made, recorded in the plan file (`run`). No clock
 /// readings: a run with an iteration limit writes the same file every time.
@@ -241,6 +241,18 @@ fn service_line(text: &str, k: usize) -> Option<usize> {
 
 /// Reads a plan file written by [`write_plan`] (or by any tool following the
 /// schema) for `inst`; `file` names the source in errors.
+///
+/// # Errors
+///
+/// [`Error::Parse`] naming `file` (and the line where it is known) for:
+/// JSON syntax or schema errors ([`ParseProblem::Json`]); a `version` other
+/// than [`PLAN_VERSION`] or a `lower_bound` outside 0 and the plan's cost
+/// ([`ParseProblem::Unexpected`]); a plan for another instance
+/// ([`ParseProblem::WrongInstance`]); a service that is not a required
+/// street in an allowed direction ([`ParseProblem::NotARequiredLink`]) or a
+/// street served twice ([`ParseProblem::ServedTwice`]); a stated load, cost
+/// or time that differs from the recomputed one ([`ParseProblem::Mismatch`]);
+/// and an instance whose shortest paths cannot be computed.
 pub fn read_plan(text: &str, file: &str, inst: &Instance) -> Result<Plan> {
     let dist = Distances::new(inst).map_err(|e| {
         Error::parse(
@@ -359,6 +371,10 @@ fn parse(
 }
 
 /// [`read_plan`] with precomputed distances.
+///
+/// # Errors
+///
+/// As [`read_plan`] (apart from computing the distances).
 pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances) -> Result<Plan> {
     let (fp, routes) = parse(text, file, inst, true)?;
     let plan = Plan::from_visits(inst, dist, routes.clone());
@@ -437,6 +453,13 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
 /// - a route's `time` is the stated one; a file without route times gets
 ///   [`Route::time`] recomputed with `dist` (service time plus driving time
 ///   along the least-cost legs).
+///
+/// # Errors
+///
+/// [`Error::Parse`] naming `file` for JSON syntax or schema errors, another
+/// `format` or `version`, a plan for another instance, and a service that
+/// names no required street or not its two ends (see above); the line is
+/// given where it is known.
 pub fn read_plan_as_written(
     text: &str,
     file: &str,
@@ -450,7 +473,7 @@ pub fn read_plan_as_written(
         .iter()
         .zip(visits)
         .map(|(r, visits)| {
-            let (load, cost, time) = evaluate(inst, dist, &visits);
+            let Totals { load, cost, time } = totals(inst, dist, &visits);
             computed_total = computed_total.saturating_add(cost);
             Route {
                 visits,
