@@ -7,8 +7,10 @@
 //! cargo run --release --example bound_report
 //! ```
 
+#[path = "../tests/common/mod.rs"]
+mod common;
+
 use std::collections::BTreeMap;
-use std::path::Path;
 use std::time::{Duration, Instant};
 
 use arcwright::bounds::{all_bounds, bound};
@@ -21,15 +23,10 @@ use arcwright::postman::rural::{rural_lower_bound, rural_tour};
 type Timings = Vec<(&'static str, Duration)>;
 
 fn main() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
-    let refs = match read_reference(root.join("reference.csv")) {
-        Ok(refs) => refs,
-        Err(arcwright::Error::Io { .. }) => {
-            println!("skipped: {} not found", root.display());
-            return;
-        }
-        Err(e) => panic!("{e}"),
+    let Some(root) = common::shared_dir("bound_report") else {
+        return;
     };
+    let refs = read_reference(root.join("reference.csv")).unwrap_or_else(|e| panic!("{e}"));
     // (set, bound) -> (sum of ratios, count, equal to best known)
     let mut stats: BTreeMap<(String, &'static str), (f64, usize, usize)> = BTreeMap::new();
     // set -> (sum of tour / bound, count, equal)
