@@ -500,7 +500,7 @@ fn rejects_each_walk_violation() {
 }
 
 #[test]
-fn messages_name_route_task_link_and_numbers() {
+fn messages_name_truck_street_and_numbers_in_the_sheets_words() {
     let v = Violation::OverCapacity {
         route: 2,
         load: 12,
@@ -508,7 +508,7 @@ fn messages_name_route_task_link_and_numbers() {
     };
     assert_eq!(
         v.to_string(),
-        "route 2: load 12 exceeds the capacity 10 by 2"
+        "Truck 3: load 12 exceeds the capacity 10 by 2"
     );
     let v = Violation::ServedTwice {
         task: 4,
@@ -518,8 +518,53 @@ fn messages_name_route_task_link_and_numbers() {
     };
     assert_eq!(
         v.to_string(),
-        "task 4 (link 9) is served twice: at route 0 position 1 and again at route 3 position 0"
+        "street #9 is served twice: by Truck 1, service 2 and again by Truck 4, service 1"
     );
+    // Walks: steps numbered from 1, the yard by its name, no "link" or "depot".
+    let v = Violation::NotToDepot {
+        route: 1,
+        junction: 4,
+    };
+    assert_eq!(
+        v.to_string(),
+        "Truck 2 ends at junction #4, not at the yard"
+    );
+    let v = Violation::AgainstOneWay {
+        at: at(0, 2),
+        link: 7,
+    };
+    assert_eq!(
+        v.to_string(),
+        "Truck 1, step 3: one-way street #7 is driven against its direction"
+    );
+    for v in [
+        Violation::NotFromDepot {
+            route: 0,
+            junction: 1,
+        },
+        Violation::UnknownLink {
+            at: at(0, 0),
+            link: 9,
+            links: 3,
+        },
+        Violation::NotOnLink {
+            at: at(0, 0),
+            link: 1,
+            from: 0,
+            to: 2,
+        },
+        Violation::ServesNonRequired {
+            at: at(0, 0),
+            link: 1,
+        },
+        Violation::NotServed { task: 0, link: 1 },
+        Violation::TooManyRoutes { routes: 3, max: 2 },
+    ] {
+        let s = v.to_string();
+        for word in ["link", "depot", "route", "vehicle"] {
+            assert!(!s.contains(word), "{s:?} says {word:?}");
+        }
+    }
 }
 
 /// Lower bounds from ../shared/instances/reference.csv (CARPData.jl compilation).

@@ -8,11 +8,16 @@
 //! checks explicit street-by-street walks ([`Step`]s) against the network.
 //!
 //! All problems found are returned, not only the first, as typed
-//! [`Violation`]s whose `Display` names the route, task, link and numbers.
-//! Indices are 0-based, as in [`Plan::routes`], [`Instance::tasks`] and
-//! [`crate::model::Network::links`]; junctions are given by index into
+//! [`Violation`]s. Their fields are 0-based indices, as in [`Plan::routes`],
+//! [`Instance::tasks`], [`crate::model::Network::links`] and
 //! [`crate::model::Network::junctions`] ([`Violation::NoPath`] also gives
-//! their external ids).
+//! the junctions' ids). Their `Display` speaks the words of the route
+//! sheets: trucks, services and steps numbered from 1, the yard, and a
+//! street as `street #N`, its 0-based place in the street list (the `link`
+//! of plan files); junctions are given by their ids where the violation
+//! holds them, otherwise as `junction #N` (0-based place in the junction
+//! list). A violation does not hold the instance: for street names and
+//! junction ids, word it with [`crate::report::describe`].
 //!
 //! For an instance built by [`Instance::new`] every task can be reached from
 //! the depot and back, so [`Violation::NoPath`] cannot occur with allowed
@@ -41,7 +46,7 @@
 //! bad.cost = 15;
 //! let v = check_plan(&inst, &bad).unwrap_err();
 //! assert!(v.contains(&Violation::WrongCost { route: 0, reported: 15, actual: 16 }));
-//! assert_eq!(v[0].to_string(), "route 0: reported cost 15, but it recomputes to 16");
+//! assert_eq!(v[0].to_string(), "Truck 1: the plan states cost 15, but the route costs 16");
 //! ```
 
 use std::cmp::Reverse;
@@ -63,7 +68,7 @@ pub struct At {
 
 impl fmt::Display for At {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "route {} position {}", self.route, self.pos)
+        write!(f, "Truck {}, position {}", self.route + 1, self.pos + 1)
     }
 }
 
@@ -72,7 +77,7 @@ impl fmt::Display for At {
 #[non_exhaustive]
 pub enum Violation {
     /// A visit names a task index that does not exist.
-    #[error("{at}: task {task} does not exist (the instance has {tasks} tasks)")]
+    #[error("Truck {}, service {}: no task #{task} (the instance has {tasks} streets to serve)", .at.route + 1, .at.pos + 1)]
     UnknownTask {
         /// Where.
         at: At,
@@ -84,7 +89,8 @@ pub enum Violation {
     /// A task is served backward although only forward service is allowed
     /// (a one-way street, or one side of a street).
     #[error(
-        "{at}: task {task} (link {link}) is served backward, but only forward service is allowed"
+        "Truck {}, service {}: street #{link} is served backward, but it may only be served forward (from its first junction to its second)",
+        .at.route + 1, .at.pos + 1
     )]
     DirectionNotAllowed {
         /// Where.
@@ -95,7 +101,10 @@ pub enum Violation {
         link: usize,
     },
     /// A task is served more than once.
-    #[error("task {task} (link {link}) is served twice: at {first} and again at {again}")]
+    #[error(
+        "street #{link} is served twice: by Truck {}, service {} and again by Truck {}, service {}",
+        .first.route + 1, .first.pos + 1, .again.route + 1, .again.pos + 1
+    )]
     ServedTwice {
         /// Task index.
         task: usize,
@@ -107,7 +116,7 @@ pub enum Violation {
         again: At,
     },
     /// A task is not served at all.
-    #[error("task {task} (link {link}) is not served")]
+    #[error("street #{link} is not served")]
     NotServed {
         /// Task index.
         task: usize,
@@ -115,9 +124,7 @@ pub enum Violation {
         link: usize,
     },
     /// No path leads from one junction to the next in a route.
-    #[error(
-        "route {route}: no path from junction {from} (id {from_id}) to junction {to} (id {to_id})"
-    )]
+    #[error("Truck {}: no way to drive from junction {from_id} to junction {to_id}", .route + 1)]
     NoPath {
         /// Route index.
         route: usize,
@@ -131,7 +138,7 @@ pub enum Violation {
         to_id: u64,
     },
     /// A route carries more than a truck holds.
-    #[error("route {route}: load {load} exceeds the capacity {capacity} by {}", .load - .capacity)]
+    #[error("Truck {}: load {load} exceeds the capacity {capacity} by {}", .route + 1, .load - .capacity)]
     OverCapacity {
         /// Route index.
         route: usize,
@@ -141,7 +148,7 @@ pub enum Violation {
         capacity: Cost,
     },
     /// A route takes longer than the shift limit.
-    #[error("route {route}: time {time} exceeds the shift limit {limit} by {}", .time - .limit)]
+    #[error("Truck {}: time {time} exceeds the shift limit {limit} by {}", .route + 1, .time - .limit)]
     OverShift {
         /// Route index.
         route: usize,
@@ -151,7 +158,7 @@ pub enum Violation {
         limit: Cost,
     },
     /// The plan uses more trucks than the fleet has.
-    #[error("the plan uses {routes} routes, but the fleet has only {max} trucks")]
+    #[error("the plan uses {routes} trucks, but the fleet has only {max}")]
     TooManyRoutes {
         /// Number of routes.
         routes: usize,
@@ -159,13 +166,13 @@ pub enum Violation {
         max: usize,
     },
     /// A route serves nothing.
-    #[error("route {route} serves nothing")]
+    #[error("Truck {} serves nothing", .route + 1)]
     EmptyRoute {
         /// Route index.
         route: usize,
     },
     /// A route's reported load differs from the recomputed one.
-    #[error("route {route}: reported load {reported}, but it recomputes to {actual}")]
+    #[error("Truck {}: the plan states load {reported}, but its streets add up to {actual}", .route + 1)]
     WrongLoad {
         /// Route index.
         route: usize,
@@ -175,7 +182,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported cost differs from the recomputed one.
-    #[error("route {route}: reported cost {reported}, but it recomputes to {actual}")]
+    #[error("Truck {}: the plan states cost {reported}, but the route costs {actual}", .route + 1)]
     WrongCost {
         /// Route index.
         route: usize,
@@ -185,7 +192,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported time differs from the recomputed one.
-    #[error("route {route}: reported time {reported}, but it recomputes to {actual}")]
+    #[error("Truck {}: the plan states time {reported}, but the route takes {actual}", .route + 1)]
     WrongTime {
         /// Route index.
         route: usize,
@@ -196,7 +203,7 @@ pub enum Violation {
     },
     /// The plan's reported total cost differs from the sum of the
     /// recomputed route costs.
-    #[error("plan: reported total cost {reported}, but the routes add up to {actual}")]
+    #[error("the plan states a total cost of {reported}, but its trucks add up to {actual}")]
     WrongTotal {
         /// Value in the plan.
         reported: Cost,
@@ -204,7 +211,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A walk step names a link index that does not exist.
-    #[error("{at}: link {link} does not exist (the network has {links} links)")]
+    #[error("Truck {}, step {}: no street #{link} (the network has {links} streets)", .at.route + 1, .at.pos + 1)]
     UnknownLink {
         /// Where.
         at: At,
@@ -214,7 +221,7 @@ pub enum Violation {
         links: usize,
     },
     /// A walk step's junctions are not the two ends of its link.
-    #[error("{at}: a step from junction {from} to junction {to} does not follow link {link}")]
+    #[error("Truck {}, step {}: a step from junction #{from} to junction #{to} does not follow street #{link}", .at.route + 1, .at.pos + 1)]
     NotOnLink {
         /// Where.
         at: At,
@@ -226,7 +233,7 @@ pub enum Violation {
         to: usize,
     },
     /// A walk step drives a one-way link against its direction.
-    #[error("{at}: one-way link {link} is driven against its direction")]
+    #[error("Truck {}, step {}: one-way street #{link} is driven against its direction", .at.route + 1, .at.pos + 1)]
     AgainstOneWay {
         /// Where.
         at: At,
@@ -234,7 +241,7 @@ pub enum Violation {
         link: usize,
     },
     /// A walk step does not start where the previous one ended.
-    #[error("{at}: the step starts at junction {found}, but the previous one ended at junction {expected}")]
+    #[error("Truck {}, step {}: the step starts at junction #{found}, but the previous one ended at junction #{expected}", .at.route + 1, .at.pos + 1)]
     Disconnected {
         /// Where (the step that does not connect).
         at: At,
@@ -244,7 +251,7 @@ pub enum Violation {
         found: usize,
     },
     /// A walk does not start at the depot.
-    #[error("route {route}: starts at junction {junction}, not at the depot")]
+    #[error("Truck {} starts at junction #{junction}, not at the yard", .route + 1)]
     NotFromDepot {
         /// Walk index.
         route: usize,
@@ -252,7 +259,7 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk does not end at the depot.
-    #[error("route {route}: ends at junction {junction}, not at the depot")]
+    #[error("Truck {} ends at junction #{junction}, not at the yard", .route + 1)]
     NotToDepot {
         /// Walk index.
         route: usize,
@@ -260,7 +267,7 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk serves a link that is not required.
-    #[error("{at}: link {link} is served but it is not required")]
+    #[error("Truck {}, step {}: street #{link} is served but it is not to be served", .at.route + 1, .at.pos + 1)]
     ServesNonRequired {
         /// Where.
         at: At,

@@ -39,7 +39,8 @@ fn step_at(at: &At) -> String {
 /// One finding of [`crate::check::check_plan`] or
 /// [`crate::check::check_walks`] in the words of the sheets (trucks from 1,
 /// street names, junction numbers of the scenario), where the checker's own
-/// `Display` uses 0-based indices.
+/// `Display`, without the instance, names streets and some junctions by
+/// their place in the scenario's lists (`street #8`).
 ///
 /// ```
 /// use arcwright::check::Violation;
