@@ -164,3 +164,28 @@ fn reading_as_written_leaves_direction_and_figures_to_the_checker() {
         }])
     );
 }
+
+/// Defect (issue 8, §3.1) at the library level: a required two-way
+/// self-loop served backward is written as from = to and reads back
+/// forward, so a plan straight from `Solver::solve` did not read back equal.
+/// The solver now returns self-loops served forward; every plan it returns
+/// writes and reads back identically (six such loops, several seeds).
+#[test]
+fn solver_plans_with_two_way_self_loops_read_back_equal() {
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/self_loops.json");
+    let inst = arcwright::io::read_scenario_file(path).unwrap();
+    let loops = inst.tasks().iter().filter(|t| t.tail == t.head && t.either);
+    assert!(loops.count() >= 6);
+    for seed in 1..=6 {
+        let sol = Solver::new(&inst)
+            .seed(seed)
+            .workers(1)
+            .max_iterations(30)
+            .solve()
+            .unwrap();
+        arcwright::check::check_plan(&inst, &sol.plan).unwrap();
+        let text = write_plan(&inst, &sol.plan, Some(sol.lower_bound.value));
+        let back = read_plan(&text, "self_loops.plan.json", &inst).unwrap();
+        assert_eq!(back, sol.plan, "seed {seed}");
+    }
+}
