@@ -403,7 +403,9 @@ pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
 /// its line, with the column), a wrong `format` or `version`, and then each
 /// problem of the content at its JSON path and line: a junction id given
 /// twice or unknown, a number above [`MAX_NUMBER`], a negative shift limit,
-/// or an invalid instance ([`ParseProblem::Model`]).
+/// a junction's coordinates outside the declared system
+/// ([`ParseProblem::Coordinate`], every such junction), or an invalid
+/// instance ([`ParseProblem::Model`]).
 ///
 /// # Complexity
 /// `O(L + V + E)` for `L` bytes of text, `V` junctions and `E` streets
@@ -466,6 +468,9 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             (None, None)
         }
     };
+    if let Some(system) = system {
+        c.coordinates(&junctions, system);
+    }
     let (Some(depot), Some(units), Some(system), true) =
         (depot, units, system, c.problems.is_empty())
     else {
@@ -481,19 +486,10 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             return Err(c.problems.failed());
         }
     };
+    // The coordinates were checked above; this cannot fail.
     inst.with_units(units)
         .with_coordinates(system)
-        .map_err(|(j, e)| {
-            let axis = if matches!(e.axis, "x" | "longitude") {
-                "x"
-            } else {
-                "y"
-            };
-            c.error_at(
-                vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
-                ParseProblem::Coordinate(e),
-            )
-        })
+        .map_err(|(j, e)| c.coordinate_error(j, e))
 }
 
 /// The problems of one scenario text, each at its JSON path and line.
@@ -514,6 +510,33 @@ impl Collect<'_> {
                 problem: Box::new(problem),
             },
         )
+    }
+
+    /// The problem of junction `j`'s coordinates, at `junctions[j].x` or
+    /// `junctions[j].y`.
+    fn coordinate_error(&self, j: usize, e: crate::model::CoordError) -> Error {
+        let axis = if matches!(e.axis, "x" | "longitude") {
+            "x"
+        } else {
+            "y"
+        };
+        self.error_at(
+            vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
+            ParseProblem::Coordinate(e),
+        )
+    }
+
+    /// Checks every junction's coordinates against the declared `system`
+    /// and records a problem for each junction that cannot be in it.
+    fn coordinates(&mut self, junctions: &[Junction], system: Coordinates) {
+        for (i, j) in junctions.iter().enumerate() {
+            if let (Some(x), Some(y)) = (j.x, j.y) {
+                if let Err(e) = system.check_point(x, y) {
+                    let e = self.coordinate_error(i, e);
+                    self.problems.push(e);
+                }
+            }
+        }
     }
 
     /// Records `problem` at `path`.
