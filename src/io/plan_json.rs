@@ -63,6 +63,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::scenario::{line_of, Seg};
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
@@ -220,16 +221,11 @@ pub fn read_plan_claims(text: &str, file: &str) -> Result<PlanClaims> {
     })
 }
 
+/// The plan file's JSON, after any byte-order mark; syntax and schema errors
+/// give their line in the location and their column in the message, once.
 fn parse_json(text: &str, file: &str) -> Result<FilePlan> {
-    serde_json::from_str(text).map_err(|e| {
-        Error::parse(
-            file,
-            Some(e.line()),
-            ParseProblem::Json {
-                message: format!("column {}: {e}", e.column()),
-            },
-        )
-    })
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    serde_json::from_str(text).map_err(|e| Error::json(file, &e))
 }
 
 /// Line of the `k`-th (0-based) `"link"` key in the text: the line of the
@@ -278,37 +274,56 @@ fn parse(
     strict: bool,
 ) -> Result<(FilePlan, Vec<Vec<Visit>>)> {
     let fp = parse_json(text, file)?;
+    check_header(&fp, text, file, inst)?;
+    let routes = services(&fp, text, file, inst, strict)?;
+    Ok((fp, routes))
+}
+
+/// The file's `version`, `format` and `instance` against what this reader
+/// reads and `inst`.
+fn check_header(fp: &FilePlan, text: &str, file: &str, inst: &Instance) -> Result<()> {
+    let line = |key| super::scenario::line_of_key(text, key);
     if let Some(v) = fp.version.filter(|&v| v != PLAN_VERSION) {
         return Err(Error::parse(
             file,
-            super::scenario::line_of_key(text, "version"),
+            line("version"),
             ParseProblem::Unexpected {
                 expected: "plan format version 1 (the version this program reads)",
                 found: format!("version {v}"),
             },
         ));
     }
-    if let Some(f) = &fp.format {
-        if f != "arcwright-plan" {
-            return Err(Error::parse(
-                file,
-                None,
-                ParseProblem::Json {
-                    message: format!("format is `{f}`, expected `arcwright-plan`"),
-                },
-            ));
-        }
+    if let Some(f) = fp.format.as_ref().filter(|&f| f != "arcwright-plan") {
+        return Err(Error::parse(
+            file,
+            line("format"),
+            ParseProblem::Json {
+                message: format!("format is `{f}`, expected `arcwright-plan`"),
+            },
+        ));
     }
     if fp.instance != inst.name {
         return Err(Error::parse(
             file,
-            None,
+            line("instance"),
             ParseProblem::WrongInstance {
                 expected: inst.name.clone(),
-                found: fp.instance,
+                found: fp.instance.clone(),
             },
         ));
     }
+    Ok(())
+}
+
+/// The visits of each route of the file (empty routes kept); see [`parse`]
+/// for `strict`.
+fn services(
+    fp: &FilePlan,
+    text: &str,
+    file: &str,
+    inst: &Instance,
+    strict: bool,
+) -> Result<Vec<Vec<Visit>>> {
     let net = inst.network();
     let mut task_of = vec![usize::MAX; net.links.len()];
     for (i, t) in inst.tasks().iter().enumerate() {
@@ -367,7 +382,7 @@ fn parse(
         }
         routes.push(visits);
     }
-    Ok((fp, routes))
+    Ok(routes)
 }
 
 /// [`read_plan`] with precomputed distances.
@@ -393,11 +408,12 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         ] {
             if let Some(st) = stated {
                 if st != computed {
+                    let path = [Seg::Key("routes"), Seg::Index(ri), Seg::Key(what)];
                     return Err(Error::parse(
                         file,
-                        None,
+                        line_of(text, &path),
                         ParseProblem::Mismatch {
-                            what: format!("route {ri} {what}"),
+                            what: format!("Truck {} {what}", ri + 1),
                             stated: st,
                             computed,
                         },
@@ -410,7 +426,7 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         if c != plan.cost {
             return Err(Error::parse(
                 file,
-                None,
+                super::scenario::line_of_key(text, "cost"),
                 ParseProblem::Mismatch {
                     what: "plan cost".into(),
                     stated: c,

@@ -201,7 +201,7 @@ struct FleetRec {
 
 /// One step of a JSON path.
 #[derive(Clone, Debug)]
-enum Seg {
+pub(crate) enum Seg {
     Key(&'static str),
     Index(usize),
 }
@@ -230,7 +230,7 @@ pub(crate) fn line_of_key(text: &str, key: &'static str) -> Option<usize> {
 
 /// Finds the line where the value at `path` starts, in text that serde_json
 /// has already accepted. `None` when it cannot be found.
-fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
+pub(crate) fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
     let mut sc = Scan {
         b: text.as_bytes(),
         i: 0,
