@@ -161,6 +161,7 @@ fn reading_as_written_leaves_direction_and_figures_to_the_checker() {
             },
             task: one_side,
             link: inst.tasks()[one_side].link,
+            street: inst.network().street_label(inst.tasks()[one_side].link),
         }])
     );
 }

@@ -422,6 +422,7 @@ fn tampered_plan_file(dir: &Path) -> (PathBuf, Vec<String>, Instance, Vec<Violat
         Violation::ServedTwice {
             task: 0,
             link: t[0].link,
+            street: inst.network().street_label(t[0].link),
             first: At { route: 0, pos: 0 },
             again: At {
                 route: 1,
@@ -431,6 +432,7 @@ fn tampered_plan_file(dir: &Path) -> (PathBuf, Vec<String>, Instance, Vec<Violat
         Violation::NotServed {
             task: n - 1,
             link: t[n - 1].link,
+            street: inst.network().street_label(t[n - 1].link),
         },
         Violation::WrongCost {
             route: 1,

@@ -11,13 +11,14 @@
 //! [`Violation`]s. Their fields are 0-based indices, as in [`Plan::routes`],
 //! [`Instance::tasks`], [`crate::model::Network::links`] and
 //! [`crate::model::Network::junctions`] ([`Violation::NoPath`] also gives
-//! the junctions' ids). Their `Display` speaks the words of the route
-//! sheets: trucks, services and steps numbered from 1, the yard, and a
-//! street as `street #N`, its 0-based place in the street list (the `link`
-//! of plan files); junctions are given by their ids where the violation
-//! holds them, otherwise as `junction #N` (0-based place in the junction
-//! list). A violation does not hold the instance: for street names and
-//! junction ids, word it with [`crate::report::describe`].
+//! the junctions' ids), plus the street's label where one is concerned.
+//! Their `Display` speaks the words of the route sheets: trucks, services
+//! and steps numbered from 1, the yard, and a street by its name and
+//! junction ids ([`crate::model::Network::street_label`]; `street #N`, its
+//! 0-based place in the street list, only for a step naming no street).
+//! Junctions are given by their ids where the violation holds them,
+//! otherwise as `junction #N` (0-based place in the junction list);
+//! [`crate::report::describe`] words every finding with the instance at hand.
 //!
 //! For an instance built by [`Instance::new`] every task can be reached from
 //! the depot and back, so [`Violation::NoPath`] cannot occur with allowed
@@ -89,7 +90,7 @@ pub enum Violation {
     /// A task is served backward although only forward service is allowed
     /// (a one-way street, or one side of a street).
     #[error(
-        "Truck {}, service {}: street #{link} is served backward, but it may only be served forward (from its first junction to its second)",
+        "Truck {}, service {}: {street} is served backward, but it may only be served forward (from its first junction to its second)",
         .at.route + 1, .at.pos + 1
     )]
     DirectionNotAllowed {
@@ -99,10 +100,13 @@ pub enum Violation {
         task: usize,
         /// Link index of the task.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
     /// A task is served more than once.
     #[error(
-        "street #{link} is served twice: by Truck {}, service {} and again by Truck {}, service {}",
+        "{street} is served twice: by Truck {}, service {} and again by Truck {}, service {}",
         .first.route + 1, .first.pos + 1, .again.route + 1, .again.pos + 1
     )]
     ServedTwice {
@@ -110,18 +114,24 @@ pub enum Violation {
         task: usize,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
         /// The first service.
         first: At,
         /// A later service.
         again: At,
     },
     /// A task is not served at all.
-    #[error("street #{link} is not served")]
+    #[error("{street} is not served")]
     NotServed {
         /// Task index.
         task: usize,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
     /// No path leads from one junction to the next in a route.
     #[error("Truck {}: no way to drive from junction {from_id} to junction {to_id}", .route + 1)]
@@ -221,24 +231,30 @@ pub enum Violation {
         links: usize,
     },
     /// A walk step's junctions are not the two ends of its link.
-    #[error("Truck {}, step {}: a step from junction #{from} to junction #{to} does not follow street #{link}", .at.route + 1, .at.pos + 1)]
+    #[error("Truck {}, step {}: a step from junction #{from} to junction #{to} does not follow {street}", .at.route + 1, .at.pos + 1)]
     NotOnLink {
         /// Where.
         at: At,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
         /// Junction index the step starts at.
         from: usize,
         /// Junction index it ends at.
         to: usize,
     },
     /// A walk step drives a one-way link against its direction.
-    #[error("Truck {}, step {}: one-way street #{link} is driven against its direction", .at.route + 1, .at.pos + 1)]
+    #[error("Truck {}, step {}: one-way {street} is driven against its direction", .at.route + 1, .at.pos + 1)]
     AgainstOneWay {
         /// Where.
         at: At,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
     /// A walk step does not start where the previous one ended.
     #[error("Truck {}, step {}: the step starts at junction #{found}, but the previous one ended at junction #{expected}", .at.route + 1, .at.pos + 1)]
@@ -267,12 +283,15 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk serves a link that is not required.
-    #[error("Truck {}, step {}: street #{link} is served but it is not to be served", .at.route + 1, .at.pos + 1)]
+    #[error("Truck {}, step {}: {street} is served but it is not to be served", .at.route + 1, .at.pos + 1)]
     ServesNonRequired {
         /// Where.
         at: At,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
 }
 
@@ -346,7 +365,11 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
 /// let there_and_back = Route { visits: vec![Visit::new(0, Dir::Forward)], load: 1, cost: 10, time: 10 };
 /// assert!(check_plan(&inst, &Plan { routes: vec![there_and_back], cost: 10 }).is_ok());
 /// let nothing = Plan { routes: vec![], cost: 0 };
-/// assert_eq!(check_plan(&inst, &nothing), Err(vec![Violation::NotServed { task: 0, link: 0 }]));
+/// assert_eq!(check_plan(&inst, &nothing), Err(vec![Violation::NotServed {
+///     task: 0,
+///     link: 0,
+///     street: "street 1-2".into(),
+/// }]));
 /// ```
 pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     let mut out = Vec::new();
@@ -464,12 +487,14 @@ impl Coverage {
                 at,
                 task,
                 link: t.link,
+                street: inst.network().street_label(t.link),
             });
         }
         match self.seen[task] {
             Some(first) => out.push(Violation::ServedTwice {
                 task,
                 link: t.link,
+                street: inst.network().street_label(t.link),
                 first,
                 again: at,
             }),
@@ -480,9 +505,11 @@ impl Coverage {
     fn finish(self, inst: &Instance, out: &mut Vec<Violation>) {
         for (i, s) in self.seen.iter().enumerate() {
             if s.is_none() {
+                let link = inst.tasks()[i].link;
                 out.push(Violation::NotServed {
                     task: i,
-                    link: inst.tasks()[i].link,
+                    link,
+                    street: inst.network().street_label(link),
                 });
             }
         }
@@ -643,7 +670,11 @@ pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Viola
                 continue;
             }
             let Some(ti) = task_of[s.link] else {
-                out.push(Violation::ServesNonRequired { at, link: s.link });
+                out.push(Violation::ServesNonRequired {
+                    at,
+                    link: s.link,
+                    street: net.street_label(s.link),
+                });
                 continue;
             };
             let t = &inst.tasks()[ti];
@@ -705,13 +736,18 @@ fn step_on_link(inst: &Instance, at: At, s: &Step, out: &mut Vec<Violation>) -> 
         out.push(Violation::NotOnLink {
             at,
             link: s.link,
+            street: inst.network().street_label(s.link),
             from: s.from,
             to: s.to,
         });
         return None;
     }
     if !forward && l.oneway {
-        out.push(Violation::AgainstOneWay { at, link: s.link });
+        out.push(Violation::AgainstOneWay {
+            at,
+            link: s.link,
+            street: inst.network().street_label(s.link),
+        });
     }
     Some(forward)
 }
