@@ -22,7 +22,7 @@ mod units;
 pub use coords::{CoordError, Coordinates, Projection, EARTH_RADIUS_M};
 pub use fleet::Fleet;
 pub use instance::{Dir, Instance, ModelError, Reach, Task, MAX_PROBLEMS};
-pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec};
+pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec, TurnRestriction};
 pub use units::{Units, MAX_UNIT_LEN};
 
 /// Exact integer cost, time or demand.
