@@ -112,6 +112,15 @@ pub enum ParseProblem {
     /// A plan file is for another instance.
     #[error("the plan is for instance `{found}`, not `{expected}`")]
     WrongInstance { expected: String, found: String },
+    /// Two fields that exclude each other are both given.
+    #[error("`{given}` and `{other}` are both given; give one of them")]
+    Conflict {
+        given: &'static str,
+        other: &'static str,
+    },
+    /// A name that refers to nothing (a truck type's yard, say).
+    #[error("no {what} is named `{name}`")]
+    UnknownName { what: &'static str, name: String },
     /// A cost or load stated in a plan file differs from the recomputed one.
     #[error("{what}: the file states {stated}, recomputed {computed}")]
     Mismatch {

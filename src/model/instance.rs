@@ -2,7 +2,7 @@ use std::collections::VecDeque;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Cost, Fleet, Network, ServeDirection};
+use super::{Cost, Fleet, Network, Operations, OperationsError, ServeDirection};
 
 /// Why a network, fleet and depot do not make a valid instance.
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
@@ -41,6 +41,9 @@ pub enum ModelError {
     /// The fleet allows zero vehicles but there is work to do.
     #[error("the fleet allows no vehicle but there are {tasks} required links")]
     NoVehicles { tasks: usize },
+    /// Dump sites, yards or truck types that do not fit the network.
+    #[error("{0}")]
+    Operations(OperationsError),
 }
 
 impl ModelError {
@@ -118,6 +121,7 @@ pub struct Instance {
     fleet: Fleet,
     depot: usize,
     tasks: Vec<Task>,
+    ops: Operations,
 }
 
 impl Instance {
@@ -205,6 +209,7 @@ impl Instance {
             fleet,
             depot,
             tasks,
+            ops: Operations::default(),
         };
         inst.check_reachable()?;
         Ok(inst)
@@ -288,8 +293,54 @@ impl Instance {
         self.network.has_times()
     }
 
-    /// Returns a copy with another fleet, revalidated.
+    /// Returns a copy with another fleet, revalidated (its operations are
+    /// kept and revalidated too).
+    ///
+    /// # Errors
+    ///
+    /// A [`ModelError`] when the fleet does not fit the network; operations
+    /// that no longer fit give [`ModelError::Operations`].
     pub fn with_fleet(&self, fleet: Fleet) -> Result<Instance, ModelError> {
-        Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)
+        let inst = Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)?;
+        inst.with_operations(self.ops.clone())
+            .map_err(ModelError::Operations)
+    }
+
+    /// The dump sites, yards, truck types and balance setting
+    /// ([`Operations::default`], every feature off, unless set with
+    /// [`Instance::with_operations`]).
+    pub fn operations(&self) -> &Operations {
+        &self.ops
+    }
+
+    /// Attaches dump sites, yards, truck types and a balance setting,
+    /// validated against the network.
+    ///
+    /// ```
+    /// use arcwright::model::{DumpSite, Fleet, Instance, Network, Operations};
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(0, 1, 4, 2);
+    /// net.add_edge(1, 2, 5);
+    /// let inst = Instance::new("lane", net, Fleet::with_capacity(10), 0).unwrap();
+    /// let ops = Operations {
+    ///     dump_sites: vec![DumpSite { name: None, junction: 2, unload_time: 20,
+    ///                                 unload_cost: 0, hours: None }],
+    ///     ..Operations::default()
+    /// };
+    /// let inst = inst.with_operations(ops).unwrap();
+    /// assert_eq!(inst.operations().dump_sites.len(), 1);
+    /// ```
+    ///
+    /// # Errors
+    ///
+    /// An [`OperationsError`] naming the dump site, yard, truck type or
+    /// street at fault: a junction or street out of range, a negative
+    /// number, a dump site that a street to serve cannot reach, a yard with
+    /// no trucks, a truck type that can serve no street, a street no truck
+    /// type can serve.
+    pub fn with_operations(mut self, ops: Operations) -> Result<Instance, OperationsError> {
+        ops.validate(&self)?;
+        self.ops = ops;
+        Ok(self)
     }
 }

@@ -16,10 +16,14 @@
 mod fleet;
 mod instance;
 mod network;
+mod operations;
 
 pub use fleet::Fleet;
 pub use instance::{Dir, Instance, ModelError, Task};
 pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec};
+pub use operations::{
+    Balance, DumpSite, Element, Hours, Operations, OperationsError, TruckType, Yard,
+};
 
 /// Exact integer cost, time or demand.
 pub type Cost = i64;
