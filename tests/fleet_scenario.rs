@@ -152,9 +152,11 @@ fn a_street_no_truck_type_can_serve_is_named() {
     );
 }
 
+type Edit = dyn Fn(&mut serde_json::Value);
+
 #[test]
 fn other_mistakes_point_at_their_field() {
-    let cases: Vec<(Box<dyn Fn(&mut serde_json::Value)>, &str)> = vec![
+    let cases: Vec<(Box<Edit>, &str)> = vec![
         (
             Box::new(|v| v["truck_types"][0]["yard"] = serde_json::json!("east")),
             "truck_types[0].yard",
