@@ -38,6 +38,7 @@ pub mod check;
 pub mod construct;
 pub mod demo;
 pub mod error;
+pub mod fleet;
 pub mod improve;
 pub mod io;
 pub mod model;
