@@ -425,6 +425,12 @@ fn check_against_enumeration(w: &World, tour: &[usize], seen: &mut Seen) {
             }
             let served: usize = s.routes.iter().map(|r| r.visits.len()).sum();
             assert_eq!(served, tour.len());
+            // The crate's independent checker accepts the plan (it serves
+            // every task of these instances, as the tours are complete).
+            let plan = arcwright::fleet::FleetPlan::new(s.routes.clone());
+            if let Err(v) = arcwright::check::fleet::check_fleet_plan(&w.inst, &plan) {
+                panic!("checker rejects the split of {tour:?}: {v:?}");
+            }
         }
     }
 }

@@ -44,6 +44,8 @@
 //! assert_eq!(v[0].to_string(), "route 0: reported cost 15, but it recomputes to 16");
 //! ```
 
+pub mod fleet;
+
 use std::cmp::Reverse;
 use std::collections::{BTreeMap, BinaryHeap};
 use std::fmt;
