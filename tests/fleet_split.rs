@@ -216,26 +216,22 @@ fn enumerate(w: &World, tour: &[usize]) -> Option<i64> {
                     .map(|(&(i, j), &k)| &options[i][j][k])
                     .collect();
                 if lists.iter().all(|l| !l.is_empty()) {
-                    let mut idx = vec![0usize; lists.len()];
-                    loop {
-                        let cost: i64 = lists.iter().zip(&idx).map(|(l, &x)| l[x].0).sum();
-                        let longest = lists.iter().zip(&idx).map(|(l, &x)| l[x].1).max().unwrap();
-                        let v = cost + w.weight * longest;
-                        if best.is_none_or(|b| v < b) {
-                            best = Some(v);
-                        }
-                        // Next combination.
-                        let mut p = 0;
-                        while p < idx.len() {
-                            idx[p] += 1;
-                            if idx[p] < lists[p].len() {
-                                break;
+                    // min over plans of cost + w·longest = min over T of
+                    // (least cost with every route time <= T) + w·T.
+                    let mut ts: Vec<i64> =
+                        lists.iter().flat_map(|l| l.iter().map(|x| x.1)).collect();
+                    ts.sort_unstable();
+                    ts.dedup();
+                    for t in ts {
+                        let costs: Option<Vec<i64>> = lists
+                            .iter()
+                            .map(|l| l.iter().filter(|x| x.1 <= t).map(|x| x.0).min())
+                            .collect();
+                        if let Some(c) = costs {
+                            let v = c.iter().sum::<i64>() + w.weight * t;
+                            if best.is_none_or(|b| v < b) {
+                                best = Some(v);
                             }
-                            idx[p] = 0;
-                            p += 1;
-                        }
-                        if p == idx.len() {
-                            break;
                         }
                     }
                 }
@@ -462,5 +458,52 @@ fn split_equals_enumeration_with_seven_streets() {
         let w = world(7 + variant, 7, variant);
         let tour: Vec<usize> = (0..7).rev().collect();
         check_against_enumeration(&w, &tour, &mut Seen::default());
+    }
+}
+
+/// All orders of `0..n` (Heap's algorithm).
+fn permutations(n: usize) -> Vec<Vec<usize>> {
+    let mut a: Vec<usize> = (0..n).collect();
+    let mut out = vec![a.clone()];
+    let mut c = vec![0; n];
+    let mut i = 0;
+    while i < n {
+        if c[i] < i {
+            if i % 2 == 0 {
+                a.swap(0, i);
+            } else {
+                a.swap(c[i], i);
+            }
+            out.push(a.clone());
+            c[i] += 1;
+            i = 0;
+        } else {
+            c[i] = 0;
+            i += 1;
+        }
+    }
+    out
+}
+
+/// The solver reaches the optimum over all plans, enumerated here: every
+/// plan's routes, put one after the other, are a split of some order, so the
+/// least objective over all orders of the enumeration above is the optimum.
+#[test]
+fn solver_reaches_the_enumerated_optimum() {
+    for (seed, variant) in [(3u64, 0u64), (5, 1), (8, 2), (11, 5), (13, 8), (21, 12)] {
+        let w = world(seed, 5, variant);
+        let best = permutations(5)
+            .iter()
+            .filter_map(|p| enumerate(&w, p))
+            .min()
+            .expect("some plan");
+        let sol = arcwright::fleet::FleetSolver::new(&w.inst)
+            .max_iterations(30)
+            .moves(300)
+            .solve()
+            .unwrap();
+        assert!(arcwright::check::fleet::check_fleet_plan(&w.inst, &sol.plan).is_ok());
+        assert_eq!(sol.objective, best, "seed {seed} variant {variant}");
+        assert!(sol.lower_bound.value <= sol.cost);
     }
 }

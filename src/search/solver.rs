@@ -346,10 +346,19 @@ impl<'a> Solver<'a> {
             }
         };
         report(&best, 0);
+        // Epochs in a row in which no island made an offspring (an island
+        // whose population cannot hold two distinct plans, as on a tiny
+        // instance, makes none); without this guard the loop never ended.
+        let mut idle = 0;
         loop {
-            if best.0 <= stop_at || ctx.should_stop() || budget.iter().all(|&b| b == 0) {
+            if best.0 <= stop_at
+                || ctx.should_stop()
+                || budget.iter().all(|&b| b == 0)
+                || idle >= IDLE_EPOCHS
+            {
                 break;
             }
+            let left = budget.clone();
             let epoch = self.epoch;
             pool.install(|| {
                 islands
@@ -361,6 +370,7 @@ impl<'a> Solver<'a> {
                         *b -= done;
                     })
             });
+            idle = if budget == left { idle + 1 } else { 0 };
             let mut improved = false;
             iterations = islands.iter().map(|i| i.iterations).sum();
             // Deterministic exchange: the best of all islands (lowest index on ties).
@@ -435,6 +445,9 @@ impl Ctx<'_> {
                 .is_some_and(|f| f.load(Ordering::Relaxed))
     }
 }
+
+/// Epochs in a row without any offspring after which the search stops.
+const IDLE_EPOCHS: u32 = 100;
 
 /// Search parameters of one island.
 const RESTART_AFTER: u64 = 3000;
