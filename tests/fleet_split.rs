@@ -507,3 +507,96 @@ fn solver_reaches_the_enumerated_optimum() {
         assert!(sol.lower_bound.value <= sol.cost);
     }
 }
+
+mod properties {
+    use super::*;
+    use arcwright::check::fleet::check_fleet_plan;
+    use arcwright::fleet::{FleetPlan, FleetRoute, FleetSolver};
+    use proptest::prelude::*;
+
+    /// The route without its tip number `i`, if it still evaluates.
+    fn without_tip(w: &World, t: &Tables, r: &FleetRoute, i: usize) -> Option<FleetRoute> {
+        let mut tips = r.tips.clone();
+        tips.remove(i);
+        FleetRoute::new(&w.inst, t, r.truck_type, r.visits.clone(), tips).ok()
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 48, ..ProptestConfig::default() })]
+
+        /// Every split passes the checker, every trip is within its type's
+        /// load limit, and no tip can be dropped to make a feasible route
+        /// cheaper (under balancing: cheaper and within the longest shift).
+        #[test]
+        fn splits_are_checked_loaded_within_limits_and_tip_no_more_than_pays(
+            seed in 0u64..10_000,
+            variant in 0u64..16,
+            tasks in 3usize..=7,
+            shuffle in 0u64..10_000,
+        ) {
+            let w = world(seed, tasks, variant);
+            let t = Tables::new(&w.inst).unwrap();
+            let n = w.inst.tasks().len();
+            let mut g = Lcg(shuffle);
+            let mut tour: Vec<usize> = (0..n).collect();
+            for i in (1..n).rev() {
+                tour.swap(i, g.next(i as u64 + 1) as usize);
+            }
+            let Ok(s) = split(&w.inst, &t, &tour) else { return Ok(()) };
+            let plan = FleetPlan::new(s.routes.clone());
+            prop_assert!(check_fleet_plan(&w.inst, &plan).is_ok());
+            for r in &plan.routes {
+                let cap = w.types[r.truck_type].capacity;
+                prop_assert!(r.trip_loads.iter().all(|&l| l <= cap));
+                for i in 0..r.tips.len() {
+                    if let Some(x) = without_tip(&w, &t, r, i) {
+                        if x.feasible(&t) {
+                            // The split's route is the cheapest of its piece and
+                            // type among routes no longer than the longest shift
+                            // it allowed; so a cheaper one is longer than the plan's
+                            // longest shift (only possible under balancing).
+                            prop_assert!(
+                                x.cost >= r.cost || (w.weight > 0 && x.time > s.longest),
+                                "dropping tip {} of {:?} saves {}", i, r.tips, r.cost - x.cost
+                            );
+                        }
+                    }
+                }
+            }
+        }
+
+        /// Every plan the solver returns passes the checker.
+        #[test]
+        fn solver_plans_pass_the_checker(seed in 0u64..10_000, variant in 0u64..16) {
+            let w = world(seed, 5, variant);
+            let sol = FleetSolver::new(&w.inst).seed(seed).max_iterations(10).moves(20).solve();
+            if let Ok(sol) = sol {
+                prop_assert!(check_fleet_plan(&w.inst, &sol.plan).is_ok());
+                prop_assert_eq!(sol.objective, sol.plan.objective(&w.inst));
+                prop_assert!(sol.lower_bound.value <= sol.cost);
+            }
+        }
+    }
+}
+
+/// Balancing trades cost for a shorter longest shift, never the other way:
+/// for the same order, the split under `cost + 2 × longest` costs at least
+/// the least-cost split and its longest shift is at most as long (both
+/// splits are exact, so `c_w + 2 L_w <= c_0 + 2 L_0` and `c_0 <= c_w`).
+#[test]
+fn balancing_shortens_the_longest_shift_at_a_cost() {
+    let mut shorter = 0;
+    for seed in 0..40u64 {
+        let plain = world(seed, 7, 2);
+        let balanced = world(seed, 7, 2 | 8);
+        assert_eq!(plain.inst.network(), balanced.inst.network());
+        let tour: Vec<usize> = (0..plain.inst.tasks().len()).collect();
+        let a = split(&plain.inst, &Tables::new(&plain.inst).unwrap(), &tour);
+        let b = split(&balanced.inst, &Tables::new(&balanced.inst).unwrap(), &tour);
+        let (Ok(a), Ok(b)) = (a, b) else { continue };
+        assert!(b.cost >= a.cost && b.longest <= a.longest, "seed {seed}");
+        assert_eq!(b.objective, b.cost + 2 * b.longest);
+        shorter += usize::from(b.longest < a.longest);
+    }
+    assert!(shorter > 0, "balancing never changed a plan");
+}
