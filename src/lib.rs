@@ -9,7 +9,8 @@
 //! [`paths`] (shortest deadhead paths), [`plan`] (routes and walks),
 //! [`check`] (independent plan checker), [`postman`] and [`bounds`]
 //! (single-tour routes and lower bounds), [`construct`], [`improve`] and
-//! [`search`] (the fleet solver), [`demo`] and [`report`] (demo towns and
+//! [`search`] (the fleet solver), [`fleet`] (dump sites, several yards,
+//! truck types and balanced shifts), [`demo`] and [`report`] (demo towns and
 //! outputs for people), and [`app`] (the logic of the `planner` example
 //! program).
 //!
