@@ -118,6 +118,7 @@ fn demo_with_landfill(root: &std::path::Path) -> Instance {
         time: Some(400),
         service: None,
         name: Some("Landfill Road".into()),
+        length: Some(6000),
     });
     let inst =
         Instance::new("demo town with landfill", net, town.fleet().clone(), yard).expect("valid");

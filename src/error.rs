@@ -121,6 +121,10 @@ pub enum ParseProblem {
     /// A name that refers to nothing (a truck type's yard, say).
     #[error("no {what} is named `{name}`")]
     UnknownName { what: &'static str, name: String },
+    /// A junction coordinate that cannot be in the scenario's declared
+    /// coordinate system (not finite, a latitude beyond ±90°, ...).
+    #[error("{0}")]
+    Coordinate(crate::model::CoordError),
     /// A cost or load stated in a plan file differs from the recomputed one.
     #[error("{what}: the file states {stated}, recomputed {computed}")]
     Mismatch {

@@ -11,8 +11,8 @@
 //! (single-tour routes and lower bounds), [`construct`], [`improve`] and
 //! [`search`] (the fleet solver), [`fleet`] (dump sites, several yards,
 //! truck types and balanced shifts), [`demo`] and [`report`] (demo towns and
-//! outputs for people), and [`app`] (the logic of the `planner` example
-//! program).
+//! outputs for people, rendered as text). The `planner` program that writes
+//! them into a folder is an example (`examples/planner/`), not library API.
 //!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
@@ -33,7 +33,6 @@
 //! assert!(sol.cost >= sol.lower_bound.value);
 //! ```
 
-pub mod app;
 pub mod bounds;
 pub mod check;
 pub mod construct;

@@ -290,6 +290,7 @@ fn world(seed: u64, tasks: usize, variant: u64) -> World {
             time: Some(time),
             service,
             name: None,
+            length: None,
         });
     }
     let inst = Instance::new("tiny world", net, Fleet::with_capacity(6), 0).unwrap();

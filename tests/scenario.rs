@@ -117,16 +117,20 @@ mod random {
             opt(0..=1_000_000i64),
             service,
             opt("[ -~]{0,12}|Straße [0-9]{1,3}|\"quoted\\\\\""),
+            opt(0..=1_000_000i64),
         )
-            .prop_map(|(from, to, oneway, cost, time, service, name)| Link {
-                from,
-                to,
-                oneway,
-                cost,
-                time,
-                service,
-                name,
-            })
+            .prop_map(
+                |(from, to, oneway, cost, time, service, name, length)| Link {
+                    from,
+                    to,
+                    oneway,
+                    cost,
+                    time,
+                    service,
+                    name,
+                    length,
+                },
+            )
     }
 
     /// Random valid instances: a two-way ring through all junctions keeps every
@@ -137,7 +141,9 @@ mod random {
                 prop::collection::vec(
                     (
                         any::<u64>(),
-                        opt(any::<f64>().prop_filter("finite", |x| x.is_finite())),
+                        // Undeclared planar coordinates must stay within
+                        // 40,000 km: tiny and large values, exactly kept.
+                        opt(prop_oneof![-4e7..4e7f64, -1e-300..1e-300f64]),
                         opt(-1e7..1e7f64),
                     ),
                     n,
@@ -184,4 +190,125 @@ mod random {
             prop_assert_eq!(again, inst);
         }
     }
+}
+
+/// A small scenario with `extra` fields after the name and the junction
+/// coordinates given.
+fn small(extra: &str, junctions: &str) -> String {
+    format!(
+        r#"{{
+  "format": "arcwright-scenario",
+  "version": 1,
+  "name": "small"{extra},
+  "junctions": {junctions},
+  "streets": [
+    {{ "from": 1, "to": 2, "cost": 4, "length": 120,
+       "service": {{ "demand": 1, "cost": 5 }} }}
+  ],
+  "yard": 1,
+  "fleet": {{ "capacity": 5 }}
+}}"#
+    )
+}
+
+const TWO: &str = r#"[ { "id": 1, "x": 24.9, "y": 60.1 }, { "id": 2, "x": 24.91, "y": 60.1 } ]"#;
+
+/// Units, coordinate system and street lengths are read and written back.
+#[test]
+fn units_coordinates_and_lengths_round_trip() {
+    use arcwright::model::{Coordinates, Units};
+    let text = small(
+        r#", "units": { "cost": "EUR", "length": "m", "time": "min", "load": "kg" },
+  "coordinates": { "system": "planar", "origin": { "lon": 24.9, "lat": 60.1 } }"#,
+        TWO,
+    );
+    let inst = read_scenario(&text, "small.json").unwrap();
+    assert_eq!(
+        inst.units(),
+        &Units {
+            cost: Some("EUR".into()),
+            length: Some("m".into()),
+            time: Some("min".into()),
+            load: Some("kg".into()),
+        }
+    );
+    assert_eq!(
+        inst.coordinates(),
+        Coordinates::Planar {
+            origin: Some((24.9, 60.1))
+        }
+    );
+    assert_eq!(inst.network().links[0].length, Some(120));
+    let again = read_scenario(&write_scenario(&inst), "again.json").unwrap();
+    assert_eq!(again, inst);
+    assert_eq!(again.units(), inst.units());
+    assert_eq!(again.coordinates(), inst.coordinates());
+    // Older files without the fields still read: nothing declared.
+    let old = read_scenario(&small("", TWO), "old.json").unwrap();
+    assert_eq!(old.units(), &Units::default());
+    assert_eq!(old.coordinates(), Coordinates::Undeclared);
+}
+
+/// Friction 2.7: impossible coordinates are refused when the file is read,
+/// with a typed error at the junction's JSON path and line, never written
+/// out as `null` later.
+#[test]
+fn impossible_coordinates_are_refused_when_read() {
+    use arcwright::error::ParseProblem;
+    let wgs = r#", "coordinates": { "system": "wgs84" }"#;
+    let cases = [
+        (
+            wgs,
+            r#"[ { "id": 1, "x": 24.9, "y": 60.1 },
+  { "id": 2, "x": 24.9, "y": 8993.0 } ]"#,
+            "junctions[1].y",
+            "latitude",
+        ),
+        (
+            wgs,
+            r#"[ { "id": 1, "x": 190.5, "y": 60.1 }, { "id": 2, "x": 24.9, "y": 60.1 } ]"#,
+            "junctions[0].x",
+            "longitude",
+        ),
+        (
+            "",
+            r#"[ { "id": 1, "x": 1e308, "y": 0.0 }, { "id": 2, "x": 0.0, "y": 0.0 } ]"#,
+            "junctions[0].x",
+            "x",
+        ),
+        (
+            r#", "coordinates": { "system": "planar", "origin": { "lon": 10.0, "lat": 95.0 } }"#,
+            TWO,
+            "coordinates.origin.lat",
+            "latitude",
+        ),
+    ];
+    for (extra, junctions, path, axis) in cases {
+        let err = read_scenario(&small(extra, junctions), "bad.json").unwrap_err();
+        let p = err.problem().unwrap();
+        assert_eq!(p.path(), Some(path), "{err}");
+        let ParseProblem::Coordinate(c) = p.innermost() else {
+            panic!("{err}")
+        };
+        assert_eq!(c.axis, axis, "{err}");
+        assert!(err.location().unwrap().line.is_some(), "{err}");
+    }
+    // An origin makes no sense for WGS 84, and units must be short names.
+    let err = read_scenario(
+        &small(
+            r#", "coordinates": { "system": "wgs84", "origin": { "lon": 1.0, "lat": 2.0 } }"#,
+            TWO,
+        ),
+        "x.json",
+    )
+    .unwrap_err();
+    assert_eq!(err.problem().unwrap().path(), Some("coordinates.origin"));
+    let err = read_scenario(&small(r#", "units": { "time": "" }"#, TWO), "x.json").unwrap_err();
+    assert_eq!(err.problem().unwrap().path(), Some("units.time"));
+    let err = read_scenario(
+        &small(r#", "coordinates": { "system": "mercator" }"#, TWO),
+        "x.json",
+    )
+    .unwrap_err();
+    assert!(err.to_string().contains("mercator"), "{err}");
 }

@@ -30,7 +30,8 @@ use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 
 use crate::model::{
-    Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection, ServiceSpec,
+    Coordinates, Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection,
+    ServiceSpec, Units,
 };
 
 /// What kind of town to invent.
@@ -199,6 +200,7 @@ impl Builder {
             time: Some((length / speed).round().max(1.0) as Cost),
             service,
             name: Some(name.to_string()),
+            length: None,
         })
     }
 }
@@ -511,7 +513,17 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         max_vehicles: Some(max_trucks.max(1)),
     };
     let name = format!("demo town (seed {}, {} blocks)", spec.seed, blocks);
-    Instance::new(name, b.net, fleet, yard)
+    // Costs are metres of street, times seconds, demands bins; the town is
+    // invented, so its planar metres have no place on the Earth.
+    let inst = Instance::new(name, b.net, fleet, yard)?.with_units(Units {
+        cost: Some("m".into()),
+        length: None,
+        time: Some("s".into()),
+        load: Some("bins".into()),
+    });
+    Ok(inst
+        .with_coordinates(Coordinates::Planar { origin: None })
+        .expect("the generator places junctions within a few kilometres"))
 }
 
 fn nearest(b: &Builder, ring: &[(usize, f64)], p: usize) -> usize {

@@ -6,12 +6,17 @@
 //!   "format": "arcwright-plan",
 //!   "version": 1,
 //!   "instance": "gdb1",
+//!   "units": {"cost": null, "length": null, "time": null, "load": null},
+//!   "run": {"seed": 1, "workers": 2, "time_limit_s": null, "max_iterations": 2000,
+//!           "iterations": 2000, "stopped_early": false,
+//!           "crate_version": "0.1.0"},
 //!   "cost": 316,
 //!   "lower_bound": 252,
 //!   "routes": [
 //!     {
 //!       "load": 5,
 //!       "cost": 74,
+//!       "time": 74,
 //!       "services": [
 //!         {"from": 1, "to": 12, "link": 4},
 //!         {"from": 12, "to": 6, "link": 14}
@@ -32,14 +37,21 @@
 //!   instance's link list (the order of the input file; it tells parallel
 //!   links apart). Between two services, and from and back to the depot, a
 //!   truck drives a shortest deadhead path.
-//! - `load`: the route's total demand; `cost`: its service plus deadhead cost.
+//! - `load`: the route's total demand; `cost`: its service plus deadhead cost;
+//!   `time`: its service plus driving time; `length` (only when every street
+//!   of the scenario has a length): the length it drives.
+//! - `version`: 1 (a file stating another version is refused; a file without
+//!   one is read as version 1); `units`: the scenario's units, `null` where
+//!   undeclared; `run` (optional, [`RunSettings`]): how the plan was made.
+//!   Readers ignore `units`, `run` and route `length`.
 //!
 //! Two readers; errors of both name the file and, for services, the line.
 //!
 //! - [`read_plan`] (and [`read_plan_with`]) is strict: it checks that every
 //!   `(from, to, link)` is a required link served in an allowed direction,
 //!   that no link is served twice, that the instance name matches, and that
-//!   every stated cost and load equals the recomputed one. Whether every task
+//!   every stated cost, load and time equals the recomputed one, and that a
+//!   stated lower bound lies between 0 and the plan's cost. Whether every task
 //!   is served and routes respect the fleet is left to [`crate::check`].
 //! - [`read_plan_as_written`] checks only the structure (JSON syntax and
 //!   schema, the instance name, and that each service names a required link
@@ -49,29 +61,95 @@
 //!   against its allowed direction, a wrong load, route cost or total, the
 //!   fleet limits.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
 use crate::plan::{evaluate, Plan, Route, Visit};
 
-/// Writes a plan as JSON (schema in the module docs).
+/// How a plan was made, recorded in the plan file (`run`). No clock
+/// readings: a run with an iteration limit writes the same file every time.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct RunSettings {
+    /// Random seed.
+    pub seed: u64,
+    /// Search threads.
+    pub workers: usize,
+    /// Time limit in seconds, if any.
+    pub time_limit_s: Option<f64>,
+    /// Iteration limit, if any.
+    pub max_iterations: Option<u64>,
+    /// Iterations done.
+    pub iterations: u64,
+    /// Whether the search was stopped before its limits (Ctrl-C).
+    pub stopped_early: bool,
+    /// Version of this crate that made the plan.
+    pub crate_version: String,
+}
+
+/// What a plan file records beside the routes.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct PlanRecord {
+    /// The solver's lower bound (`lower_bound`).
+    pub lower_bound: Option<Cost>,
+    /// Length driven by each route, in the scenario's length unit, when the
+    /// scenario gives every street a length (`routes[i].length`).
+    pub route_lengths: Option<Vec<Cost>>,
+    /// How the plan was made (`run`).
+    pub run: Option<RunSettings>,
+}
+
+/// Writes a plan as JSON (schema in the module docs), with the lower bound
+/// when known.
 pub fn write_plan(inst: &Instance, plan: &Plan, lower_bound: Option<Cost>) -> String {
+    write_plan_record(
+        inst,
+        plan,
+        &PlanRecord {
+            lower_bound,
+            ..PlanRecord::default()
+        },
+    )
+}
+
+fn json_str<T: Serialize + ?Sized>(v: &T) -> String {
+    // Strings, numbers, options and plain structs always serialize.
+    serde_json::to_string(v).expect("plain values serialize")
+}
+
+/// Writes a plan as JSON with everything `record` holds: route lengths and
+/// the run settings besides the lower bound; every route's time is written.
+pub fn write_plan_record(inst: &Instance, plan: &Plan, record: &PlanRecord) -> String {
     let net = inst.network();
+    let u = inst.units();
     let mut s = String::new();
     s.push_str("{\n  \"format\": \"arcwright-plan\",\n  \"version\": 1,\n");
     s.push_str(&format!(
-        "  \"instance\": {},\n  \"cost\": {},\n  \"lower_bound\": {},\n  \"routes\": [",
-        serde_json::to_string(&inst.name).expect("string"),
+        "  \"instance\": {},\n  \"units\": {{\"cost\": {}, \"length\": {}, \"time\": {}, \"load\": {}}},\n",
+        json_str(&inst.name),
+        json_str(&u.cost),
+        json_str(&u.length),
+        json_str(&u.time),
+        json_str(&u.load)
+    ));
+    if let Some(run) = &record.run {
+        s.push_str(&format!("  \"run\": {},\n", json_str(run)));
+    }
+    s.push_str(&format!(
+        "  \"cost\": {},\n  \"lower_bound\": {},\n  \"routes\": [",
         plan.cost,
-        lower_bound.map_or("null".to_string(), |b| b.to_string())
+        json_str(&record.lower_bound)
     ));
     for (ri, r) in plan.routes.iter().enumerate() {
         s.push_str(if ri == 0 { "\n" } else { ",\n" });
+        let length = match record.route_lengths.as_ref().and_then(|l| l.get(ri)) {
+            Some(l) => format!("\n      \"length\": {l},"),
+            None => String::new(),
+        };
         s.push_str(&format!(
-            "    {{\n      \"load\": {},\n      \"cost\": {},\n      \"services\": [",
-            r.load, r.cost
+            "    {{\n      \"load\": {},\n      \"cost\": {},\n      \"time\": {},{length}\n      \"services\": [",
+            r.load, r.cost, r.time
         ));
         for (k, v) in r.visits.iter().enumerate() {
             let t = &inst.tasks()[v.task];
@@ -99,15 +177,59 @@ struct FileService {
 struct FileRoute {
     load: Option<Cost>,
     cost: Option<Cost>,
+    time: Option<Cost>,
     services: Vec<FileService>,
 }
 
 #[derive(Deserialize)]
 struct FilePlan {
     format: Option<String>,
+    version: Option<u32>,
     instance: String,
     cost: Option<Cost>,
+    lower_bound: Option<Cost>,
     routes: Vec<FileRoute>,
+}
+
+/// The plan format version written and read.
+pub const PLAN_VERSION: u32 = 1;
+
+/// What a plan file claims besides its routes, for checking it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct PlanClaims {
+    /// The format version (1 when the file does not say).
+    pub version: u32,
+    /// The stated total cost.
+    pub cost: Option<Cost>,
+    /// The stated lower bound.
+    pub lower_bound: Option<Cost>,
+}
+
+/// Reads what a plan file claims besides its routes (version, cost, lower
+/// bound), for [`read_plan_as_written`] callers that check a file.
+///
+/// # Errors
+///
+/// JSON syntax or schema errors, as [`read_plan_as_written`].
+pub fn read_plan_claims(text: &str, file: &str) -> Result<PlanClaims> {
+    let fp = parse_json(text, file)?;
+    Ok(PlanClaims {
+        version: fp.version.unwrap_or(PLAN_VERSION),
+        cost: fp.cost,
+        lower_bound: fp.lower_bound,
+    })
+}
+
+fn parse_json(text: &str, file: &str) -> Result<FilePlan> {
+    serde_json::from_str(text).map_err(|e| {
+        Error::parse(
+            file,
+            Some(e.line()),
+            ParseProblem::Json {
+                message: format!("column {}: {e}", e.column()),
+            },
+        )
+    })
 }
 
 /// Line of the `k`-th (0-based) `"link"` key in the text: the line of the
@@ -143,15 +265,17 @@ fn parse(
     inst: &Instance,
     strict: bool,
 ) -> Result<(FilePlan, Vec<Vec<Visit>>)> {
-    let fp: FilePlan = serde_json::from_str(text).map_err(|e| {
-        Error::parse(
+    let fp = parse_json(text, file)?;
+    if let Some(v) = fp.version.filter(|&v| v != PLAN_VERSION) {
+        return Err(Error::parse(
             file,
-            Some(e.line()),
-            ParseProblem::Json {
-                message: format!("column {}: {e}", e.column()),
+            super::scenario::line_of_key(text, "version"),
+            ParseProblem::Unexpected {
+                expected: "plan format version 1 (the version this program reads)",
+                found: format!("version {v}"),
             },
-        )
-    })?;
+        ));
+    }
     if let Some(f) = &fp.format {
         if f != "arcwright-plan" {
             return Err(Error::parse(
@@ -246,7 +370,11 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         }
         let pr = &plan.routes[pi];
         pi += 1;
-        for (what, stated, computed) in [("load", r.load, pr.load), ("cost", r.cost, pr.cost)] {
+        for (what, stated, computed) in [
+            ("load", r.load, pr.load),
+            ("cost", r.cost, pr.cost),
+            ("time", r.time, pr.time),
+        ] {
             if let Some(st) = stated {
                 if st != computed {
                     return Err(Error::parse(
@@ -275,6 +403,16 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
             ));
         }
     }
+    if let Some(b) = fp.lower_bound.filter(|&b| b > plan.cost || b < 0) {
+        return Err(Error::parse(
+            file,
+            super::scenario::line_of_key(text, "lower_bound"),
+            ParseProblem::Unexpected {
+                expected: "a lower bound between 0 and the plan's own cost",
+                found: format!("lower_bound {b} for a plan costing {}", plan.cost),
+            },
+        ));
+    }
     Ok(plan)
 }
 
@@ -296,8 +434,9 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
 /// - each route's `load` and `cost` and the plan's `cost` are the stated
 ///   ones; a figure the file leaves out is recomputed (with `dist`), so that
 ///   only stated figures can be found wrong;
-/// - the file has no route times: [`Route::time`] is recomputed with `dist`
-///   (service time plus driving time along the least-cost legs).
+/// - a route's `time` is the stated one; a file without route times gets
+///   [`Route::time`] recomputed with `dist` (service time plus driving time
+///   along the least-cost legs).
 pub fn read_plan_as_written(
     text: &str,
     file: &str,
@@ -317,7 +456,7 @@ pub fn read_plan_as_written(
                 visits,
                 load: r.load.unwrap_or(load),
                 cost: r.cost.unwrap_or(cost),
-                time,
+                time: r.time.unwrap_or(time),
             }
         })
         .collect();

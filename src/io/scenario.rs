@@ -7,6 +7,8 @@
 //! | `format` | string | always `"arcwright-scenario"` |
 //! | `version` | integer | always `1` |
 //! | `name` | string, optional | a name for reports (default `""`) |
+//! | `units` | object, optional | `{ "cost": string?, "length": string?, "time": string?, "load": string? }`: the unit of every cost, of street lengths, of times and the shift limit, of demands and the capacity (1 to 24 characters each; see [`crate::model::Units`]). Undeclared units are shown as `cost units`, ... |
+//! | `coordinates` | object, optional | `{ "system": "wgs84" }` (`x` longitude, `y` latitude, degrees) or `{ "system": "planar", "origin": { "lon": number, "lat": number }? }` (metres east and north; the origin places the point (0, 0) on the Earth); see [`crate::model::Coordinates`]. Absent: undeclared, never guessed |
 //! | `junctions` | array | `{ "id": integer, "x": number?, "y": number? }`; ids are any distinct non-negative integers (OSM node ids, say) |
 //! | `streets` | array | see below |
 //! | `yard` | integer | id of the junction the trucks leave from and return to (the depot); give `yard` or `yards` |
@@ -32,7 +34,9 @@
 //! before, with every feature off.
 //!
 //! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
-//! "drive_time": integer?, "name": string?, "service": {...}? }`:
+//! "length": integer?, "drive_time": integer?, "name": string?, "service":
+//! {...}? }` (`length`, in the `length` unit, is shown on the sheets and
+//! never decides the plan):
 //! `one_way` (default `false`) means it may only be driven from `from` to
 //! `to`; `cost` is paid each time it is driven without serving
 //! (deadheading); `drive_time` defaults to `cost`. A street with a `service`
@@ -44,10 +48,12 @@
 //! limit. Unknown fields are rejected, so a misspelt field is an error, not
 //! silently ignored.
 //!
-//! All costs, times and demands are exact integers in `0..=`[`MAX_NUMBER`].
-//! Coordinates are decimal numbers (any planar or lon/lat system); a
-//! coordinate that is not finite cannot be written to JSON and is written as
-//! absent.
+//! All costs, lengths, times and demands are exact integers in
+//! `0..=`[`MAX_NUMBER`]. Coordinates are decimal numbers, checked against the
+//! declared system when read ([`crate::model::Coordinates::check_point`]:
+//! finite, longitude within ±180° and latitude within ±90° for WGS 84, planar
+//! values within 40,000 km); an impossible one is a
+//! [`ParseProblem::Coordinate`] at its JSON path (`junctions[3].y`).
 //!
 //! ```
 //! use arcwright::io::scenario::{read_scenario, write_scenario};
@@ -94,8 +100,9 @@ use serde::{Deserialize, Serialize};
 use super::MAX_NUMBER;
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{
-    Balance, Cost, DumpSite, Element, Fleet, Hours, Instance, Junction, Link, ModelError, Network,
-    Operations, OperationsError, ServeDirection, ServiceSpec, TruckType, Yard,
+    Balance, Coordinates, Cost, DumpSite, Element, Fleet, Hours, Instance, Junction, Link,
+    ModelError, Network, Operations, OperationsError, ServeDirection, ServiceSpec, TruckType,
+    Units, Yard,
 };
 
 /// The value of the `format` field.
@@ -110,6 +117,10 @@ struct FileRec {
     version: u32,
     #[serde(default)]
     name: String,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    units: Option<UnitsRec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    coordinates: Option<CoordinatesRec>,
     junctions: Vec<JunctionRec>,
     streets: Vec<StreetRec>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -189,6 +200,41 @@ fn is_per_mille_one(v: &i64) -> bool {
     *v == 1000
 }
 
+#[derive(Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct UnitsRec {
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    cost: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    length: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    time: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    load: Option<String>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct CoordinatesRec {
+    system: SystemRec,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    origin: Option<OriginRec>,
+}
+
+#[derive(Serialize, Deserialize, Clone, Copy, PartialEq)]
+#[serde(rename_all = "lowercase")]
+enum SystemRec {
+    Wgs84,
+    Planar,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct OriginRec {
+    lon: f64,
+    lat: f64,
+}
+
 #[derive(Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 struct JunctionRec {
@@ -207,6 +253,8 @@ struct StreetRec {
     #[serde(default)]
     one_way: bool,
     cost: i64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    length: Option<i64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     drive_time: Option<i64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -265,6 +313,12 @@ fn path_string(path: &[Seg]) -> String {
         }
     }
     s
+}
+
+/// The line where the top-level `key` of a JSON object starts, in text
+/// that serde_json has already accepted.
+pub(crate) fn line_of_key(text: &str, key: &'static str) -> Option<usize> {
+    line_of(text, &[Seg::Key(key)])
 }
 
 /// Finds the line where the value at `path` starts, in text that serde_json
@@ -518,6 +572,9 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
         let from = lookup(p("from"), s.from)?;
         let to = lookup(p("to"), s.to)?;
         limit(p("cost"), "cost", s.cost)?;
+        if let Some(len) = s.length {
+            limit(p("length"), "length", len)?;
+        }
         if let Some(t) = s.drive_time {
             limit(p("drive_time"), "drive time", t)?;
         }
@@ -548,17 +605,104 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             time: s.drive_time,
             service,
             name: s.name.clone(),
+            length: s.length,
         });
     }
     let network = Network { junctions, links };
     let (fleet, depot, ops) = fleet_and_operations(&rec, &lookup, &at, &limit)?;
+    let units = read_units(rec.units.as_ref(), &at)?;
+    let system = read_system(rec.coordinates.as_ref(), &at)?;
     let inst = Instance::new(rec.name, network, fleet, depot).map_err(|m| {
         let path = model_error_path(&m);
         at(path, ParseProblem::Model(m))
     })?;
+    let inst = inst
+        .with_units(units)
+        .with_coordinates(system)
+        .map_err(|(j, e)| {
+            let axis = if matches!(e.axis, "x" | "longitude") {
+                "x"
+            } else {
+                "y"
+            };
+            at(
+                vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
+                ParseProblem::Coordinate(e),
+            )
+        })?;
     inst.with_operations(ops).map_err(|e| {
         let path = operations_error_path(&rec.yards, &rec.truck_types, &e);
         at(path, ParseProblem::Model(ModelError::Operations(e)))
+    })
+}
+
+/// The declared units, each checked ([`Units::valid_unit`]).
+fn read_units(
+    rec: Option<&UnitsRec>,
+    at: &impl Fn(Vec<Seg>, ParseProblem) -> Error,
+) -> Result<Units> {
+    let Some(u) = rec else {
+        return Ok(Units::default());
+    };
+    for (key, v) in [
+        ("cost", &u.cost),
+        ("length", &u.length),
+        ("time", &u.time),
+        ("load", &u.load),
+    ] {
+        if let Some(text) = v {
+            if !Units::valid_unit(text) {
+                return Err(at(
+                    vec![Seg::Key("units"), Seg::Key(key)],
+                    ParseProblem::Unexpected {
+                        expected: "a unit name of 1 to 24 characters, such as \"m\" or \"bins\"",
+                        found: text.clone(),
+                    },
+                ));
+            }
+        }
+    }
+    Ok(Units {
+        cost: u.cost.clone(),
+        length: u.length.clone(),
+        time: u.time.clone(),
+        load: u.load.clone(),
+    })
+}
+
+/// The declared coordinate system; the origin is checked as a WGS 84 point.
+fn read_system(
+    rec: Option<&CoordinatesRec>,
+    at: &impl Fn(Vec<Seg>, ParseProblem) -> Error,
+) -> Result<Coordinates> {
+    let Some(c) = rec else {
+        return Ok(Coordinates::Undeclared);
+    };
+    let origin = match (&c.origin, c.system) {
+        (None, _) => None,
+        (Some(_), SystemRec::Wgs84) => {
+            return Err(at(
+                vec![Seg::Key("coordinates"), Seg::Key("origin")],
+                ParseProblem::Unexpected {
+                    expected: "no origin for \"wgs84\" (an origin places \"planar\" metres)",
+                    found: "an origin".into(),
+                },
+            ))
+        }
+        (Some(o), SystemRec::Planar) => {
+            Coordinates::check_origin(o.lon, o.lat).map_err(|e| {
+                let key = if e.axis == "longitude" { "lon" } else { "lat" };
+                at(
+                    vec![Seg::Key("coordinates"), Seg::Key("origin"), Seg::Key(key)],
+                    ParseProblem::Coordinate(e),
+                )
+            })?;
+            Some((o.lon, o.lat))
+        }
+    };
+    Ok(match c.system {
+        SystemRec::Wgs84 => Coordinates::Wgs84,
+        SystemRec::Planar => Coordinates::Planar { origin },
     })
 }
 
@@ -817,6 +961,18 @@ pub fn write_scenario(inst: &Instance) -> String {
         format: FORMAT_TAG.to_string(),
         version: VERSION,
         name: inst.name.clone(),
+        units: units_rec(inst.units()),
+        coordinates: match inst.coordinates() {
+            Coordinates::Undeclared => None,
+            Coordinates::Wgs84 => Some(CoordinatesRec {
+                system: SystemRec::Wgs84,
+                origin: None,
+            }),
+            Coordinates::Planar { origin } => Some(CoordinatesRec {
+                system: SystemRec::Planar,
+                origin: origin.map(|(lon, lat)| OriginRec { lon, lat }),
+            }),
+        },
         junctions: net
             .junctions
             .iter()
@@ -834,6 +990,7 @@ pub fn write_scenario(inst: &Instance) -> String {
                 to: id(l.to),
                 one_way: l.oneway,
                 cost: l.cost,
+                length: l.length,
                 drive_time: l.time,
                 name: l.name.clone(),
                 service: l.service.as_ref().map(|s| ServiceRec {
@@ -901,6 +1058,15 @@ pub fn write_scenario(inst: &Instance) -> String {
     let mut s = serde_json::to_string_pretty(&rec).expect("scenario records always serialize");
     s.push('\n');
     s
+}
+
+fn units_rec(u: &Units) -> Option<UnitsRec> {
+    (*u != Units::default()).then(|| UnitsRec {
+        cost: u.cost.clone(),
+        length: u.length.clone(),
+        time: u.time.clone(),
+        load: u.load.clone(),
+    })
 }
 
 #[cfg(test)]

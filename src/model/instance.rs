@@ -2,7 +2,10 @@ use std::collections::VecDeque;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Cost, Fleet, Network, Operations, OperationsError, ServeDirection};
+use super::{
+    CoordError, Coordinates, Cost, Fleet, Network, Operations, OperationsError, ServeDirection,
+    Units,
+};
 
 /// Why a network, fleet and depot do not make a valid instance.
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
@@ -117,6 +120,8 @@ impl Task {
 pub struct Instance {
     /// A name for reports.
     pub name: String,
+    units: Units,
+    coordinates: Coordinates,
     network: Network,
     fleet: Fleet,
     depot: usize,
@@ -178,6 +183,7 @@ impl Instance {
             };
             neg("cost", l.cost)?;
             neg("time", l.time.unwrap_or(0))?;
+            neg("length", l.length.unwrap_or(0))?;
             if let Some(s) = &l.service {
                 neg("service cost", s.cost)?;
                 neg("service time", s.time.unwrap_or(0))?;
@@ -205,6 +211,8 @@ impl Instance {
         }
         let inst = Instance {
             name: name.into(),
+            units: Units::default(),
+            coordinates: Coordinates::Undeclared,
             network,
             fleet,
             depot,
@@ -302,6 +310,11 @@ impl Instance {
     /// that no longer fit give [`ModelError::Operations`].
     pub fn with_fleet(&self, fleet: Fleet) -> Result<Instance, ModelError> {
         let inst = Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)?;
+        let inst = Instance {
+            units: self.units.clone(),
+            coordinates: self.coordinates,
+            ..inst
+        };
         inst.with_operations(self.ops.clone())
             .map_err(ModelError::Operations)
     }
@@ -342,5 +355,39 @@ impl Instance {
         ops.validate(&self)?;
         self.ops = ops;
         Ok(self)
+    }
+
+    /// The units the scenario declares for its numbers.
+    pub fn units(&self) -> &Units {
+        &self.units
+    }
+
+    /// The instance with these units declared.
+    pub fn with_units(self, units: Units) -> Instance {
+        Instance { units, ..self }
+    }
+
+    /// The coordinate system of the junctions' `x` and `y`.
+    pub fn coordinates(&self) -> Coordinates {
+        self.coordinates
+    }
+
+    /// The instance with its junction coordinates declared to be in
+    /// `system`, after checking every junction's coordinates against it.
+    ///
+    /// # Errors
+    ///
+    /// The index of the first junction whose coordinates cannot be in
+    /// `system` (see [`Coordinates::check_point`]), with the reason.
+    pub fn with_coordinates(self, system: Coordinates) -> Result<Instance, (usize, CoordError)> {
+        for (i, j) in self.network.junctions.iter().enumerate() {
+            if let (Some(x), Some(y)) = (j.x, j.y) {
+                system.check_point(x, y).map_err(|e| (i, e))?;
+            }
+        }
+        Ok(Instance {
+            coordinates: system,
+            ..self
+        })
     }
 }

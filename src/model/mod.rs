@@ -13,17 +13,21 @@
 //!
 //! All costs, times and demands are exact integers ([`Cost`]).
 
+mod coords;
 mod fleet;
 mod instance;
 mod network;
 mod operations;
+mod units;
 
+pub use coords::{CoordError, Coordinates, Projection, EARTH_RADIUS_M};
 pub use fleet::Fleet;
 pub use instance::{Dir, Instance, ModelError, Task};
 pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec};
 pub use operations::{
     Balance, DumpSite, Element, Hours, Operations, OperationsError, TruckType, Yard,
 };
+pub use units::{Units, MAX_UNIT_LEN};
 
 /// Exact integer cost, time or demand.
 pub type Cost = i64;

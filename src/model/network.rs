@@ -8,7 +8,8 @@ pub struct Junction {
     /// The junction's number in the source data (1-based in the public sets,
     /// node ids for map data). Plans written to files use this number.
     pub id: u64,
-    /// Optional coordinates (any planar or lon/lat system; used for maps).
+    /// Optional coordinates, in the system the instance declares
+    /// ([`crate::model::Instance::coordinates`]); used for maps.
     pub x: Option<f64>,
     /// See `x`.
     pub y: Option<f64>,
@@ -38,7 +39,7 @@ pub struct ServiceSpec {
 }
 
 /// A street segment between two junctions.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
 pub struct Link {
     /// Index of the first junction in [`Network::junctions`].
     pub from: usize,
@@ -54,6 +55,9 @@ pub struct Link {
     pub service: Option<ServiceSpec>,
     /// Street name, for route sheets.
     pub name: Option<String>,
+    /// Length of the street, in the scenario's length unit, when known
+    /// (reports only; costs decide the plan).
+    pub length: Option<Cost>,
 }
 
 impl Link {
@@ -109,6 +113,7 @@ impl Network {
                 direction: ServeDirection::Either,
             }),
             name: None,
+            length: None,
         })
     }
 
@@ -122,6 +127,7 @@ impl Network {
             time: None,
             service: None,
             name: None,
+            length: None,
         })
     }
 
@@ -133,6 +139,11 @@ impl Network {
     /// True when there are no junctions.
     pub fn is_empty(&self) -> bool {
         self.junctions.is_empty()
+    }
+
+    /// Whether any link has a length.
+    pub fn has_lengths(&self) -> bool {
+        self.links.iter().any(|l| l.length.is_some())
     }
 
     /// Whether any link carries an explicit time (then times may differ from costs).

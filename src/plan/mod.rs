@@ -104,6 +104,23 @@ pub struct Step {
 }
 
 impl Plan {
+    /// The same plan with every self-loop task (a street whose two ends are
+    /// one junction) served [`Dir::Forward`]. Both directions of a self-loop
+    /// are the same drive, with the same load, cost and time, and a plan file
+    /// (`from`, `to` junctions) cannot tell them apart: a plan written after
+    /// this reads back equal.
+    pub fn self_loops_forward(mut self, inst: &Instance) -> Plan {
+        for r in &mut self.routes {
+            for v in &mut r.visits {
+                let t = &inst.tasks()[v.task];
+                if t.tail == t.head {
+                    v.dir = Dir::Forward;
+                }
+            }
+        }
+        self
+    }
+
     /// Builds a plan from visit sequences, dropping empty ones.
     pub fn from_visits(inst: &Instance, dist: &Distances, routes: Vec<Vec<Visit>>) -> Plan {
         let routes: Vec<Route> = routes

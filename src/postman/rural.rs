@@ -283,6 +283,7 @@ mod tests {
             time: None,
             service: None,
             name: None,
+            length: None,
         });
         let inst = Instance::new("oneway", net, Fleet::with_capacity(5), 0).unwrap();
         assert!(matches!(

@@ -10,19 +10,25 @@
 //! - [`svg`]: a map of the network and the routes;
 //! - [`summary_table`]: a plain-text table of the routes and totals.
 //!
-//! Every sheet and the summary start with [`CAUTIONS`].
+//! The Markdown sheets and the summary carry the [`CAUTIONS`]; the CSV sheets
+//! are plain tables (header on line 1) for spreadsheets. Every number is
+//! labelled with the unit the scenario declares ([`crate::model::Units`]),
+//! and [`describe`] puts the checker's findings in the sheets' words.
 
 pub mod geo;
 pub mod sheets;
 pub mod svg;
+mod violations;
+
+pub use violations::{describe, street_ref};
 
 use std::fmt::Write as _;
 use std::time::Duration;
 
-use crate::model::{Cost, Instance};
+use crate::model::{Coordinates, Cost, Instance};
 use crate::plan::Plan;
 
-/// Printed at the head of every route sheet and summary.
+/// Printed in the Markdown route sheets and the summary.
 pub const CAUTIONS: [&str; 4] = [
     "This plan is advice for a licensed transport planner, not an order: check it before any truck leaves the yard.",
     "Check height, weight and width limits and turn restrictions on every street; the street data may not record them.",
@@ -30,33 +36,19 @@ pub const CAUTIONS: [&str; 4] = [
     "Follow local codes (school zones, quiet hours, access times, road works) and the instructions of the road authority.",
 ];
 
-/// The street name of link `link`, or `link N` when it has none (`N` is the
-/// 0-based index in the scenario's street list, as in plan files and in the
-/// checker's messages).
+/// The street name of link `link`, or, when it has none, a label naming its
+/// junctions and its place in the scenario's street list (the `link` of plan
+/// files): `street 3–7 (#8)`.
 pub fn street_label(inst: &Instance, link: usize) -> String {
-    match &inst.network().links[link].name {
+    let net = inst.network();
+    let l = &net.links[link];
+    match &l.name {
         Some(n) if !n.trim().is_empty() => n.clone(),
-        _ => format!("link {link}"),
+        _ => format!(
+            "street {}–{} (#{link})",
+            net.junctions[l.from].id, net.junctions[l.to].id
+        ),
     }
-}
-
-/// A time as it is shown for `inst`: the number itself, followed by
-/// `h:mm:ss` (reading it as seconds) when the scenario gives times of its own
-/// (see [`Instance::has_times`]); the research files have none, and their
-/// "times" are just costs.
-pub fn show_time(inst: &Instance, t: Cost) -> String {
-    if inst.has_times() {
-        format!("{t} ({})", fmt_time(t))
-    } else {
-        t.to_string()
-    }
-}
-
-/// A time in seconds as `h:mm:ss`.
-pub fn fmt_time(secs: Cost) -> String {
-    let sign = if secs < 0 { "-" } else { "" };
-    let s = secs.unsigned_abs();
-    format!("{sign}{}:{:02}:{:02}", s / 3600, s / 60 % 60, s % 60)
 }
 
 /// One output file: a name (no folder) and its contents.
@@ -81,10 +73,17 @@ pub fn bundle(
 ) -> Vec<OutputFile> {
     // The walks are expanded once (one shortest-path search per deadhead leg).
     let rows = sheets::all_rows(inst, dist, plan);
+    let mut extras = extras.clone();
+    if extras.route_lengths.is_none() && sheets::shows_lengths(inst) {
+        extras.route_lengths = rows
+            .iter()
+            .map(|r| r.last().map_or(Some(0), |x| x.length_so_far))
+            .collect();
+    }
     let mut out = vec![
         OutputFile {
             name: "summary.txt".into(),
-            contents: summary_table(inst, plan, extras),
+            contents: summary_table(inst, plan, &extras),
         },
         OutputFile {
             name: "sheets.md".into(),
@@ -95,10 +94,10 @@ pub fn bundle(
     for (r, route_rows) in rows.iter().enumerate() {
         out.push(OutputFile {
             name: format!("truck-{:0width$}.csv", r + 1),
-            contents: sheets::csv_of_rows(route_rows),
+            contents: sheets::csv_of_rows(inst, route_rows),
         });
     }
-    if let Some(g) = geo::feature_collection_of_rows(inst, &rows, None) {
+    if let Some(g) = geo::feature_collection_of_rows(inst, &rows) {
         out.push(OutputFile {
             name: "plan.geojson".into(),
             contents: g,
@@ -126,59 +125,109 @@ pub struct SummaryExtras {
     pub iterations: Option<u64>,
     /// Whether the search was stopped early (Ctrl-C).
     pub stopped_early: bool,
+    /// Length driven by each route ([`route_lengths`]); the summary shows a
+    /// length column only when these are given. [`bundle`] fills them in
+    /// from the sheets when the scenario has lengths.
+    pub route_lengths: Option<Vec<Cost>>,
 }
 
-/// The plan as a plain-text table: one line per route (services, load, cost,
-/// service and deadhead cost, time) and a total line, then the bound, gap,
-/// run time and the cautions.
+/// The plan as a plain-text table: one line per truck (streets served, load,
+/// cost, service and deadhead cost, and length and time where the sheets
+/// show them), a total line, the units, the fleet, the bound, gap, run time,
+/// what was not drawn and why, and the cautions.
 pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> String {
     let fleet = inst.fleet();
+    let u = inst.units();
+    let lens = extras
+        .route_lengths
+        .as_ref()
+        .filter(|l| l.len() == plan.routes.len());
+    let (lengths, times) = (lens.is_some(), sheets::shows_times(inst));
     let mut out = String::new();
     let _ = writeln!(out, "Plan for {}", inst.name);
-    let _ = writeln!(
-        out,
-        "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>18}",
-        "truck", "streets", "load", "cost", "service", "deadhead", "time"
+    let mut head = format!(
+        "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}",
+        "truck", "streets", "load", "cost", "service", "deadhead"
     );
-    let (mut total_service, mut total_time, mut total_load) = (0, 0, 0);
+    if lengths {
+        let _ = write!(head, "  {:>10}", "length");
+    }
+    if times {
+        let _ = write!(head, "  {:>20}", "time");
+    }
+    let _ = writeln!(out, "{head}");
+    let (mut total_service, mut total_time, mut total_load, mut total_len) = (0, 0, 0, 0);
+    let line = |out: &mut String, cells: [String; 6], len: Cost, time: Cost| {
+        let mut l = format!(
+            "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}",
+            cells[0], cells[1], cells[2], cells[3], cells[4], cells[5]
+        );
+        if lengths {
+            let _ = write!(l, "  {len:>10}");
+        }
+        if times {
+            let t = match u.clock(time) {
+                Some(c) => format!("{time} ({c})"),
+                None => time.to_string(),
+            };
+            let _ = write!(l, "  {t:>20}");
+        }
+        let _ = writeln!(out, "{l}");
+    };
     for (r, route) in plan.routes.iter().enumerate() {
         let service: Cost = route.visits.iter().map(|v| inst.tasks()[v.task].cost).sum();
+        let len = lens.map_or(0, |l| l[r]);
         total_service += service;
         total_time += route.time;
         total_load += route.load;
-        let _ = writeln!(
-            out,
-            "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>18}",
-            r + 1,
-            route.visits.len(),
-            format!("{}/{}", route.load, fleet.capacity),
-            route.cost,
-            service,
-            route.cost - service,
-            show_time(inst, route.time)
+        total_len += len;
+        line(
+            &mut out,
+            [
+                (r + 1).to_string(),
+                route.visits.len().to_string(),
+                format!("{}/{}", route.load, fleet.capacity),
+                route.cost.to_string(),
+                service.to_string(),
+                (route.cost - service).to_string(),
+            ],
+            len,
+            route.time,
         );
     }
-    let _ = writeln!(
-        out,
-        "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}  {:>18}",
-        "total",
-        plan.visits(),
-        total_load,
-        plan.cost,
-        total_service,
-        plan.cost - total_service,
-        show_time(inst, total_time)
+    line(
+        &mut out,
+        [
+            "total".into(),
+            plan.visits().to_string(),
+            total_load.to_string(),
+            plan.cost.to_string(),
+            total_service.to_string(),
+            (plan.cost - total_service).to_string(),
+        ],
+        total_len,
+        total_time,
     );
-    let mut limits = format!("capacity {}", fleet.capacity);
+    summary_footer(&mut out, inst, extras);
+    out
+}
+
+/// The lines under the summary table: units, fleet, bound and gap, run
+/// time, what was not drawn and why, and the cautions.
+fn summary_footer(out: &mut String, inst: &Instance, extras: &SummaryExtras) {
+    let fleet = inst.fleet();
+    let u = inst.units();
+    let _ = writeln!(out, "{}", sheets::units_note(inst));
+    let mut limits = format!("capacity {}", u.load_text(fleet.capacity));
     if let Some(s) = fleet.shift_limit {
-        let _ = write!(limits, ", shift limit {}", show_time(inst, s));
+        let _ = write!(limits, ", shift limit {}", u.time_text(s));
     }
     if let Some(m) = fleet.max_vehicles {
         let _ = write!(limits, ", at most {m} trucks");
     }
     let _ = writeln!(out, "Fleet: {limits}.");
     if let Some((v, by)) = &extras.lower_bound {
-        let _ = write!(out, "Lower bound: {v} ({by})");
+        let _ = write!(out, "Lower bound: {} ({by})", u.cost_text(*v));
         if let Some(g) = extras.gap_percent {
             let _ = write!(out, ", gap {g:.2}%");
         }
@@ -194,23 +243,68 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
         }
         out.push_str(".\n");
     }
+    if let Some(why) = maps_note(inst) {
+        let _ = writeln!(out, "{why}");
+    }
     out.push_str("\nCautions:\n");
     for c in CAUTIONS {
         let _ = writeln!(out, " - {c}");
     }
-    out
+}
+
+/// The length each route drives (service and deadhead, along its explicit
+/// walk), when every street of the scenario has a length ([`sheets::shows_lengths`]).
+pub fn route_lengths(
+    inst: &Instance,
+    dist: &crate::paths::Distances,
+    plan: &Plan,
+) -> Option<Vec<Cost>> {
+    if !sheets::shows_lengths(inst) {
+        return None;
+    }
+    plan.routes
+        .iter()
+        .map(|r| {
+            crate::plan::walk(inst, dist, &r.visits)
+                .iter()
+                .map(|s| inst.network().links[s.link].length)
+                .sum::<Option<Cost>>()
+        })
+        .collect()
+}
+
+/// Why a map or GeoJSON is not written, when it is not.
+pub fn maps_note(inst: &Instance) -> Option<String> {
+    if geo::points(inst).is_none() {
+        let js = &inst.network().junctions;
+        let missing = js.iter().filter(|j| j.x.is_none() || j.y.is_none()).count();
+        return Some(if missing == js.len() {
+            "No map and no GeoJSON: the scenario gives no junction coordinates.".into()
+        } else {
+            format!(
+                "No map and no GeoJSON: {missing} of {} junctions have no coordinates.",
+                js.len()
+            )
+        });
+    }
+    match inst.coordinates() {
+        Coordinates::Undeclared => Some(
+            "Map drawn from the coordinates as plain numbers (the scenario does not declare its \
+             coordinate system: add \"coordinates\"); no GeoJSON, no scale bar."
+                .into(),
+        ),
+        Coordinates::Planar { origin: None } => Some(
+            "No GeoJSON: the scenario's planar coordinates have no origin, so they cannot be \
+             placed on a world map (add \"origin\": {\"lon\": .., \"lat\": ..})."
+                .into(),
+        ),
+        _ => None,
+    }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn times_read_as_hours_minutes_seconds() {
-        assert_eq!(fmt_time(0), "0:00:00");
-        assert_eq!(fmt_time(3661), "1:01:01");
-        assert_eq!(fmt_time(36_000 + 59), "10:00:59");
-    }
 
     #[test]
     fn escaping_keeps_xml_and_csv_intact() {

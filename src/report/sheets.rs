@@ -1,19 +1,26 @@
 //! Route sheets: the explicit walk of every route, street by street.
+//!
+//! Each step shows what it is: its **cost** (the figure the plan minimises,
+//! in the scenario's cost unit), and, where the scenario has them, the
+//! street's **length** (when every street has a `length`) and the **time**
+//! taken (when the scenario declares a time unit or gives times that differ
+//! from costs; the research files have neither, and their sheets have no
+//! time column that would only repeat the cost).
 
 use std::fmt::Write as _;
 
-use crate::model::{Cost, Instance};
+use crate::model::{Cost, Instance, Units};
 use crate::paths::Distances;
 use crate::plan::{walk, Plan};
 
-use super::{show_time, street_label, CAUTIONS};
+use super::{street_label, CAUTIONS};
 
 /// What a truck does on one step of its walk.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Action {
     /// Drive without serving, from the yard to the first service.
     FromYard,
-    /// Serve the link.
+    /// Serve the street.
     Serve,
     /// Drive without serving between two services.
     Deadhead,
@@ -45,7 +52,7 @@ pub struct SheetRow {
     pub step: usize,
     /// Link index in the network.
     pub link: usize,
-    /// Street name, or `link N` (see [`street_label`]) when the link has none.
+    /// Street name, or a label naming its junctions (see [`street_label`]).
     pub street: String,
     /// Junction id (as in the source data) where the step starts.
     pub from: u64,
@@ -55,40 +62,48 @@ pub struct SheetRow {
     pub ends: (usize, usize),
     /// What the truck does.
     pub action: Action,
-    /// Cost of the step (the link's length in the demo town).
-    pub distance: Cost,
+    /// Cost of the step: the service cost when serving, the street's cost
+    /// when deadheading.
+    pub cost: Cost,
+    /// Length of the street, when the scenario gives it.
+    pub length: Option<Cost>,
+    /// Time of the step: service time when serving, drive time otherwise.
+    pub step_time: Cost,
     /// Load carried after the step.
     pub load: Cost,
-    /// Cost driven so far on this route, after the step.
-    pub cumulative_distance: Cost,
+    /// Cost so far on this route, after the step.
+    pub cost_so_far: Cost,
+    /// Length driven so far, when every street driven so far has a length.
+    pub length_so_far: Option<Cost>,
     /// Time used so far on this route, after the step.
     pub time: Cost,
 }
 
 /// The rows of route `r`'s sheet: the explicit walk from [`walk`], with
-/// running totals. The last row's `cumulative_distance` is the route's cost
-/// and its `time` the route's time, when the plan's figures are right.
+/// running totals. The last row's `cost_so_far` is the route's cost and its
+/// `time` the route's time, when the plan's figures are right.
 pub fn route_rows(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> Vec<SheetRow> {
     let steps = walk(inst, dist, &plan.routes[r].visits);
     let first_serve = steps.iter().position(|s| s.serve).unwrap_or(steps.len());
     let last_serve = steps.iter().rposition(|s| s.serve).unwrap_or(0);
     let net = inst.network();
     let task_of_link = task_index(inst);
-    let (mut load, mut cost, mut time) = (0, 0, 0);
+    let (mut load, mut cost, mut time, mut length) = (0, 0, 0, Some(0));
     steps
         .iter()
         .enumerate()
         .map(|(i, s)| {
             let link = &net.links[s.link];
-            let (distance, dt) = if s.serve {
+            let (step_cost, dt) = if s.serve {
                 let t = &inst.tasks()[task_of_link[s.link].expect("served links are tasks")];
                 load += t.demand;
                 (t.cost, t.time)
             } else {
                 (link.cost, link.drive_time())
             };
-            cost += distance;
+            cost += step_cost;
             time += dt;
+            length = length.zip(link.length).map(|(a, b)| a + b);
             let action = if s.serve {
                 Action::Serve
             } else if i < first_serve {
@@ -106,9 +121,12 @@ pub fn route_rows(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> V
                 to: net.junctions[s.to].id,
                 ends: (s.from, s.to),
                 action,
-                distance,
+                cost: step_cost,
+                length: link.length,
+                step_time: dt,
                 load,
-                cumulative_distance: cost,
+                cost_so_far: cost,
+                length_so_far: length,
                 time,
             }
         })
@@ -123,21 +141,29 @@ pub(crate) fn task_index(inst: &Instance) -> Vec<Option<usize>> {
     of
 }
 
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
+/// Whether the sheets show lengths: every street of the scenario has one.
+pub fn shows_lengths(inst: &Instance) -> bool {
+    let links = &inst.network().links;
+    !links.is_empty() && links.iter().all(|l| l.length.is_some())
 }
 
-/// Route `r`'s sheet as CSV (RFC 4180 quoting), one row per step, with the
-/// columns `step, street, link` (0-based index in the scenario's street
-/// list), `from_junction, to_junction` (junction ids), `action, distance,
-/// load_after, distance_after, time_after`. The cautions come first as `#`
-/// comment lines; spreadsheet programs show them as plain text rows.
+/// Whether the sheets show times: the scenario declares a time unit, or
+/// gives times that differ from the costs.
+pub fn shows_times(inst: &Instance) -> bool {
+    inst.units().time.is_some() || inst.has_times()
+}
+
+/// Route `r`'s sheet as plain RFC 4180 CSV (written with the `csv` crate):
+/// the header on line 1, then one row per step. Columns: `step`, `street`,
+/// `link` (0-based index in the scenario's street list, as in plan files),
+/// `from_junction`, `to_junction` (junction ids), `action`, `cost (U)`,
+/// then `length (U)` and `time (U)` when the scenario has them
+/// ([`shows_lengths`], [`shows_times`]), `load_after (U)`,
+/// `cost_so_far (U)`, and `length_so_far (U)`, `time_so_far (U)` likewise;
+/// `U` is the unit the scenario declares, or `cost units`, `load units`...
+/// The cautions are in the summary and the Markdown sheets.
 pub fn route_csv(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> String {
-    csv_of_rows(&route_rows(inst, dist, plan, r))
+    csv_of_rows(inst, &route_rows(inst, dist, plan, r))
 }
 
 /// The rows of every route ([`route_rows`]), computed once for all outputs.
@@ -148,29 +174,66 @@ pub fn all_rows(inst: &Instance, dist: &Distances, plan: &Plan) -> Vec<Vec<Sheet
 }
 
 /// [`route_csv`] from rows already computed.
-pub fn csv_of_rows(rows: &[SheetRow]) -> String {
-    let mut out = String::new();
-    for c in CAUTIONS {
-        let _ = writeln!(out, "# {c}");
+pub fn csv_of_rows(inst: &Instance, rows: &[SheetRow]) -> String {
+    let u = inst.units();
+    let (lengths, times) = (shows_lengths(inst), shows_times(inst));
+    let with = |name: &str, unit: String| format!("{name} ({unit})");
+    let mut head: Vec<String> = [
+        "step",
+        "street",
+        "link",
+        "from_junction",
+        "to_junction",
+        "action",
+    ]
+    .map(String::from)
+    .to_vec();
+    head.push(with("cost", u.cost_label()));
+    if lengths {
+        head.push(with("length", u.length_label()));
     }
-    out.push_str("step,street,link,from_junction,to_junction,action,distance,load_after,distance_after,time_after\n");
-    for row in rows {
-        let _ = writeln!(
-            out,
-            "{},{},{},{},{},{},{},{},{},{}",
-            row.step,
-            csv_field(&row.street),
-            row.link,
-            row.from,
-            row.to,
-            row.action.label(),
-            row.distance,
-            row.load,
-            row.cumulative_distance,
-            row.time
-        );
+    if times {
+        head.push(with("time", u.time_label()));
     }
-    out
+    head.push(with("load_after", u.load_label()));
+    head.push(with("cost_so_far", u.cost_label()));
+    if lengths {
+        head.push(with("length_so_far", u.length_label()));
+    }
+    if times {
+        head.push(with("time_so_far", u.time_label()));
+    }
+    let opt = |v: Option<Cost>| v.map_or(String::new(), |x| x.to_string());
+    let mut w = csv::Writer::from_writer(Vec::new());
+    // Writing to memory cannot fail; a failure would be a bug here.
+    w.write_record(&head).expect("CSV to memory");
+    for x in rows {
+        let mut rec = vec![
+            x.step.to_string(),
+            x.street.clone(),
+            x.link.to_string(),
+            x.from.to_string(),
+            x.to.to_string(),
+            x.action.label().to_string(),
+            x.cost.to_string(),
+        ];
+        if lengths {
+            rec.push(opt(x.length));
+        }
+        if times {
+            rec.push(x.step_time.to_string());
+        }
+        rec.push(x.load.to_string());
+        rec.push(x.cost_so_far.to_string());
+        if lengths {
+            rec.push(opt(x.length_so_far));
+        }
+        if times {
+            rec.push(x.time.to_string());
+        }
+        w.write_record(&rec).expect("CSV to memory");
+    }
+    String::from_utf8(w.into_inner().expect("CSV to memory")).expect("UTF-8 fields give UTF-8")
 }
 
 fn md_cell(s: &str) -> String {
@@ -182,8 +245,35 @@ pub fn markdown(inst: &Instance, dist: &Distances, plan: &Plan) -> String {
     markdown_of_rows(inst, plan, &all_rows(inst, dist, plan))
 }
 
+/// The sentence that says in which units a scenario's numbers are.
+pub fn units_note(inst: &Instance) -> String {
+    let u = inst.units();
+    let mut parts = vec![format!("costs in {}", u.cost_label())];
+    if shows_lengths(inst) {
+        parts.push(format!("lengths in {}", u.length_label()));
+    }
+    if shows_times(inst) {
+        parts.push(format!("times in {}", u.time_label()));
+    }
+    parts.push(format!("loads in {}", u.load_label()));
+    let declared = [&u.cost, &u.length, &u.time, &u.load]
+        .iter()
+        .any(|x| x.is_some());
+    format!(
+        "Units: {}{}.",
+        parts.join(", "),
+        if declared {
+            ""
+        } else {
+            " (the scenario declares no units)"
+        }
+    )
+}
+
 /// [`markdown`] from the rows of every route ([`all_rows`]).
 pub fn markdown_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> String {
+    let u = inst.units();
+    let (lengths, times) = (shows_lengths(inst), shows_times(inst));
     let mut out = String::new();
     let _ = writeln!(out, "# Route sheets: {}\n", md_cell(&inst.name));
     out.push_str("> **Read before driving.**\n");
@@ -194,42 +284,106 @@ pub fn markdown_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> 
     let yard = inst.network().junctions[inst.depot()].id;
     let _ = writeln!(
         out,
-        "{} route(s), total distance {}, yard at junction {}. Distances are in the \
-         scenario's cost unit (metres for the demo town), times in its time unit \
-         (seconds for the demo town, where h:mm:ss follows).\n",
+        "{} truck(s), total cost {}, yard at junction {}. {}\n",
         plan.routes.len(),
-        plan.cost,
-        yard
+        u.cost_text(plan.cost),
+        yard,
+        units_note(inst)
     );
+    let (head, align) = md_header(inst);
     for (r, (route, rows)) in plan.routes.iter().zip(all).enumerate() {
         let served = rows.iter().filter(|x| x.action == Action::Serve).count();
         let _ = writeln!(out, "## Truck {}\n", r + 1);
-        let _ = writeln!(
-            out,
-            "{} streets served, load {}, distance {}, time {}.\n",
+        let mut line = format!(
+            "{} streets served, load {}, cost {}",
             served,
-            route.load,
-            route.cost,
-            show_time(inst, route.time)
+            u.load_text(route.load),
+            u.cost_text(route.cost)
         );
-        out.push_str("| step | street | from → to | action | distance | load | distance so far | time so far |\n");
-        out.push_str("|---:|---|---|---|---:|---:|---:|---:|\n");
+        if let Some(len) = lengths
+            .then(|| rows.last().and_then(|x| x.length_so_far))
+            .flatten()
+        {
+            let _ = write!(line, ", length {}", u.length_text(len));
+        }
+        if times {
+            let _ = write!(line, ", time {}", u.time_text(route.time));
+        }
+        let _ = writeln!(out, "{line}.\n");
+        let _ = writeln!(out, "{head}\n{align}");
         for x in rows {
-            let _ = writeln!(
-                out,
-                "| {} | {} | {} → {} | {} | {} | {} | {} | {} |",
-                x.step,
-                md_cell(&x.street),
-                x.from,
-                x.to,
-                x.action.label(),
-                x.distance,
-                x.load,
-                x.cumulative_distance,
-                show_time(inst, x.time)
-            );
+            let _ = writeln!(out, "{}", md_row(u, lengths, times, x));
         }
         out.push('\n');
     }
     out
+}
+
+/// The header and alignment rows of a Markdown sheet table.
+fn md_header(inst: &Instance) -> (String, String) {
+    let u = inst.units();
+    let (lengths, times) = (shows_lengths(inst), shows_times(inst));
+    let mut head = format!(
+        "| step | street | from → to | action | cost ({}) |",
+        u.cost_label()
+    );
+    let mut align = String::from("|---:|---|---|---|---:|");
+    if lengths {
+        let _ = write!(head, " length ({}) |", u.length_label());
+        align.push_str("---:|");
+    }
+    if times {
+        let _ = write!(head, " time ({}) |", u.time_label());
+        align.push_str("---:|");
+    }
+    let _ = write!(head, " load ({}) | cost so far |", u.load_label());
+    align.push_str("---:|---:|");
+    if lengths {
+        head.push_str(" length so far |");
+        align.push_str("---:|");
+    }
+    if times {
+        head.push_str(" time so far |");
+        align.push_str("---:|");
+    }
+    (head, align)
+}
+
+/// One step as a row of a Markdown sheet table (columns of [`md_header`]).
+fn md_row(u: &Units, lengths: bool, times: bool, x: &SheetRow) -> String {
+    let mut cells = format!(
+        "| {} | {} | {} → {} | {} | {} |",
+        x.step,
+        md_cell(&x.street),
+        x.from,
+        x.to,
+        x.action.label(),
+        x.cost
+    );
+    if lengths {
+        let _ = write!(
+            cells,
+            " {} |",
+            x.length.map_or(String::new(), |v| v.to_string())
+        );
+    }
+    if times {
+        let _ = write!(cells, " {} |", x.step_time);
+    }
+    let _ = write!(cells, " {} | {} |", x.load, x.cost_so_far);
+    if lengths {
+        let _ = write!(
+            cells,
+            " {} |",
+            x.length_so_far.map_or(String::new(), |v| v.to_string())
+        );
+    }
+    if times {
+        let t = match u.clock(x.time) {
+            Some(c) => format!("{} ({c})", x.time),
+            None => x.time.to_string(),
+        };
+        let _ = write!(cells, " {t} |");
+    }
+    cells
 }

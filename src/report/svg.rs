@@ -1,35 +1,53 @@
-//! SVG map of a plan, written by hand: the network in light grey, each route
-//! in its own colour (served links solid, deadhead legs dashed), the yard and
-//! a legend.
+//! SVG map of a plan, written by hand.
+//!
+//! - The street network in light grey; one-way streets darker, with grey
+//!   chevrons in their direction of travel. Every street carries a tooltip
+//!   with its name and junction numbers.
+//! - Each truck in its own colour ([`PALETTE`], 30 colours that stay apart):
+//!   served streets solid with an arrow in the direction of service;
+//!   deadhead legs dashed. Trucks that drive the same street empty in the
+//!   same direction are drawn side by side in lanes, so none hides another.
+//! - Junction numbers (as in the sheets' `from → to`) at every turning point
+//!   of a route: where a truck starts or stops serving.
+//! - The yard, labelled inside the picture; a scale bar below the network
+//!   (never over it) when the coordinate system is declared; a legend beside it.
+//!
+//! WGS 84 longitude/latitude is projected equirectangularly with the
+//! longitudes scaled by the cosine of the mean latitude, so that a town at
+//! 54° N is not drawn 1.7 times too wide. Undeclared coordinates are drawn
+//! as plain numbers, without a scale bar.
 
+use std::collections::{BTreeSet, HashMap};
 use std::fmt::Write as _;
 
-use crate::model::Instance;
+use crate::model::{Coordinates, Instance};
 use crate::paths::Distances;
 use crate::plan::Plan;
 
-use super::geo::{points, Coordinates};
-use super::sheets::{all_rows, Action, SheetRow};
+use super::geo::points;
+use super::sheets::{all_rows, SheetRow};
+use super::street_ref;
 
-/// Route colours, in order; routes beyond the tenth reuse them. Picked for
-/// this project to stay apart from each other and from the grey network.
-pub const PALETTE: [&str; 10] = [
-    "#0b7a75", // deep teal
-    "#c8553d", // brick
-    "#3d5a98", // cobalt
-    "#e0a100", // mustard
-    "#7d3c98", // violet
-    "#5c8a2e", // fern
-    "#d64f8c", // raspberry
-    "#1f9ed1", // sky
-    "#8c5a2b", // walnut
-    "#4a4a4a", // graphite
+/// Route colours, in order, for up to 30 trucks (then they repeat). Our own
+/// set, chosen by farthest-point selection in CIELAB among in-gamut colours
+/// at least ΔE 30 from the grey network and 35 from white: any two of them
+/// differ by at least ΔE 26 (CIE 1976).
+pub const PALETTE: [&str; 30] = [
+    "#00867a", "#fb2374", "#0146c8", "#f1ac00", "#5ed149", "#6c3919", "#d7a9e2", "#00497d",
+    "#d44606", "#c0bb79", "#880071", "#2f5d06", "#fd76f9", "#59b5e5", "#e8968b", "#2a91ff",
+    "#67cd8c", "#9d5374", "#bcc000", "#a8012c", "#826808", "#8258a9", "#ff6f63", "#739e1f",
+    "#f5a866", "#f986b9", "#932cb4", "#db1d9e", "#4dcace", "#a98bff",
 ];
 
 /// Drawing width in pixels (the height follows the network's shape).
-const WIDTH: f64 = 960.0;
-const MARGIN: f64 = 24.0;
-const LEGEND_W: f64 = 200.0;
+const WIDTH: f64 = 1000.0;
+const MARGIN: f64 = 28.0;
+const LEGEND_W: f64 = 220.0;
+const GAP: f64 = 16.0;
+/// Height of the strip under the network that holds the scale bar.
+const SCALE_H: f64 = 36.0;
+const NETWORK_GREY: &str = "#d4d4d4";
+const ONE_WAY_GREY: &str = "#a6a6a6";
 
 /// Escapes text for XML content and attribute values.
 pub fn xml_escape(s: &str) -> String {
@@ -49,188 +67,365 @@ pub fn xml_escape(s: &str) -> String {
 }
 
 /// The plan drawn as a standalone SVG document, or `None` when the scenario
-/// has no coordinates. North is up (`y` grows upwards in the scenario).
-/// Steps are shifted a little to the right of the direction of travel so that
-/// a street driven both ways shows both passes.
+/// has no coordinates. North is up (`y` grows northwards in the scenario).
 pub fn map(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
     points(inst)?;
     map_of_rows(inst, plan, &all_rows(inst, dist, plan))
 }
 
+/// Where things go on the page.
+struct Frame {
+    /// Junction positions in pixels.
+    px: Vec<(f64, f64)>,
+    /// Pixels per metre (`None` when the unit of the coordinates is unknown).
+    px_per_m: Option<f64>,
+    /// Bottom of the network area.
+    map_bottom: f64,
+    /// Right edge of the network area.
+    map_right: f64,
+    height: f64,
+    legend_h: f64,
+}
+
+impl Frame {
+    fn new(inst: &Instance, routes: usize) -> Option<Frame> {
+        let pts = points(inst)?;
+        let system = inst.coordinates();
+        let lat0 = pts.iter().map(|p| p.1).sum::<f64>() / pts.len().max(1) as f64;
+        let metres = system.metres(lat0);
+        let xy: Vec<(f64, f64)> = match &metres {
+            Some(f) => pts.iter().map(|&(x, y)| f(x, y)).collect(),
+            None => pts,
+        };
+        let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
+        for &(x, y) in &xy {
+            lo_x = lo_x.min(x);
+            hi_x = hi_x.max(x);
+            lo_y = lo_y.min(y);
+            hi_y = hi_y.max(y);
+        }
+        let span_x = (hi_x - lo_x).max(1e-9);
+        let span_y = (hi_y - lo_y).max(1e-9);
+        let draw_w = WIDTH - 2.0 * MARGIN - LEGEND_W - GAP;
+        let scale = (draw_w / span_x).min(draw_w * 1.2 / span_y);
+        let map_h = span_y * scale;
+        let legend_h = 150.0 + 18.0 * routes as f64;
+        let height = (MARGIN + map_h + SCALE_H + MARGIN).max(legend_h + 2.0 * MARGIN);
+        let px = xy
+            .iter()
+            .map(|&(x, y)| {
+                (
+                    MARGIN + (x - lo_x) * scale,
+                    MARGIN + map_h - (y - lo_y) * scale,
+                )
+            })
+            .collect();
+        Some(Frame {
+            px,
+            px_per_m: metres.map(|_| scale),
+            map_bottom: MARGIN + map_h,
+            map_right: MARGIN + draw_w,
+            height,
+            legend_h,
+        })
+    }
+}
+
 /// [`map`] from the rows of every route ([`all_rows`]).
 pub fn map_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> Option<String> {
-    let pts = points(inst)?;
-    let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
-    for &(x, y) in &pts {
-        lo_x = lo_x.min(x);
-        hi_x = hi_x.max(x);
-        lo_y = lo_y.min(y);
-        hi_y = hi_y.max(y);
-    }
-    let span_x = (hi_x - lo_x).max(1e-9);
-    let span_y = (hi_y - lo_y).max(1e-9);
-    let draw_w = WIDTH - 2.0 * MARGIN - LEGEND_W;
-    let scale = (draw_w / span_x).min(draw_w * 1.2 / span_y);
-    let legend_h = 90.0 + 18.0 * plan.routes.len() as f64;
-    let height = (span_y * scale + 2.0 * MARGIN).max(legend_h + 2.0 * MARGIN);
-    let px = |j: usize| -> (f64, f64) {
-        let (x, y) = pts[j];
-        (
-            MARGIN + (x - lo_x) * scale,
-            height - MARGIN - (y - lo_y) * scale,
-        )
-    };
+    let f = Frame::new(inst, plan.routes.len())?;
     let mut s = String::new();
     let _ = writeln!(
         s,
-        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{WIDTH:.0}" height="{height:.0}" viewBox="0 0 {WIDTH:.0} {height:.0}" font-family="sans-serif" font-size="12">"#
+        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{WIDTH:.0}" height="{h:.0}" viewBox="0 0 {WIDTH:.0} {h:.0}" font-family="sans-serif" font-size="12">"#,
+        h = f.height
     );
     let _ = writeln!(s, "<title>{}</title>", xml_escape(&inst.name));
     let _ = writeln!(s, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##);
-    // The network.
-    s.push_str(r##"<g id="network" stroke="#d4d4d4" stroke-width="3" stroke-linecap="round">"##);
-    s.push('\n');
-    for l in &inst.network().links {
-        let (a, b) = (px(l.from), px(l.to));
+    defs(&mut s, plan.routes.len());
+    network(&mut s, inst, &f);
+    routes(&mut s, &f, all);
+    junction_labels(&mut s, inst, &f, all);
+    yard(&mut s, inst, &f);
+    scale_bar(&mut s, &f);
+    legend(&mut s, inst, plan, &f);
+    s.push_str("</svg>\n");
+    Some(s)
+}
+
+fn colour(r: usize) -> &'static str {
+    PALETTE[r % PALETTE.len()]
+}
+
+/// Arrow heads: one per truck colour, one grey for one-way streets.
+fn defs(s: &mut String, routes: usize) {
+    let marker = |s: &mut String, id: &str, fill: &str, size: f64| {
         let _ = writeln!(
             s,
-            r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}"/>"#,
-            a.0, a.1, b.0, b.1
+            r#"<marker id="{id}" viewBox="0 0 6 6" refX="3" refY="3" markerUnits="userSpaceOnUse" markerWidth="{size}" markerHeight="{size}" orient="auto"><path d="M0,0 L6,3 L0,6 z" fill="{fill}"/></marker>"#
         );
+    };
+    s.push_str("<defs>\n");
+    marker(s, "one-way", ONE_WAY_GREY, 7.0);
+    for r in 0..routes {
+        marker(s, &format!("arrow-{}", r + 1), colour(r), 9.0);
     }
-    s.push_str("</g>\n");
-    // Routes: deadheads under services.
-    for pass in [true, false] {
-        for r in 0..plan.routes.len() {
-            let colour = PALETTE[r % PALETTE.len()];
-            let id = if pass { "deadhead" } else { "serve" };
+    s.push_str("</defs>\n");
+}
+
+fn mid(a: (f64, f64), b: (f64, f64)) -> (f64, f64) {
+    ((a.0 + b.0) / 2.0, (a.1 + b.1) / 2.0)
+}
+
+/// Every street: two-way as a light line, one-way darker with a chevron.
+fn network(s: &mut String, inst: &Instance, f: &Frame) {
+    let _ = writeln!(
+        s,
+        r#"<g id="network" stroke="{NETWORK_GREY}" stroke-width="3" stroke-linecap="round" fill="none">"#
+    );
+    for (i, l) in inst.network().links.iter().enumerate() {
+        let (a, b) = (f.px[l.from], f.px[l.to]);
+        let title = format!("<title>{}</title>", xml_escape(&street_ref(inst, i)));
+        if l.oneway {
+            let m = mid(a, b);
             let _ = writeln!(
                 s,
-                r#"<g id="route-{}-{id}" stroke="{colour}" stroke-linecap="round" fill="none">"#,
-                r + 1
+                r#"<polyline class="one-way" points="{:.1},{:.1} {:.1},{:.1} {:.1},{:.1}" stroke="{ONE_WAY_GREY}" marker-mid="url(#one-way)">{title}</polyline>"#,
+                a.0, a.1, m.0, m.1, b.0, b.1
             );
-            for row in &all[r] {
-                if row.action.is_deadhead() != pass {
-                    continue;
-                }
-                let (a, b) = (px(row.ends.0), px(row.ends.1));
-                let (dx, dy) = (b.0 - a.0, b.1 - a.1);
-                let len = (dx * dx + dy * dy).sqrt().max(1e-9);
-                // Right of travel on screen (y grows downwards).
-                let off = 1.8;
-                let (ox, oy) = (-dy / len * off, dx / len * off);
-                let style = if pass {
-                    r#" stroke-width="1.6" stroke-dasharray="5 4""#
-                } else {
-                    r#" stroke-width="2.6""#
-                };
-                let _ = writeln!(
-                    s,
-                    r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}"{style}><title>truck {} step {}: {} ({})</title></line>"#,
-                    a.0 + ox,
-                    a.1 + oy,
-                    b.0 + ox,
-                    b.1 + oy,
+        } else {
+            let _ = writeln!(
+                s,
+                r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}">{title}</line>"#,
+                a.0, a.1, b.0, b.1
+            );
+        }
+    }
+    s.push_str("</g>\n");
+}
+
+/// `(a, b)` moved `off` pixels to the right of the direction of travel.
+fn shifted(a: (f64, f64), b: (f64, f64), off: f64) -> ((f64, f64), (f64, f64)) {
+    let (dx, dy) = (b.0 - a.0, b.1 - a.1);
+    let len = (dx * dx + dy * dy).sqrt().max(1e-9);
+    // Right of travel on screen (y grows downwards).
+    let (ox, oy) = (-dy / len * off, dx / len * off);
+    ((a.0 + ox, a.1 + oy), (b.0 + ox, b.1 + oy))
+}
+
+/// Lane of each (route, street, direction) deadhead: trucks that drive the
+/// same street empty in the same direction get lanes 0, 1, 2, ...
+fn deadhead_lanes(all: &[Vec<SheetRow>]) -> HashMap<(usize, usize, (usize, usize)), usize> {
+    let mut users: HashMap<(usize, (usize, usize)), Vec<usize>> = HashMap::new();
+    let mut lane = HashMap::new();
+    for (r, rows) in all.iter().enumerate() {
+        for row in rows.iter().filter(|x| x.action.is_deadhead()) {
+            let list = users.entry((row.link, row.ends)).or_default();
+            if !list.contains(&r) {
+                list.push(r);
+            }
+            lane.insert((r, row.link, row.ends), list.len() - 1);
+        }
+    }
+    lane
+}
+
+/// Deadhead legs of all trucks (dashed, in lanes), then their services
+/// (solid, with an arrow in the direction of service) on top.
+fn routes(s: &mut String, f: &Frame, all: &[Vec<SheetRow>]) {
+    let lanes = deadhead_lanes(all);
+    for serve in [false, true] {
+        for (r, rows) in all.iter().enumerate() {
+            let id = if serve { "serve" } else { "deadhead" };
+            let _ = writeln!(
+                s,
+                r#"<g id="route-{}-{id}" stroke="{}" stroke-linecap="round" fill="none">"#,
+                r + 1,
+                colour(r)
+            );
+            for row in rows.iter().filter(|x| x.action.is_deadhead() != serve) {
+                let (a, b) = (f.px[row.ends.0], f.px[row.ends.1]);
+                let title = format!(
+                    "<title>Truck {} step {}: {} ({} → {}, {})</title>",
                     r + 1,
                     row.step,
                     xml_escape(&row.street),
-                    if row.action == Action::Serve {
-                        "serve"
-                    } else {
-                        "deadhead"
-                    },
+                    row.from,
+                    row.to,
+                    if serve { "serve" } else { "deadhead" }
                 );
+                if serve {
+                    let (a, b) = shifted(a, b, 1.8);
+                    let m = mid(a, b);
+                    let _ = writeln!(
+                        s,
+                        r#"<polyline points="{:.1},{:.1} {:.1},{:.1} {:.1},{:.1}" stroke-width="2.6" marker-mid="url(#arrow-{})">{title}</polyline>"#,
+                        a.0,
+                        a.1,
+                        m.0,
+                        m.1,
+                        b.0,
+                        b.1,
+                        r + 1
+                    );
+                } else {
+                    let lane = lanes[&(r, row.link, row.ends)];
+                    let (a, b) = shifted(a, b, 2.0 + 2.2 * lane as f64);
+                    let _ = writeln!(
+                        s,
+                        r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke-width="1.6" stroke-dasharray="5 4">{title}</line>"#,
+                        a.0, a.1, b.0, b.1
+                    );
+                }
             }
             s.push_str("</g>\n");
         }
     }
-    // The yard.
-    let (yx, yy) = px(inst.depot());
-    let _ = writeln!(
-        s,
-        r##"<g id="yard"><rect x="{:.1}" y="{:.1}" width="14" height="14" fill="#111111" stroke="#ffffff" stroke-width="2"/><text x="{:.1}" y="{:.1}" font-weight="bold">Yard</text></g>"##,
-        yx - 7.0,
-        yy - 7.0,
-        yx + 11.0,
-        yy + 4.0
-    );
-    // Scale bar, for planar coordinates only (taken as metres).
-    if let Some(Coordinates::Metres { .. }) = Coordinates::guess(inst) {
-        let target = span_x / 5.0;
-        let mag = 10f64.powf(target.log10().floor());
-        let len = [5.0, 2.0, 1.0]
-            .into_iter()
-            .map(|m| m * mag)
-            .find(|&l| l <= target)
-            .unwrap_or(mag);
-        let (x0, y0) = (WIDTH - LEGEND_W - MARGIN / 2.0, height - MARGIN);
+}
+
+/// Junction numbers where a truck starts or stops serving (its turning
+/// points), as in the sheets' `from → to` columns.
+fn junction_labels(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetRow>]) {
+    let mut at = BTreeSet::new();
+    for rows in all {
+        for w in rows.windows(2) {
+            if w[0].action.is_deadhead() != w[1].action.is_deadhead() {
+                at.insert(w[0].ends.1);
+            }
+        }
+    }
+    at.remove(&inst.depot());
+    s.push_str(r##"<g id="junction-labels" font-size="9" fill="#222222" stroke="#ffffff" stroke-width="2.5" paint-order="stroke">"##);
+    s.push('\n');
+    for j in at {
+        let (x, y) = f.px[j];
         let _ = writeln!(
             s,
-            r##"<g id="scale"><line x1="{x0:.1}" y1="{y0:.1}" x2="{:.1}" y2="{y0:.1}" stroke="#333333" stroke-width="2"/><text x="{x0:.1}" y="{:.1}">{len} m</text></g>"##,
-            x0 + len * scale,
-            y0 - 6.0
+            r#"<text x="{:.1}" y="{:.1}">{}</text>"#,
+            x + 3.0,
+            y - 3.0,
+            inst.network().junctions[j].id
         );
     }
-    // Legend.
-    let lx = WIDTH - LEGEND_W - MARGIN / 2.0;
+    s.push_str("</g>\n");
+}
+
+/// The yard: a black square, its label inside the picture (left of the
+/// square when there is no room on the right).
+fn yard(s: &mut String, inst: &Instance, f: &Frame) {
+    let (yx, yy) = f.px[inst.depot()];
+    let label = format!("Yard ({})", inst.network().junctions[inst.depot()].id);
+    let text_w = 7.5 * label.len() as f64;
+    let (tx, anchor) = if yx + 11.0 + text_w <= f.map_right + GAP {
+        (yx + 11.0, "start")
+    } else {
+        (yx - 11.0, "end")
+    };
+    let ty = (yy + 4.0).clamp(14.0, f.map_bottom + 14.0);
     let _ = writeln!(
         s,
-        r##"<g id="legend"><rect x="{lx:.1}" y="{:.1}" width="{LEGEND_W:.0}" height="{legend_h:.0}" fill="#ffffff" stroke="#999999" rx="4"/>"##,
-        MARGIN
+        r##"<g id="yard"><rect x="{:.1}" y="{:.1}" width="14" height="14" fill="#111111" stroke="#ffffff" stroke-width="2"/><text x="{tx:.1}" y="{ty:.1}" text-anchor="{anchor}" font-weight="bold" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text></g>"##,
+        yx - 7.0,
+        yy - 7.0,
+        xml_escape(&label)
+    );
+}
+
+/// A round length (1, 2 or 5 times a power of ten) about a fifth of the
+/// width, in the strip below the network.
+fn scale_bar(s: &mut String, f: &Frame) {
+    let Some(ppm) = f.px_per_m else {
+        return;
+    };
+    let target = (f.map_right - MARGIN) / ppm / 5.0;
+    let mag = 10f64.powf(target.log10().floor());
+    let len = [5.0, 2.0, 1.0]
+        .into_iter()
+        .map(|m| m * mag)
+        .find(|&l| l <= target)
+        .unwrap_or(mag);
+    let text = if len >= 1000.0 {
+        format!("{} km", len / 1000.0)
+    } else {
+        format!("{len} m")
+    };
+    let (x0, y0) = (MARGIN, f.map_bottom + SCALE_H - 8.0);
+    let _ = writeln!(
+        s,
+        r##"<g id="scale"><line x1="{x0:.1}" y1="{y0:.1}" x2="{:.1}" y2="{y0:.1}" stroke="#333333" stroke-width="2"/><text x="{:.1}" y="{:.1}">{text}</text></g>"##,
+        x0 + len * ppm,
+        x0 + len * ppm + 6.0,
+        y0 + 4.0
+    );
+}
+
+/// One legend line: a sample stroke and a text.
+fn legend_entry(s: &mut String, lx: f64, y: f64, sample: &str, text: &str) {
+    let _ = writeln!(
+        s,
+        r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" {sample}/><text x="{:.1}" y="{y:.1}">{}</text>"#,
+        lx + 10.0,
+        y - 4.0,
+        lx + 34.0,
+        y - 4.0,
+        lx + 42.0,
+        xml_escape(text)
+    );
+}
+
+fn legend(s: &mut String, inst: &Instance, plan: &Plan, f: &Frame) {
+    let lx = WIDTH - LEGEND_W - MARGIN / 2.0;
+    let u = inst.units();
+    let _ = writeln!(
+        s,
+        r##"<g id="legend"><rect x="{lx:.1}" y="{MARGIN:.1}" width="{LEGEND_W:.0}" height="{:.0}" fill="#ffffff" stroke="#999999" rx="4"/>"##,
+        f.legend_h
     );
     let mut y = MARGIN + 20.0;
     let _ = writeln!(
         s,
-        r#"<text x="{:.1}" y="{y:.1}" font-weight="bold">Total distance {}</text>"#,
+        r#"<text x="{:.1}" y="{y:.1}" font-weight="bold">Total cost {}</text>"#,
         lx + 10.0,
-        plan.cost
+        xml_escape(&u.cost_text(plan.cost))
     );
     for (r, route) in plan.routes.iter().enumerate() {
         y += 18.0;
-        let colour = PALETTE[r % PALETTE.len()];
-        let _ = writeln!(
+        let sample = format!(r#"stroke="{}" stroke-width="4""#, colour(r));
+        legend_entry(
             s,
-            r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke="{colour}" stroke-width="4"/><text x="{:.1}" y="{:.1}">Truck {}: {}</text>"#,
-            lx + 10.0,
-            y - 4.0,
-            lx + 34.0,
-            y - 4.0,
-            lx + 42.0,
+            lx,
             y,
-            r + 1,
-            route.cost
+            &sample,
+            &format!("Truck {}: {}", r + 1, u.cost_text(route.cost)),
         );
     }
     y += 24.0;
-    let _ = writeln!(
-        s,
-        r##"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke="#333333" stroke-width="2.6"/><text x="{:.1}" y="{y:.1}">served</text>"##,
-        lx + 10.0,
-        y - 4.0,
-        lx + 34.0,
-        y - 4.0,
-        lx + 42.0
-    );
+    let served = r##"stroke="#333333" stroke-width="2.6" marker-end="url(#one-way)""##;
+    legend_entry(s, lx, y, served, "served, arrow: direction");
+    y += 18.0;
+    let dashed = r##"stroke="#333333" stroke-width="1.6" stroke-dasharray="5 4""##;
+    legend_entry(s, lx, y, dashed, "deadhead (not served)");
+    y += 18.0;
+    let one_way = format!(r#"stroke="{ONE_WAY_GREY}" stroke-width="3" marker-end="url(#one-way)""#);
+    legend_entry(s, lx, y, &one_way, "one-way street");
+    y += 18.0;
+    let street = format!(r#"stroke="{NETWORK_GREY}" stroke-width="3""#);
+    legend_entry(s, lx, y, &street, "street network");
     y += 18.0;
     let _ = writeln!(
         s,
-        r##"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke="#333333" stroke-width="1.6" stroke-dasharray="5 4"/><text x="{:.1}" y="{y:.1}">deadhead (not served)</text>"##,
+        r#"<text x="{:.1}" y="{y:.1}" font-size="10">Small numbers: junctions where</text><text x="{:.1}" y="{:.1}" font-size="10">a truck starts or stops serving.</text>"#,
         lx + 10.0,
-        y - 4.0,
-        lx + 34.0,
-        y - 4.0,
-        lx + 42.0
-    );
-    y += 18.0;
-    let _ = writeln!(
-        s,
-        r##"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke="#d4d4d4" stroke-width="3"/><text x="{:.1}" y="{y:.1}">street network</text></g>"##,
         lx + 10.0,
-        y - 4.0,
-        lx + 34.0,
-        y - 4.0,
-        lx + 42.0
+        y + 13.0
     );
-    s.push_str("</svg>\n");
-    Some(s)
+    if inst.coordinates() == Coordinates::Undeclared {
+        let _ = writeln!(
+            s,
+            r#"<text x="{:.1}" y="{:.1}" font-size="10">Coordinate system not declared.</text>"#,
+            lx + 10.0,
+            y + 28.0
+        );
+    }
+    s.push_str("</g>\n");
 }

@@ -1,0 +1,339 @@
+//! The two things the planner does: plan a scenario and write the reports,
+//! and re-verify a plan file. Everything of substance is a library call.
+
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
+
+use arcwright::check::{check_plan, check_walks, Violation};
+use arcwright::demo::{town, TownSpec};
+use arcwright::io::plan_json::{
+    read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
+    RunSettings,
+};
+use arcwright::io::{read_dat_file, read_scenario, read_scenario_file, write_scenario};
+use arcwright::model::Instance;
+use arcwright::paths::Distances;
+use arcwright::plan::{walk, Plan};
+use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
+use arcwright::{Progress, Solver};
+
+use crate::cli::{FleetArgs, PlanArgs, DEFAULT_SCENARIO};
+use crate::output::{prepare_folder, write_files};
+use crate::AppError;
+
+/// Reads a scenario: a research-format file when the name ends in `.dat`
+/// (any case), our JSON scenario format when it ends in `.json`, and for
+/// other names whichever the text looks like (JSON starts with `{`). Fleet
+/// overrides are applied and the result revalidated.
+pub fn load_scenario(path: &Path, fleet: &FleetArgs) -> Result<Instance, AppError> {
+    let ext = path
+        .extension()
+        .map(|e| e.to_string_lossy().to_ascii_lowercase());
+    let is_dat = match ext.as_deref() {
+        Some("dat") => true,
+        Some("json") => false,
+        // Unreadable files fall through to the JSON reader, which names them.
+        _ => std::fs::read(path).is_ok_and(|b| {
+            let b = b.strip_prefix("\u{feff}".as_bytes()).unwrap_or(&b);
+            b.iter()
+                .find(|c| !c.is_ascii_whitespace())
+                .is_some_and(|&c| c != b'{')
+        }),
+    };
+    let inst = if is_dat {
+        read_dat_file(path).map_err(AppError::Input)?.instance
+    } else {
+        read_scenario_file(path).map_err(AppError::Input)?
+    };
+    fleet.apply(inst).map_err(AppError::Fleet)
+}
+
+/// Where the scenario of a run comes from: the file given, or
+/// [`DEFAULT_SCENARIO`] when it exists, or else the demo town generated in
+/// memory (the same town; used when the program runs outside the project
+/// folder). Returns the instance and a description for the summary.
+pub fn resolve_scenario(opts: &PlanArgs) -> Result<(Instance, String), AppError> {
+    if let Some(p) = &opts.scenario {
+        return Ok((load_scenario(p, &opts.fleet)?, p.display().to_string()));
+    }
+    let default = Path::new(DEFAULT_SCENARIO);
+    if default.exists() {
+        return Ok((
+            load_scenario(default, &opts.fleet)?,
+            DEFAULT_SCENARIO.to_string(),
+        ));
+    }
+    let inst = town(&TownSpec::demo()).map_err(AppError::Fleet)?;
+    // Going through the scenario text keeps this path identical to reading the file.
+    let inst = read_scenario(&write_scenario(&inst), "<demo town>").map_err(AppError::Input)?;
+    let inst = opts.fleet.apply(inst).map_err(AppError::Fleet)?;
+    Ok((inst, "the demo town (generated)".to_string()))
+}
+
+/// A progress callback.
+pub type ProgressHook<'a> = Box<dyn Fn(&Progress) + Send + Sync + 'a>;
+
+/// Callbacks of a planning run.
+#[derive(Default)]
+pub struct Hooks<'a> {
+    /// Called whenever the best plan improves.
+    pub on_progress: Option<ProgressHook<'a>>,
+    /// Set to true to stop the search early (the best plan is still written).
+    pub stop: Option<Arc<AtomicBool>>,
+}
+
+/// What a planning run did.
+pub struct PlanRun {
+    /// Where the scenario came from.
+    pub source: String,
+    /// Whether the stop flag ended the search.
+    pub stopped_early: bool,
+    /// The summary table, with cautions.
+    pub summary: String,
+    /// The files written, in the order of [`render`].
+    pub files: Vec<PathBuf>,
+}
+
+/// Checks a plan and its explicit walks with the independent checker.
+pub fn verify(inst: &Instance, dist: &Distances, plan: &Plan) -> Result<(), Vec<Violation>> {
+    check_plan(inst, plan)?;
+    let walks: Vec<_> = plan
+        .routes
+        .iter()
+        .map(|r| walk(inst, dist, &r.visits))
+        .collect();
+    check_walks(inst, &walks)
+}
+
+/// The plan file and every report for `plan`, after checking it: a plan that
+/// fails the independent checker is refused ([`AppError::Refused`]), and so
+/// is a plan file that does not read back to the same plan. Self-loops are
+/// written served forward ([`Plan::self_loops_forward`]): the same drive, and
+/// the only direction a plan file can state for them.
+pub fn render(
+    inst: &Instance,
+    dist: &Distances,
+    plan: &Plan,
+    extras: &SummaryExtras,
+    run: Option<RunSettings>,
+) -> Result<Vec<OutputFile>, AppError> {
+    let plan = &plan.clone().self_loops_forward(inst);
+    verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
+    let record = PlanRecord {
+        lower_bound: extras.lower_bound.as_ref().map(|b| b.0),
+        route_lengths: extras
+            .route_lengths
+            .clone()
+            .or_else(|| arcwright::report::route_lengths(inst, dist, plan)),
+        run,
+    };
+    let json = write_plan_record(inst, plan, &record);
+    match read_plan_with(&json, "plan.json", inst, dist) {
+        Ok(back) if back == *plan => {}
+        Ok(_) => {
+            return Err(AppError::Internal(
+                "the plan file does not read back to the same plan".into(),
+            ))
+        }
+        Err(e) => {
+            return Err(AppError::Internal(format!(
+                "the plan file does not read back: {e}"
+            )))
+        }
+    }
+    let mut files = vec![OutputFile {
+        name: "plan.json".into(),
+        contents: json,
+    }];
+    files.extend(bundle(inst, dist, plan, extras));
+    Ok(files)
+}
+
+/// Plans the scenario of `opts` and writes the plan and reports into
+/// `opts.out` (checked before the search).
+pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
+    let (inst, source) = resolve_scenario(opts)?;
+    prepare_folder(&opts.out)?;
+    let stop = hooks
+        .stop
+        .clone()
+        .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
+    let mut solver = Solver::new(&inst)
+        .seed(opts.seed)
+        .workers(opts.effective_workers())
+        .stop_flag(stop.clone());
+    if let Some(t) = opts.effective_time_limit() {
+        solver = solver.time_limit(t);
+    }
+    if let Some(n) = opts.iterations {
+        solver = solver.max_iterations(n);
+    }
+    if let Some(f) = hooks.on_progress {
+        solver = solver.on_progress(f);
+    }
+    let solution = solver.solve().map_err(AppError::Solve)?;
+    let stopped_early = stop.load(Ordering::SeqCst);
+    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
+    let extras = SummaryExtras {
+        lower_bound: Some((
+            solution.lower_bound.value,
+            solution.lower_bound.by.to_string(),
+        )),
+        gap_percent: Some(solution.gap),
+        run_time: Some(solution.stats.elapsed),
+        iterations: Some(solution.stats.iterations),
+        stopped_early,
+        route_lengths: arcwright::report::route_lengths(&inst, &dist, &solution.plan),
+    };
+    let run = RunSettings {
+        seed: opts.seed,
+        workers: opts.effective_workers(),
+        time_limit_s: opts.effective_time_limit().map(|t| t.as_secs_f64()),
+        max_iterations: opts.iterations,
+        iterations: solution.stats.iterations,
+        stopped_early,
+        crate_version: env!("CARGO_PKG_VERSION").to_string(),
+    };
+    let files = render(&inst, &dist, &solution.plan, &extras, Some(run))?;
+    let summary = summary_table(&inst, &solution.plan, &extras);
+    let files = write_files(&opts.out, &files)?;
+    Ok(PlanRun {
+        source,
+        stopped_early,
+        summary,
+        files,
+    })
+}
+
+/// What re-verifying a plan file found.
+pub struct CheckRun {
+    /// The plan as the file states it: stated loads and costs, recomputed
+    /// route times.
+    pub plan: Plan,
+    /// Every problem found, in the words of the sheets (empty when valid).
+    pub problems: Vec<String>,
+    /// The plan's stated cost with its unit.
+    pub cost_text: String,
+}
+
+/// The checker's findings in the words of the sheets.
+fn describe_all(inst: &Instance, v: &[Violation]) -> Vec<String> {
+    v.iter()
+        .map(|x| arcwright::report::describe(inst, x))
+        .collect()
+}
+
+/// Reads `plan_file` against `scenario` and checks it with the independent
+/// checker (plan and explicit walks).
+///
+/// A file that is not a plan of the scenario is an `Err`
+/// ([`AppError::Input`]); everything else wrong with a readable file is
+/// listed in [`CheckRun::problems`], all of it. The walks are checked only
+/// when the plan itself passes.
+pub fn run_check(
+    scenario: &Path,
+    plan_file: &Path,
+    fleet: &FleetArgs,
+) -> Result<CheckRun, AppError> {
+    refuse_swapped(scenario, plan_file)?;
+    let inst = load_scenario(scenario, fleet)?;
+    let (name, text) = arcwright::io::read_text(plan_file).map_err(AppError::Input)?;
+    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
+    let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
+    let claims = read_plan_claims(&text, &name).map_err(AppError::Input)?;
+    let violations = match check_plan(&inst, &plan) {
+        Err(v) => v,
+        Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),
+    };
+    let mut problems = describe_all(&inst, &violations);
+    if let Some(b) = claims.lower_bound {
+        let units = inst.units();
+        if b > plan.cost {
+            problems.push(format!(
+                "the plan claims a lower bound of {}, above its own cost of {}: no plan can cost less than a true lower bound",
+                units.cost_text(b),
+                units.cost_text(plan.cost)
+            ));
+        } else if b < 0 {
+            problems.push(format!("the plan claims a negative lower bound ({b})"));
+        }
+    }
+    let cost_text = inst.units().cost_text(plan.cost);
+    Ok(CheckRun {
+        plan,
+        problems,
+        cost_text,
+    })
+}
+
+/// The `format` a JSON file names, if it is JSON with one.
+fn json_format(path: &Path) -> Option<String> {
+    let text = std::fs::read_to_string(path).ok()?;
+    let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
+    let v: serde_json::Value = serde_json::from_str(text).ok()?;
+    v.get("format")?.as_str().map(String::from)
+}
+
+/// `planner check PLAN SCENARIO` (the files swapped) is named as such.
+fn refuse_swapped(scenario: &Path, plan_file: &Path) -> Result<(), AppError> {
+    let order = "the order is `planner check SCENARIO PLAN`";
+    if json_format(scenario).as_deref() == Some("arcwright-plan") {
+        return Err(AppError::Usage(format!(
+            "{} is a plan file, not a scenario: {order}",
+            scenario.display()
+        )));
+    }
+    if json_format(plan_file).as_deref() == Some("arcwright-scenario") {
+        return Err(AppError::Usage(format!(
+            "{} is a scenario, not a plan file: {order}",
+            plan_file.display()
+        )));
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use arcwright::model::{Dir, Fleet};
+    use arcwright::plan::Visit;
+
+    fn demo() -> Instance {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(DEFAULT_SCENARIO);
+        load_scenario(&path, &FleetArgs::default()).unwrap()
+    }
+
+    #[test]
+    fn a_plan_failing_the_checker_is_refused() {
+        let inst = demo();
+        let dist = Distances::new(&inst).unwrap();
+        // Every task on its own route: valid except that it needs far more
+        // trucks than the fleet has.
+        let routes: Vec<Vec<Visit>> = (0..inst.tasks().len())
+            .map(|t| vec![Visit::new(t, Dir::Forward)])
+            .collect();
+        let plan = Plan::from_visits(&inst, &dist, routes);
+        match render(&inst, &dist, &plan, &Default::default(), None) {
+            Err(AppError::Refused(v)) => {
+                assert!(v.iter().any(|x| x.contains("trucks")), "{v:?}");
+            }
+            other => panic!("not refused: {:?}", other.map(|f| f.len())),
+        }
+        // A plan with a misreported cost is refused too.
+        let loose = inst
+            .with_fleet(Fleet::with_capacity(inst.total_demand()))
+            .unwrap();
+        let all: Vec<Visit> = (0..loose.tasks().len())
+            .map(|t| Visit::new(t, Dir::Forward))
+            .collect();
+        let mut bad = Plan::from_visits(&loose, &dist, vec![all]);
+        assert!(render(&loose, &dist, &bad, &Default::default(), None).is_ok());
+        bad.routes[0].cost -= 1;
+        bad.cost -= 1;
+        assert!(matches!(
+            render(&loose, &dist, &bad, &Default::default(), None),
+            Err(AppError::Refused(_))
+        ));
+    }
+}
