@@ -51,7 +51,12 @@
 //! once per candidate longest shift `T` (every distinct closing time, in
 //! increasing order) with routes of time at most `T`, and the best value of
 //! `cost + weight × longest` is kept; the loop stops as soon as
-//! `cheapest cost + weight × T` cannot beat the best found.
+//! `cheapest cost + weight × T` cannot beat the best found. Candidates
+//! below the largest, over all positions, of the quickest route covering
+//! that position cannot be the longest shift and are skipped. When more than
+//! [`MAX_THRESHOLDS`] candidates remain, that many evenly spread ones are
+//! tried (the largest always among them, so a plan is found) and the result
+//! says `exact: false`.
 //!
 //! **Cost.** `O(n² · L · 2 · (1 + S))` for the edges of `n` tasks, `S` dump
 //! sites and `L` labels per stage (at most the number of distinct trip loads
@@ -64,6 +69,10 @@ use crate::plan::Visit;
 
 /// Largest number of labels kept at a stage or node (see the module docs).
 pub const LABEL_CAP: usize = 4096;
+
+/// Largest number of candidate longest shifts tried under balancing (see
+/// the module docs).
+pub const MAX_THRESHOLDS: usize = 48;
 
 const NONE: u32 = u32::MAX;
 
@@ -423,9 +432,34 @@ pub fn split(inst: &Instance, tables: &Tables, tour: &[usize]) -> Result<FleetSp
         let b = nodes[n].first().cloned().ok_or(SplitError::Infeasible)?;
         (Some((b, Cost::MAX, nodes)), ex)
     } else {
-        let mut times: Vec<Cost> = edges.iter().flatten().map(|e| e.time).collect();
+        // The longest shift is at least, for every position, the quickest
+        // route that covers it.
+        let mut quickest = vec![Cost::MAX; n];
+        for (i, list) in edges.iter().enumerate() {
+            for e in list {
+                for q in &mut quickest[i..e.j as usize] {
+                    *q = (*q).min(e.time);
+                }
+            }
+        }
+        let t_lo = quickest.iter().copied().max().unwrap_or(0);
+        let mut times: Vec<Cost> = edges
+            .iter()
+            .flatten()
+            .map(|e| e.time)
+            .filter(|&t| t >= t_lo)
+            .collect();
         times.sort_unstable();
         times.dedup();
+        if times.len() > MAX_THRESHOLDS {
+            // Evenly spread candidates, the largest always kept: a plan is
+            // still found, but the balance is no longer exact.
+            let m = times.len();
+            times = (1..=MAX_THRESHOLDS)
+                .map(|k| times[k * m / MAX_THRESHOLDS - 1])
+                .collect();
+            exact = false;
+        }
         let (free, mut ex) = outer(tables, &edges, n, Cost::MAX);
         let floor = free[n].first().ok_or(SplitError::Infeasible)?.cost;
         let mut best: Option<(Node, Cost, Vec<Vec<Node>>)> = None;
