@@ -54,3 +54,73 @@ fn a_plan_with_tips_round_trips_and_records_every_tip() {
     let e = read_fleet_plan(&bad.to_string(), "plan.json", &inst).unwrap_err();
     assert!(e.to_string().contains("no dump site is named `4`"), "{e}");
 }
+
+#[test]
+fn sheets_show_each_tip_and_the_map_marks_dump_sites_and_yards() {
+    use arcwright::report::fleet::fleet_markdown;
+    let mut units = arcwright::model::Units::default();
+    units.time = Some("min".into());
+    let inst = scenario().with_units(units);
+    let sol = FleetSolver::new(&inst)
+        .max_iterations(30)
+        .moves(50)
+        .solve()
+        .unwrap();
+    let md = fleet_markdown(&inst, &sol.plan);
+    assert_eq!(
+        md.matches("tip at Landfill (junction 5), unload 20 min")
+            .count(),
+        sol.plan.tips()
+    );
+    assert_eq!(md.matches("\n## Truck ").count(), sol.plan.routes.len());
+    assert!(md.contains("serve Quarry Row from junction"), "{md}");
+    assert!(md.contains("This plan is advice"));
+    // The map of the demo town (which has coordinates) with a landfill and a
+    // second yard marks both.
+    let town = arcwright::io::read_scenario_file(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("instances/demo-town.json"),
+    )
+    .unwrap();
+    let (a, b) = (town.depot(), town.tasks()[0].tail);
+    let ops = arcwright::model::Operations {
+        dump_sites: vec![arcwright::model::DumpSite {
+            name: Some("Landfill".into()),
+            junction: b,
+            unload_time: 900,
+            unload_cost: 0,
+            hours: None,
+        }],
+        yards: vec![
+            arcwright::model::Yard {
+                name: "depot".into(),
+                junction: a,
+            },
+            arcwright::model::Yard {
+                name: "north".into(),
+                junction: town.tasks()[5].head,
+            },
+        ],
+        truck_types: vec![
+            arcwright::model::TruckType {
+                yard: 1,
+                name: "north truck".into(),
+                ..town.operations().types_of(&town)[0].clone()
+            },
+            arcwright::model::TruckType {
+                name: "depot truck".into(),
+                ..town.operations().types_of(&town)[0].clone()
+            },
+        ],
+        ..Default::default()
+    };
+    let town = town.with_operations(ops).unwrap();
+    let dist = arcwright::paths::Distances::new(&town).unwrap();
+    let plan = arcwright::Solver::new(&town)
+        .max_iterations(1)
+        .solve()
+        .unwrap()
+        .plan;
+    let svg = arcwright::report::svg::map(&town, &dist, &plan).unwrap();
+    assert!(svg.contains(r#"<g id="sites">"#));
+    assert!(svg.contains(">Landfill</text>") && svg.contains(">Yard north</text>"));
+}
