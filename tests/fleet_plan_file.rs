@@ -58,8 +58,10 @@ fn a_plan_with_tips_round_trips_and_records_every_tip() {
 #[test]
 fn sheets_show_each_tip_and_the_map_marks_dump_sites_and_yards() {
     use arcwright::report::fleet::fleet_markdown;
-    let mut units = arcwright::model::Units::default();
-    units.time = Some("min".into());
+    let units = arcwright::model::Units {
+        time: Some("min".into()),
+        ..Default::default()
+    };
     let inst = scenario().with_units(units);
     let sol = FleetSolver::new(&inst)
         .max_iterations(30)
