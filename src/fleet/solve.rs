@@ -26,7 +26,10 @@
 //!    move between yards and types). A move is kept when the objective does
 //!    not go up (equal moves cross plateaus). The move limit applies to each
 //!    start; moves are drawn from a ChaCha stream of the seed, so results
-//!    are deterministic. The best plan of all starts is returned.
+//!    are deterministic. Under balancing a move is priced with at most
+//!    [`MOVE_THRESHOLDS`] candidate longest shifts, and each start's final
+//!    order is split again with the full number. The best plan of all
+//!    starts is returned.
 //!
 //! The result is checked by [`crate::check::fleet::check_fleet_plan`]
 //! before it is returned.
@@ -37,7 +40,7 @@ use rand_chacha::ChaCha12Rng;
 
 use super::bound::fleet_bound;
 use super::route::{FleetPlan, FleetRoute};
-use super::split::{split, FleetSplit};
+use super::split::{split, split_with, FleetSplit};
 use super::tables::Tables;
 use crate::bounds::LowerBound;
 use crate::model::{Cost, Fleet, Instance};
@@ -46,6 +49,10 @@ use crate::{SolveError, Solver};
 
 /// Largest number of depots for which a plain relaxation is solved.
 pub const MAX_RELAXATIONS: usize = 4;
+
+/// Candidate longest shifts tried when a move is priced under balancing
+/// (the starts and the final plan use [`super::split::MAX_THRESHOLDS`]).
+pub const MOVE_THRESHOLDS: usize = 8;
 
 /// Random orders added to the relaxations' orders as starts of the local search.
 pub const RANDOM_STARTS: usize = 2;
@@ -187,6 +194,12 @@ impl<'a> FleetSolver<'a> {
         let mut best: Option<FleetSplit> = None;
         for (mut s, mut tour) in starts {
             improving += self.improve(&tables, &near, &mut rng, &mut s, &mut tour, &mut exact);
+            if let Ok(fine) = split(inst, &tables, &tour) {
+                // Moves were priced with fewer candidate longest shifts.
+                if fine.objective < s.objective {
+                    s = fine;
+                }
+            }
             if best.as_ref().is_none_or(|b| s.objective < b.objective) {
                 best = Some(s);
             }
@@ -342,7 +355,7 @@ impl<'a> FleetSolver<'a> {
             if cand == *tour {
                 continue;
             }
-            if let Ok(s) = split(self.inst, tables, &cand) {
+            if let Ok(s) = split_with(self.inst, tables, &cand, MOVE_THRESHOLDS) {
                 *exact &= s.exact;
                 if s.objective <= best.objective {
                     improving += u64::from(s.objective < best.objective);

@@ -412,6 +412,22 @@ struct Node {
 /// [`SplitError::Infeasible`] when no split respects the load and shift
 /// limits and the numbers of trucks.
 pub fn split(inst: &Instance, tables: &Tables, tour: &[usize]) -> Result<FleetSplit, SplitError> {
+    split_with(inst, tables, tour, MAX_THRESHOLDS)
+}
+
+/// [`split`] trying at most `thresholds` candidate longest shifts under
+/// balancing (at least 1; see the module docs).
+///
+/// # Errors
+///
+/// As [`split`].
+pub fn split_with(
+    inst: &Instance,
+    tables: &Tables,
+    tour: &[usize],
+    thresholds: usize,
+) -> Result<FleetSplit, SplitError> {
+    let thresholds = thresholds.max(1);
     let n = tour.len();
     if n == 0 {
         return Ok(FleetSplit {
@@ -451,12 +467,12 @@ pub fn split(inst: &Instance, tables: &Tables, tour: &[usize]) -> Result<FleetSp
             .collect();
         times.sort_unstable();
         times.dedup();
-        if times.len() > MAX_THRESHOLDS {
+        if times.len() > thresholds {
             // Evenly spread candidates, the largest always kept: a plan is
             // still found, but the balance is no longer exact.
             let m = times.len();
-            times = (1..=MAX_THRESHOLDS)
-                .map(|k| times[k * m / MAX_THRESHOLDS - 1])
+            times = (1..=thresholds)
+                .map(|k| times[k * m / thresholds - 1])
                 .collect();
             exact = false;
         }
