@@ -84,6 +84,12 @@ fn sheets_show_each_tip_and_the_map_marks_dump_sites_and_yards() {
     )
     .unwrap();
     let (a, b) = (town.depot(), town.tasks()[0].tail);
+    // A plain plan of the town, drawn on the town with operations.
+    let plan = arcwright::Solver::new(&town)
+        .max_iterations(1)
+        .solve()
+        .unwrap()
+        .plan;
     let ops = arcwright::model::Operations {
         dump_sites: vec![arcwright::model::DumpSite {
             name: Some("Landfill".into()),
@@ -117,11 +123,14 @@ fn sheets_show_each_tip_and_the_map_marks_dump_sites_and_yards() {
     };
     let town = town.with_operations(ops).unwrap();
     let dist = arcwright::paths::Distances::new(&town).unwrap();
-    let plan = arcwright::Solver::new(&town)
-        .max_iterations(1)
-        .solve()
-        .unwrap()
-        .plan;
+    // Today's solver refuses the operations rather than ignore them.
+    assert_eq!(
+        arcwright::Solver::new(&town)
+            .max_iterations(1)
+            .solve()
+            .unwrap_err(),
+        arcwright::SolveError::NeedsFleetSolver
+    );
     let svg = arcwright::report::svg::map(&town, &dist, &plan).unwrap();
     assert!(svg.contains(r#"<g id="sites">"#));
     assert!(svg.contains(">Landfill</text>") && svg.contains(">Yard north</text>"));

@@ -120,6 +120,10 @@ pub enum SolveError {
         /// Fewest routes of any plan the constructions found.
         fewest_found: usize,
     },
+    /// The instance has dump sites, several yards, truck types or a balance
+    /// setting ([`crate::model::Operations`]), which this solver does not
+    /// know: use [`crate::fleet::FleetSolver`].
+    NeedsFleetSolver,
     /// A task cannot be served on a route of its own within capacity and shift.
     TaskAlone {
         /// The link of the task.
@@ -148,6 +152,10 @@ impl fmt::Display for SolveError {
             } => write!(
                 f,
                 "no plan with at most {max_vehicles} trucks was found (the fewest found uses {fewest_found})"
+            ),
+            SolveError::NeedsFleetSolver => write!(
+                f,
+                "the scenario has dump sites, several yards, truck types or balancing: plan it with the fleet solver"
             ),
             SolveError::TaskAlone { link } => write!(
                 f,
@@ -250,6 +258,9 @@ impl<'a> Solver<'a> {
     pub fn solve(self) -> Result<Solution, SolveError> {
         let start = Instant::now();
         let inst = self.inst;
+        if !inst.operations().is_plain(inst) {
+            return Err(SolveError::NeedsFleetSolver);
+        }
         let dist = Distances::new(inst)?;
         let lb = bound(inst, &dist);
         let m = ArcMatrix::new(inst, &dist)
