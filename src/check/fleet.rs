@@ -38,8 +38,8 @@ use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 use std::fmt;
 
-use crate::fleet::FleetPlan;
-use crate::model::{Cost, Dir, Instance};
+use crate::fleet::{FleetPlan, FleetRoute};
+use crate::model::{Cost, Dir, Instance, TruckType};
 
 /// One thing wrong with a fleet plan. Routes, visits and tips are 0-based
 /// positions in the plan; streets are link indices.
@@ -282,183 +282,14 @@ pub fn check_fleet_plan(inst: &Instance, plan: &FleetPlan) -> Result<(), Vec<Fle
                 home: ty.yard,
             });
         }
-        let yard = yards[ty.yard].junction;
-        let mut memo: Vec<(usize, Vec<(Cost, Cost)>)> = Vec::new();
-        let mut leg = |a: usize, b: usize| -> Option<(Cost, Cost)> {
-            let pos = match memo.iter().position(|(s, _)| *s == a) {
-                Some(p) => p,
-                None => {
-                    memo.push((a, dijkstra(inst, &ty.no_entry, a)));
-                    memo.len() - 1
-                }
-            };
-            let d = memo[pos].1[b];
-            (d.0 < INF).then_some(d)
-        };
-        let (mut driven, mut time, mut unload) = (0, 0, 0);
-        let mut loads = vec![0];
-        let mut at = yard;
-        let mut ti = 0;
-        let mut broken = false;
-        for pos in 0..=r.visits.len() {
-            // Tips placed before visit `pos` (after `pos` visits).
-            let mut first_here = true;
-            while ti < r.tips.len() && r.tips[ti].after == pos {
-                let tip = r.tips[ti];
-                let Some(site) = ops.dump_sites.get(tip.site) else {
-                    out.push(FleetViolation::BadTip { route: ri, tip: ti });
-                    broken = true;
-                    ti += 1;
-                    continue;
-                };
-                if pos == 0 || !first_here {
-                    out.push(FleetViolation::BadTip { route: ri, tip: ti });
-                }
-                first_here = false;
-                match leg(at, site.junction) {
-                    None => {
-                        out.push(FleetViolation::NoPath {
-                            route: ri,
-                            from: at,
-                            to: site.junction,
-                        });
-                        broken = true;
-                    }
-                    Some((c, t)) => {
-                        driven += c;
-                        let mut arrive = time + t;
-                        if let Some(h) = site.hours {
-                            if arrive > h.closes {
-                                out.push(FleetViolation::SiteClosed {
-                                    route: ri,
-                                    tip: ti,
-                                    arrival: arrive,
-                                    closes: h.closes,
-                                });
-                            }
-                            arrive = arrive.max(h.opens);
-                        }
-                        time = arrive + site.unload_time;
-                    }
-                }
-                unload += site.unload_cost;
-                loads.push(0);
-                at = site.junction;
-                ti += 1;
-            }
-            let Some(v) = r.visits.get(pos) else { break };
-            let Some(task) = inst.tasks().get(v.task) else {
-                out.push(FleetViolation::UnknownTask {
-                    route: ri,
-                    visit: pos,
-                });
-                broken = true;
-                continue;
-            };
-            served[v.task] += 1;
-            if !task.allows(v.dir) {
-                out.push(FleetViolation::WrongDirection {
-                    route: ri,
-                    visit: pos,
-                    street: task.link,
-                });
-            }
-            if ty.no_entry.contains(&task.link) || ty.no_service.contains(&task.link) {
-                out.push(FleetViolation::TypeMayNotServe {
-                    route: ri,
-                    visit: pos,
-                    street: task.link,
-                    truck_type: ty.name.clone(),
-                });
-            }
-            let (s, e) = match v.dir {
-                Dir::Forward => (task.tail, task.head),
-                Dir::Backward => (task.head, task.tail),
-            };
-            match leg(at, s) {
-                None => {
-                    out.push(FleetViolation::NoPath {
-                        route: ri,
-                        from: at,
-                        to: s,
-                    });
-                    broken = true;
-                }
-                Some((c, t)) => {
-                    driven += c + task.cost;
-                    time += t + task.time;
-                }
-            }
-            *loads.last_mut().expect("a trip") += task.demand;
-            at = e;
-        }
-        if ti < r.tips.len() {
-            out.push(FleetViolation::BadTip { route: ri, tip: ti });
-        }
-        if !r.visits.is_empty() {
-            match leg(at, yard) {
-                None => {
-                    out.push(FleetViolation::NoPath {
-                        route: ri,
-                        from: at,
-                        to: yard,
-                    });
-                    broken = true;
-                }
-                Some((c, t)) => {
-                    driven += c;
-                    time += t;
-                }
-            }
-        }
-        for (trip, &load) in loads.iter().enumerate() {
-            if load > ty.capacity {
-                out.push(FleetViolation::Overloaded {
-                    route: ri,
-                    trip,
-                    load,
-                    capacity: ty.capacity,
-                });
-            }
-        }
-        let last = *loads.last().expect("a trip");
-        if ops.return_empty && !ops.dump_sites.is_empty() && last > 0 {
-            out.push(FleetViolation::ReturnsLoaded {
-                route: ri,
-                load: last,
-            });
-        }
-        if let Some(limit) = ty.shift_limit {
-            if time > limit {
-                out.push(FleetViolation::OverShift {
-                    route: ri,
-                    time,
-                    limit,
-                });
-            }
-        }
-        if broken {
-            continue;
-        }
-        let milli = ty.cost_per_mille * driven + 1000 * unload;
-        let cost = ty.fixed_cost + (milli + 999).div_euclid(1000);
-        let mut differ = |what, stated: String, actual: String| {
-            if stated != actual {
-                out.push(FleetViolation::Mismatch {
-                    route: ri,
-                    what,
-                    stated,
-                    actual,
-                });
-            }
-        };
-        differ("cost", r.cost.to_string(), cost.to_string());
-        differ("shift time", r.time.to_string(), time.to_string());
-        differ("cost driven", r.driven.to_string(), driven.to_string());
-        differ(
-            "trip loads",
-            format!("{:?}", r.trip_loads),
-            format!("{loads:?}"),
+        check_route(
+            inst,
+            ty,
+            yards[ty.yard].junction,
+            ri,
+            r,
+            &mut served,
+            &mut out,
         );
     }
     for (k, ty) in types.iter().enumerate() {
@@ -492,4 +323,195 @@ pub fn check_fleet_plan(inst: &Instance, plan: &FleetPlan) -> Result<(), Vec<Fle
     } else {
         Err(out)
     }
+}
+
+/// Checks one route of type `ty` from junction `yard`; counts its services
+/// in `served` and pushes what is wrong onto `out`.
+fn check_route(
+    inst: &Instance,
+    ty: &TruckType,
+    yard: usize,
+    ri: usize,
+    r: &FleetRoute,
+    served: &mut [usize],
+    out: &mut Vec<FleetViolation>,
+) {
+    let ops = inst.operations();
+    let mut memo: Vec<(usize, Vec<(Cost, Cost)>)> = Vec::new();
+    let mut leg = |a: usize, b: usize| -> Option<(Cost, Cost)> {
+        let pos = match memo.iter().position(|(s, _)| *s == a) {
+            Some(p) => p,
+            None => {
+                memo.push((a, dijkstra(inst, &ty.no_entry, a)));
+                memo.len() - 1
+            }
+        };
+        let d = memo[pos].1[b];
+        (d.0 < INF).then_some(d)
+    };
+    let (mut driven, mut time, mut unload) = (0, 0, 0);
+    let mut loads = vec![0];
+    let mut at = yard;
+    let mut ti = 0;
+    let mut broken = false;
+    for pos in 0..=r.visits.len() {
+        // Tips placed before visit `pos` (after `pos` visits).
+        let mut first_here = true;
+        while ti < r.tips.len() && r.tips[ti].after == pos {
+            let tip = r.tips[ti];
+            let Some(site) = ops.dump_sites.get(tip.site) else {
+                out.push(FleetViolation::BadTip { route: ri, tip: ti });
+                broken = true;
+                ti += 1;
+                continue;
+            };
+            if pos == 0 || !first_here {
+                out.push(FleetViolation::BadTip { route: ri, tip: ti });
+            }
+            first_here = false;
+            match leg(at, site.junction) {
+                None => {
+                    out.push(FleetViolation::NoPath {
+                        route: ri,
+                        from: at,
+                        to: site.junction,
+                    });
+                    broken = true;
+                }
+                Some((c, t)) => {
+                    driven += c;
+                    let mut arrive = time + t;
+                    if let Some(h) = site.hours {
+                        if arrive > h.closes {
+                            out.push(FleetViolation::SiteClosed {
+                                route: ri,
+                                tip: ti,
+                                arrival: arrive,
+                                closes: h.closes,
+                            });
+                        }
+                        arrive = arrive.max(h.opens);
+                    }
+                    time = arrive + site.unload_time;
+                }
+            }
+            unload += site.unload_cost;
+            loads.push(0);
+            at = site.junction;
+            ti += 1;
+        }
+        let Some(v) = r.visits.get(pos) else { break };
+        let Some(task) = inst.tasks().get(v.task) else {
+            out.push(FleetViolation::UnknownTask {
+                route: ri,
+                visit: pos,
+            });
+            broken = true;
+            continue;
+        };
+        served[v.task] += 1;
+        if !task.allows(v.dir) {
+            out.push(FleetViolation::WrongDirection {
+                route: ri,
+                visit: pos,
+                street: task.link,
+            });
+        }
+        if ty.no_entry.contains(&task.link) || ty.no_service.contains(&task.link) {
+            out.push(FleetViolation::TypeMayNotServe {
+                route: ri,
+                visit: pos,
+                street: task.link,
+                truck_type: ty.name.clone(),
+            });
+        }
+        let (s, e) = match v.dir {
+            Dir::Forward => (task.tail, task.head),
+            Dir::Backward => (task.head, task.tail),
+        };
+        match leg(at, s) {
+            None => {
+                out.push(FleetViolation::NoPath {
+                    route: ri,
+                    from: at,
+                    to: s,
+                });
+                broken = true;
+            }
+            Some((c, t)) => {
+                driven += c + task.cost;
+                time += t + task.time;
+            }
+        }
+        *loads.last_mut().expect("a trip") += task.demand;
+        at = e;
+    }
+    if ti < r.tips.len() {
+        out.push(FleetViolation::BadTip { route: ri, tip: ti });
+    }
+    if !r.visits.is_empty() {
+        match leg(at, yard) {
+            None => {
+                out.push(FleetViolation::NoPath {
+                    route: ri,
+                    from: at,
+                    to: yard,
+                });
+                broken = true;
+            }
+            Some((c, t)) => {
+                driven += c;
+                time += t;
+            }
+        }
+    }
+    for (trip, &load) in loads.iter().enumerate() {
+        if load > ty.capacity {
+            out.push(FleetViolation::Overloaded {
+                route: ri,
+                trip,
+                load,
+                capacity: ty.capacity,
+            });
+        }
+    }
+    let last = *loads.last().expect("a trip");
+    if ops.return_empty && !ops.dump_sites.is_empty() && last > 0 {
+        out.push(FleetViolation::ReturnsLoaded {
+            route: ri,
+            load: last,
+        });
+    }
+    if let Some(limit) = ty.shift_limit {
+        if time > limit {
+            out.push(FleetViolation::OverShift {
+                route: ri,
+                time,
+                limit,
+            });
+        }
+    }
+    if broken {
+        return;
+    }
+    let milli = ty.cost_per_mille * driven + 1000 * unload;
+    let cost = ty.fixed_cost + (milli + 999).div_euclid(1000);
+    let mut differ = |what, stated: String, actual: String| {
+        if stated != actual {
+            out.push(FleetViolation::Mismatch {
+                route: ri,
+                what,
+                stated,
+                actual,
+            });
+        }
+    };
+    differ("cost", r.cost.to_string(), cost.to_string());
+    differ("shift time", r.time.to_string(), time.to_string());
+    differ("cost driven", r.driven.to_string(), driven.to_string());
+    differ(
+        "trip loads",
+        format!("{:?}", r.trip_loads),
+        format!("{loads:?}"),
+    );
 }

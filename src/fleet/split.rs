@@ -394,6 +394,10 @@ pub enum SplitError {
     Infeasible,
 }
 
+/// The best final label, the longest-shift limit it was found with, and
+/// all node labels (for walking back).
+type Best = (Node, Cost, Vec<Vec<Node>>);
+
 /// Node label of the outer programme.
 #[derive(Clone, Debug)]
 struct Node {
@@ -448,52 +452,8 @@ pub fn split_with(
         let b = nodes[n].first().cloned().ok_or(SplitError::Infeasible)?;
         (Some((b, Cost::MAX, nodes)), ex)
     } else {
-        // The longest shift is at least, for every position, the quickest
-        // route that covers it.
-        let mut quickest = vec![Cost::MAX; n];
-        for (i, list) in edges.iter().enumerate() {
-            for e in list {
-                for q in &mut quickest[i..e.j as usize] {
-                    *q = (*q).min(e.time);
-                }
-            }
-        }
-        let t_lo = quickest.iter().copied().max().unwrap_or(0);
-        let mut times: Vec<Cost> = edges
-            .iter()
-            .flatten()
-            .map(|e| e.time)
-            .filter(|&t| t >= t_lo)
-            .collect();
-        times.sort_unstable();
-        times.dedup();
-        if times.len() > thresholds {
-            // Evenly spread candidates, the largest always kept: a plan is
-            // still found, but the balance is no longer exact.
-            let m = times.len();
-            times = (1..=thresholds)
-                .map(|k| times[k * m / thresholds - 1])
-                .collect();
-            exact = false;
-        }
-        let (free, mut ex) = outer(tables, &edges, n, Cost::MAX);
-        let floor = free[n].first().ok_or(SplitError::Infeasible)?.cost;
-        let mut best: Option<(Node, Cost, Vec<Vec<Node>>)> = None;
-        let mut best_value = Cost::MAX;
-        for &t in &times {
-            if floor + weight * t >= best_value {
-                break;
-            }
-            let (nodes, e) = outer(tables, &edges, n, t);
-            ex &= e;
-            if let Some(b) = nodes[n].first() {
-                let v = b.cost + weight * t;
-                if v < best_value {
-                    best_value = v;
-                    best = Some((b.clone(), t, nodes));
-                }
-            }
-        }
+        let (best, ex, sampled) = balanced(tables, &edges, n, weight, thresholds)?;
+        exact &= !sampled;
         (best, ex)
     };
     exact &= nodes_exact;
@@ -536,6 +496,66 @@ pub fn split_with(
         objective: cost + weight * longest,
         exact,
     })
+}
+
+/// The best of the outer programmes with routes no longer than each
+/// candidate longest shift, under `cost + weight × longest`; also whether
+/// every outer programme was exact and whether the candidates were sampled.
+fn balanced(
+    tables: &Tables,
+    edges: &[Vec<Edge>],
+    n: usize,
+    weight: Cost,
+    thresholds: usize,
+) -> Result<(Option<Best>, bool, bool), SplitError> {
+    let mut sampled = false;
+    // The longest shift is at least, for every position, the quickest
+    // route that covers it.
+    let mut quickest = vec![Cost::MAX; n];
+    for (i, list) in edges.iter().enumerate() {
+        for e in list {
+            for q in &mut quickest[i..e.j as usize] {
+                *q = (*q).min(e.time);
+            }
+        }
+    }
+    let t_lo = quickest.iter().copied().max().unwrap_or(0);
+    let mut times: Vec<Cost> = edges
+        .iter()
+        .flatten()
+        .map(|e| e.time)
+        .filter(|&t| t >= t_lo)
+        .collect();
+    times.sort_unstable();
+    times.dedup();
+    if times.len() > thresholds {
+        // Evenly spread candidates, the largest always kept: a plan is
+        // still found, but the balance is no longer exact.
+        let m = times.len();
+        times = (1..=thresholds)
+            .map(|k| times[k * m / thresholds - 1])
+            .collect();
+        sampled = true;
+    }
+    let (free, mut ex) = outer(tables, edges, n, Cost::MAX);
+    let floor = free[n].first().ok_or(SplitError::Infeasible)?.cost;
+    let mut best: Option<Best> = None;
+    let mut best_value = Cost::MAX;
+    for &t in &times {
+        if floor + weight * t >= best_value {
+            break;
+        }
+        let (nodes, e) = outer(tables, edges, n, t);
+        ex &= e;
+        if let Some(b) = nodes[n].first() {
+            let v = b.cost + weight * t;
+            if v < best_value {
+                best_value = v;
+                best = Some((b.clone(), t, nodes));
+            }
+        }
+    }
+    Ok((best, ex, sampled))
 }
 
 /// All edges of the outer programme, grouped by start node.

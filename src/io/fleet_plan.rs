@@ -222,117 +222,9 @@ pub fn read_fleet_plan(text: &str, file: &str, inst: &Instance) -> Result<FleetP
             },
         )
     })?;
-    let ops = inst.operations();
-    let types = ops.types_of(inst);
-    let id = |j: usize| inst.network().junctions[j].id;
     let mut routes = Vec::with_capacity(rec.routes.len());
     for (ri, r) in rec.routes.iter().enumerate() {
-        let p = |k: &str| format!("routes[{ri}].{k}");
-        let k = types
-            .iter()
-            .position(|t| t.name == r.truck_type)
-            .ok_or_else(|| {
-                at(
-                    p("truck_type"),
-                    ParseProblem::UnknownName {
-                        what: "truck type",
-                        name: r.truck_type.clone(),
-                    },
-                )
-            })?;
-        let (mut visits, mut tips) = (Vec::new(), Vec::new());
-        for (si, s) in r.stops.iter().enumerate() {
-            let sp = format!("routes[{ri}].stops[{si}]");
-            match s {
-                StopRec::Tip { site, .. } => {
-                    if *site >= ops.dump_sites.len() {
-                        return Err(at(
-                            sp,
-                            ParseProblem::UnknownName {
-                                what: "dump site",
-                                name: site.to_string(),
-                            },
-                        ));
-                    }
-                    tips.push(Tip {
-                        after: visits.len(),
-                        site: *site,
-                    });
-                }
-                StopRec::Serve { street, from, to } => {
-                    let visit = inst.tasks().iter().enumerate().find_map(|(t, task)| {
-                        (task.link == *street)
-                            .then(|| {
-                                [Dir::Forward, Dir::Backward].into_iter().find(|&d| {
-                                    let (a, b) = task.ends(d);
-                                    task.allows(d) && id(a) == *from && id(b) == *to
-                                })
-                            })
-                            .flatten()
-                            .map(|d| Visit::new(t, d))
-                    });
-                    let Some(v) = visit else {
-                        return Err(at(
-                            sp,
-                            ParseProblem::NotARequiredLink {
-                                route: ri,
-                                position: si,
-                                from: *from,
-                                to: *to,
-                                link: *street as i64,
-                            },
-                        ));
-                    };
-                    visits.push(v);
-                }
-            }
-        }
-        let route = FleetRoute::new(inst, &tables, k, visits, tips).map_err(|e| {
-            at(
-                p("stops"),
-                ParseProblem::Unexpected {
-                    expected: "a route its truck type can drive",
-                    found: format!("{e:?}"),
-                },
-            )
-        })?;
-        let home = &ops.yards_of(inst)[route.yard].name;
-        if *home != r.yard {
-            return Err(at(
-                p("yard"),
-                ParseProblem::Unexpected {
-                    expected: "the home yard of the truck type",
-                    found: r.yard.clone(),
-                },
-            ));
-        }
-        let stated = [
-            ("cost", r.cost, route.cost),
-            ("driven", r.driven, route.driven),
-            ("time", r.time, route.time),
-        ];
-        for (what, s, c) in stated {
-            if s != c {
-                return Err(at(
-                    p(what),
-                    ParseProblem::Mismatch {
-                        what: format!("route {ri} {what}"),
-                        stated: s,
-                        computed: c,
-                    },
-                ));
-            }
-        }
-        if r.trip_loads != route.trip_loads {
-            return Err(at(
-                p("trip_loads"),
-                ParseProblem::Unexpected {
-                    expected: "the recomputed trip loads",
-                    found: format!("{:?} (recomputed {:?})", r.trip_loads, route.trip_loads),
-                },
-            ));
-        }
-        routes.push(route);
+        routes.push(read_route(inst, &tables, &at, ri, r)?);
     }
     let plan = FleetPlan::new(routes);
     if plan.cost != rec.cost {
@@ -346,4 +238,123 @@ pub fn read_fleet_plan(text: &str, file: &str, inst: &Instance) -> Result<FleetP
         ));
     }
     Ok(plan)
+}
+
+/// Rebuilds route `ri` of a plan file and compares its stated numbers.
+fn read_route(
+    inst: &Instance,
+    tables: &Tables,
+    at: &dyn Fn(String, ParseProblem) -> Error,
+    ri: usize,
+    r: &RouteRec,
+) -> Result<FleetRoute> {
+    let ops = inst.operations();
+    let types = ops.types_of(inst);
+    let id = |j: usize| inst.network().junctions[j].id;
+    let p = |k: &str| format!("routes[{ri}].{k}");
+    let k = types
+        .iter()
+        .position(|t| t.name == r.truck_type)
+        .ok_or_else(|| {
+            at(
+                p("truck_type"),
+                ParseProblem::UnknownName {
+                    what: "truck type",
+                    name: r.truck_type.clone(),
+                },
+            )
+        })?;
+    let (mut visits, mut tips) = (Vec::new(), Vec::new());
+    for (si, s) in r.stops.iter().enumerate() {
+        let sp = format!("routes[{ri}].stops[{si}]");
+        match s {
+            StopRec::Tip { site, .. } => {
+                if *site >= ops.dump_sites.len() {
+                    return Err(at(
+                        sp,
+                        ParseProblem::UnknownName {
+                            what: "dump site",
+                            name: site.to_string(),
+                        },
+                    ));
+                }
+                tips.push(Tip {
+                    after: visits.len(),
+                    site: *site,
+                });
+            }
+            StopRec::Serve { street, from, to } => {
+                let visit = inst.tasks().iter().enumerate().find_map(|(t, task)| {
+                    (task.link == *street)
+                        .then(|| {
+                            [Dir::Forward, Dir::Backward].into_iter().find(|&d| {
+                                let (a, b) = task.ends(d);
+                                task.allows(d) && id(a) == *from && id(b) == *to
+                            })
+                        })
+                        .flatten()
+                        .map(|d| Visit::new(t, d))
+                });
+                let Some(v) = visit else {
+                    return Err(at(
+                        sp,
+                        ParseProblem::NotARequiredLink {
+                            route: ri,
+                            position: si,
+                            from: *from,
+                            to: *to,
+                            link: *street as i64,
+                        },
+                    ));
+                };
+                visits.push(v);
+            }
+        }
+    }
+    let route = FleetRoute::new(inst, &tables, k, visits, tips).map_err(|e| {
+        at(
+            p("stops"),
+            ParseProblem::Unexpected {
+                expected: "a route its truck type can drive",
+                found: format!("{e:?}"),
+            },
+        )
+    })?;
+    let home = &ops.yards_of(inst)[route.yard].name;
+    if *home != r.yard {
+        return Err(at(
+            p("yard"),
+            ParseProblem::Unexpected {
+                expected: "the home yard of the truck type",
+                found: r.yard.clone(),
+            },
+        ));
+    }
+    let stated = [
+        ("cost", r.cost, route.cost),
+        ("driven", r.driven, route.driven),
+        ("time", r.time, route.time),
+    ];
+    for (what, s, c) in stated {
+        if s != c {
+            return Err(at(
+                p(what),
+                ParseProblem::Mismatch {
+                    what: format!("route {ri} {what}"),
+                    stated: s,
+                    computed: c,
+                },
+            ));
+        }
+    }
+    if r.trip_loads != route.trip_loads {
+        return Err(at(
+            p("trip_loads"),
+            ParseProblem::Unexpected {
+                expected: "the recomputed trip loads",
+                found: format!("{:?} (recomputed {:?})", r.trip_loads, route.trip_loads),
+            },
+        ));
+    }
+    Ok(route)
 }
