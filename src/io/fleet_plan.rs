@@ -311,7 +311,7 @@ fn read_route(
             }
         }
     }
-    let route = FleetRoute::new(inst, &tables, k, visits, tips).map_err(|e| {
+    let route = FleetRoute::new(inst, tables, k, visits, tips).map_err(|e| {
         at(
             p("stops"),
             ParseProblem::Unexpected {
