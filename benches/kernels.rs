@@ -2,8 +2,7 @@
 //! (egl-e4-C, Li & Eglese 1996, from ../shared/instances): Ulusoy's split of
 //! a giant tour, one local-search descent from a split, and the
 //! constant-time evaluation of relocation moves.
-
-use std::path::PathBuf;
+#![allow(missing_docs)] // criterion_group! makes an undocumented pub fn
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 use rand::SeedableRng;
@@ -16,13 +15,13 @@ use arcwright::improve::local_search::{neighbour_lists, LocalSearch, DEFAULT_NEI
 use arcwright::io::read_dat_file;
 use arcwright::paths::Distances;
 
+#[path = "../tests/common/mod.rs"]
+mod common;
+
 fn kernels(c: &mut Criterion) {
-    let path =
-        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/instances/egl/egl-e4-C.dat");
-    if !path.exists() {
-        eprintln!("SKIPPED: {} not found", path.display());
+    let Some(path) = common::shared_file("kernels", "egl/egl-e4-C.dat") else {
         return;
-    }
+    };
     let dat = read_dat_file(&path).unwrap();
     let inst = &dat.instance;
     let dist = Distances::new(inst).unwrap();
@@ -38,10 +37,10 @@ fn kernels(c: &mut Criterion) {
     c.bench_function("local search descent from a split, egl-e4-C", |b| {
         b.iter(|| {
             let mut r = ChaCha8Rng::seed_from_u64(2);
-            ls.run(black_box(&s.routes), &mut r).1
+            ls.run(black_box(&s.routes), &mut r).cost
         })
     });
-    let (routes, _, _) = ls.run(&s.routes, &mut rng);
+    let routes = ls.run(&s.routes, &mut rng).routes;
     let (count, _) = ls.scan_relocations(&routes);
     c.bench_function(
         &format!("evaluate {count} relocations (constant-time each), egl-e4-C"),

@@ -5,6 +5,7 @@
 //! ```text
 //! cargo bench --bench matching
 //! ```
+#![allow(missing_docs)] // criterion_group! makes an undocumented pub fn
 
 use arcwright::postman::{DenseBlossom, PerfectMatching};
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
@@ -14,7 +15,7 @@ use rand_chacha::ChaCha8Rng;
 fn points(n: usize) -> Vec<(i64, i64)> {
     let mut r = ChaCha8Rng::seed_from_u64(n as u64);
     (0..n)
-        .map(|_| (r.gen_range(0..10_000), r.gen_range(0..10_000)))
+        .map(|_| (r.random_range(0..10_000), r.random_range(0..10_000)))
         .collect()
 }
 

@@ -1,7 +1,8 @@
 //! Prints the plan costs of today's solver (`Solver`) on a few public
-//! instances at a fixed seed and iteration limit, as CSV. Used once to write
-//! `tests/fixtures/fleet_off_costs.csv`, the reference that the fleet model
-//! with every feature off must reproduce:
+//! instances at a fixed seed and iteration limit, as CSV. Run on a copy of
+//! main without the fleet code to write `tests/fixtures/fleet_off_costs.csv`,
+//! the reference that the fleet model with every feature off must reproduce
+//! (when the solver's random streams change, record it again the same way):
 //!
 //! `cargo run --release --example record_costs > tests/fixtures/fleet_off_costs.csv`
 //!

@@ -8,11 +8,13 @@
 //! Layout: [`model`] (network, fleet, tasks), [`io`] (readers and writers),
 //! [`paths`] (shortest deadhead paths), [`plan`] (routes and walks),
 //! [`check`] (independent plan checker), [`postman`] and [`bounds`]
-//! (single-tour routes and lower bounds), [`construct`], [`improve`] and
-//! [`search`] (the fleet solver), [`fleet`] (dump sites, several yards,
-//! truck types and balanced shifts), [`demo`] and [`report`] (demo towns and
-//! outputs for people, rendered as text). The `planner` program that writes
-//! them into a folder is an example (`examples/planner/`), not library API.
+//! (single-tour routes and lower bounds), [`search`] (the fleet solver,
+//! [`Solver`]; its internals `construct` and `improve` are crate-private,
+//! public only with the non-default `internals` feature for the kernel
+//! benchmarks), [`fleet`] (dump sites, several yards, truck types and
+//! balanced shifts), [`demo`] and [`report`] (demo towns and outputs for people,
+//! rendered as text). The `planner` program that writes them into a folder
+//! is an example (`examples/planner/`), not library API.
 //!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
@@ -33,13 +35,27 @@
 //! assert!(sol.cost >= sol.lower_bound.value);
 //! ```
 
+/// Declares a solver-internal module: crate-private, public only with the
+/// non-default `internals` feature (for the kernel benchmarks). Nothing in it
+/// is a stable API.
+macro_rules! internal_mod {
+    ($name:ident) => {
+        #[cfg(feature = "internals")]
+        pub mod $name;
+        #[cfg(not(feature = "internals"))]
+        #[allow(dead_code, unreachable_pub)] // parts only the benchmarks use
+        pub(crate) mod $name;
+    };
+}
 pub mod bounds;
 pub mod check;
-pub mod construct;
+// Solver internals: the arc matrix, Path-Scanning, giant tours and split.
+internal_mod!(construct);
 pub mod demo;
 pub mod error;
 pub mod fleet;
-pub mod improve;
+// Solver internals: local search and Merge-Split.
+internal_mod!(improve);
 pub mod io;
 pub mod model;
 pub mod paths;

@@ -3,6 +3,8 @@
 //! violation, and accepts one-route-per-task plans on the gdb set (whose cost
 //! must not undercut the published lower bounds in ../shared/instances/reference.csv).
 
+mod common;
+
 use std::path::Path;
 
 use arcwright::check::{check_plan, check_walks, At, Violation};
@@ -531,11 +533,9 @@ fn lower_bounds(root: &Path) -> std::collections::HashMap<String, i64> {
 
 #[test]
 fn one_route_per_task_on_gdb() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
-    if !root.is_dir() {
-        println!("SKIPPED: {} is absent", root.display());
+    let Some(root) = common::shared_dir("checker::one_route_per_task_on_gdb") else {
         return;
-    }
+    };
     let lb = lower_bounds(&root);
     for k in 1..=23 {
         let name = format!("gdb{k}");
@@ -586,48 +586,57 @@ fn agrees_with_the_crate_on_random_plans() {
     let mut checked = 0;
     let mut limits_hit = 0;
     for _ in 0..300 {
-        let n = rng.gen_range(2..10);
+        let n = rng.random_range(2..10);
         let mut net = Network::with_junctions(n);
         for v in 0..n {
-            let t = rng.gen_bool(0.5).then(|| rng.gen_range(0..9));
-            net.add_link(link(v, (v + 1) % n, false, rng.gen_range(0..9), t));
+            let t = rng.random_bool(0.5).then(|| rng.random_range(0..9));
+            net.add_link(link(v, (v + 1) % n, false, rng.random_range(0..9), t));
         }
-        for _ in 0..rng.gen_range(1..3 * n) {
-            let (a, b) = (rng.gen_range(0..n), rng.gen_range(0..n));
-            let t = rng.gen_bool(0.5).then(|| rng.gen_range(0..9));
-            let mut l = link(a, b, rng.gen_bool(0.4), rng.gen_range(0..9), t);
-            if rng.gen_bool(0.7) {
-                let dir = if rng.gen_bool(0.3) {
+        for _ in 0..rng.random_range(1..3 * n) {
+            let (a, b) = (rng.random_range(0..n), rng.random_range(0..n));
+            let t = rng.random_bool(0.5).then(|| rng.random_range(0..9));
+            let mut l = link(a, b, rng.random_bool(0.4), rng.random_range(0..9), t);
+            if rng.random_bool(0.7) {
+                let dir = if rng.random_bool(0.3) {
                     ServeDirection::Forward
                 } else {
                     ServeDirection::Either
                 };
-                let st = rng.gen_bool(0.5).then(|| rng.gen_range(0..12));
-                l = serve(l, rng.gen_range(0..6), st, dir);
+                let st = rng.random_bool(0.5).then(|| rng.random_range(0..12));
+                l = serve(l, rng.random_range(0..6), st, dir);
                 if let Some(s) = l.service.as_mut() {
-                    s.cost = rng.gen_range(0..9);
+                    s.cost = rng.random_range(0..9);
                 }
             }
             net.add_link(l);
         }
         let fleet = Fleet {
-            capacity: rng.gen_range(5..15),
-            shift_limit: Some(rng.gen_range(10..60)),
+            capacity: rng.random_range(5..15),
+            shift_limit: Some(rng.random_range(10..60)),
             max_vehicles: None,
         };
-        let inst = Instance::new("random", net, fleet.clone(), rng.gen_range(0..n)).unwrap();
+        let inst = Instance::new("random", net, fleet.clone(), rng.random_range(0..n)).unwrap();
         let dist = Distances::new(&inst).unwrap();
         let mut visits: Vec<Visit> = inst
             .tasks()
             .iter()
             .enumerate()
-            .map(|(i, t)| Visit::new(i, if t.either && rng.gen_bool(0.5) { B } else { F }))
+            .map(|(i, t)| {
+                Visit::new(
+                    i,
+                    if t.either && rng.random_bool(0.5) {
+                        B
+                    } else {
+                        F
+                    },
+                )
+            })
             .collect();
         visits.shuffle(&mut rng);
-        let k = rng.gen_range(1..=visits.len().max(1));
+        let k = rng.random_range(1..=visits.len().max(1));
         let mut routes: Vec<Vec<Visit>> = vec![Vec::new(); k];
         for v in visits {
-            routes[rng.gen_range(0..k)].push(v);
+            routes[rng.random_range(0..k)].push(v);
         }
         let p = Plan::from_visits(&inst, &dist, routes);
         let mut expected = Vec::new();

@@ -24,8 +24,11 @@ fn shared() -> Option<PathBuf> {
 }
 
 /// `tests/fixtures/fleet_off_costs.csv` was written by
-/// `cargo run --release --example record_costs` on commit a7051a2, before
-/// the fleet model existed: today's `Solver` at those seeds and limits.
+/// `cargo run --release --example record_costs` on an export of main at
+/// 75acb37 (`git archive`, with only that example added), whose `Solver`
+/// has no fleet code: today's `Solver` at those seeds and limits. (First
+/// recorded on a7051a2 before any fleet change; rand 0.9, merged with
+/// 75acb37, changed the random streams and so gdb8 and val5C.)
 #[test]
 fn every_feature_off_gives_todays_costs() {
     let Some(dir) = shared() else { return };

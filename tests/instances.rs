@@ -2,19 +2,15 @@
 //! and checked against its own header, read here by a separate, simple parser:
 //! VERTICES, ARISTAS_REQ, ARISTAS_NOREQ and COSTE_TOTAL_REQ.
 
+mod common;
+
 use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 
 use arcwright::io::read_dat_file;
 
 fn shared() -> Option<PathBuf> {
-    let p = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
-    if p.is_dir() {
-        Some(p)
-    } else {
-        println!("SKIPPED: {} is absent", p.display());
-        None
-    }
+    common::shared_dir("instances")
 }
 
 fn files(root: &Path) -> Vec<PathBuf> {

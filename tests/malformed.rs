@@ -73,7 +73,7 @@ fn research_format_errors_name_kind_and_line() {
         matches!(p, P::DuplicateDepot { first_line: 15 })
     });
     expect("unreachable.dat", 13, |p| {
-        matches!(p, P::Model(M::Unreachable { link: 3 }))
+        matches!(p, P::Model(M::Unreachable { link: 3, .. }))
     });
     expect("demand_over_capacity.dat", 11, |p| {
         matches!(
@@ -81,7 +81,8 @@ fn research_format_errors_name_kind_and_line() {
             P::Model(M::DemandExceedsCapacity {
                 link: 1,
                 demand: 11,
-                capacity: 10
+                capacity: 10,
+                ..
             })
         )
     });
@@ -112,7 +113,8 @@ fn scenario_errors_name_kind_path_and_line() {
             P::Model(M::Negative {
                 link: 2,
                 what: "cost",
-                value: -2
+                value: -2,
+                ..
             })
         )
     });
@@ -123,13 +125,14 @@ fn scenario_errors_name_kind_path_and_line() {
             P::Model(M::DemandExceedsCapacity {
                 link: 1,
                 demand: 12,
-                capacity: 10
+                capacity: 10,
+                ..
             })
         )
     });
     assert_eq!(path(&e).as_deref(), Some("streets[1].service.demand"));
     let e = expect("unreachable.json", 22, |p| {
-        matches!(p, P::Model(M::Unreachable { link: 5 }))
+        matches!(p, P::Model(M::Unreachable { link: 5, .. }))
     });
     assert_eq!(path(&e).as_deref(), Some("streets[5]"));
     assert!(e.to_string().contains("streets[5]"), "{e}");

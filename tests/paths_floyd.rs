@@ -13,23 +13,23 @@ use rand_chacha::ChaCha8Rng;
 const INF: (i64, i64) = (i64::MAX, i64::MAX);
 
 fn random_network(rng: &mut ChaCha8Rng) -> Network {
-    let n = rng.gen_range(1..=12);
-    let m = rng.gen_range(0..=3 * n);
+    let n = rng.random_range(1..=12);
+    let m = rng.random_range(0..=3 * n);
     let mut net = Network::with_junctions(n);
     for _ in 0..m {
-        let from = rng.gen_range(0..n);
-        let to = rng.gen_range(0..n);
+        let from = rng.random_range(0..n);
+        let to = rng.random_range(0..n);
         // Small costs make ties (and so the time tie-break) frequent.
-        let cost = rng.gen_range(0..=6);
-        let time = if rng.gen_bool(0.6) {
-            Some(rng.gen_range(0..=9))
+        let cost = rng.random_range(0..=6);
+        let time = if rng.random_bool(0.6) {
+            Some(rng.random_range(0..=9))
         } else {
             None
         };
         net.add_link(Link {
             from,
             to,
-            oneway: rng.gen_bool(0.5),
+            oneway: rng.random_bool(0.5),
             cost,
             time,
             service: None,
@@ -90,7 +90,7 @@ fn distances_and_paths_agree_with_floyd_warshall() {
     for _ in 0..400 {
         let net = random_network(&mut rng);
         let n = net.len();
-        let with_times = rng.gen_bool(0.7);
+        let with_times = rng.random_bool(0.7);
         let fw = floyd(&net, with_times);
         let dist = Distances::between(&net, (0..n).collect(), with_times).unwrap();
         for u in 0..n {

@@ -1,6 +1,8 @@
 //! Plan files: round trip and typed errors, on gdb1 (Golden, DeArmon &
 //! Baker 1983, from ../shared/instances).
 
+mod common;
+
 use std::path::PathBuf;
 
 use arcwright::error::ParseProblem;
@@ -8,11 +10,7 @@ use arcwright::io::{read_dat_file, read_plan, write_plan};
 use arcwright::Solver;
 
 fn gdb1() -> Option<arcwright::model::Instance> {
-    let p = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/instances/gdb/gdb1.dat");
-    if !p.exists() {
-        eprintln!("SKIPPED: {} not found", p.display());
-        return None;
-    }
+    let p = common::shared_file("plan_json", "gdb/gdb1.dat")?;
     Some(read_dat_file(p).unwrap().instance)
 }
 

@@ -5,7 +5,7 @@ use arcwright::bounds::{all_bounds, bound};
 use arcwright::check::check_walks;
 use arcwright::model::{Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec};
 use arcwright::paths::{Distances, UNREACHABLE};
-use arcwright::plan::{evaluate, Visit};
+use arcwright::plan::{totals, Totals, Visit};
 use arcwright::postman::chinese::undirected_postman;
 use arcwright::postman::euler::{check_tour, euler_tour, is_eulerian};
 use arcwright::postman::rural::{rural_lower_bound, rural_tour};
@@ -20,12 +20,12 @@ fn connected(n: usize, extra: usize, seed: u64) -> Multigraph {
     let mut r = ChaCha8Rng::seed_from_u64(seed);
     let mut g = Multigraph::new(n);
     for v in 1..n {
-        let u = r.gen_range(0..v);
-        g.add(u, v, r.gen_range(0..50));
+        let u = r.random_range(0..v);
+        g.add(u, v, r.random_range(0..50));
     }
     for _ in 0..extra {
-        let (u, v) = (r.gen_range(0..n), r.gen_range(0..n));
-        g.add(u, v, r.gen_range(0..50));
+        let (u, v) = (r.random_range(0..n), r.random_range(0..n));
+        g.add(u, v, r.random_range(0..50));
     }
     g
 }
@@ -48,13 +48,13 @@ proptest! {
         let g = connected(n, extra, seed);
         let mut net = Network::with_junctions(n);
         for e in &g.edges {
-            if r.gen_bool(0.4) {
+            if r.random_bool(0.4) {
                 net.add_required_edge(e.u, e.v, e.cost, 1);
             } else {
                 net.add_edge(e.u, e.v, e.cost);
             }
         }
-        let inst = Instance::new("rural", net, Fleet::with_capacity(1000), r.gen_range(0..n)).unwrap();
+        let inst = Instance::new("rural", net, Fleet::with_capacity(1000), r.random_range(0..n)).unwrap();
         let t = rural_tour(&inst).unwrap();
         // The independent checker: a closed walk from the depot serving
         // every required link once in an allowed direction.
@@ -104,28 +104,28 @@ proptest! {
         let g = connected(n, extra, seed);
         let mut net = Network::with_junctions(n);
         for e in &g.edges {
-            let oneway = mixed && r.gen_bool(0.3);
-            let required = r.gen_bool(0.6);
+            let oneway = mixed && r.random_bool(0.3);
+            let required = r.random_bool(0.6);
             let service = required.then(|| ServiceSpec {
-                demand: r.gen_range(0..6),
+                demand: r.random_range(0..6),
                 // Service cost may differ from the deadhead cost.
-                cost: e.cost + r.gen_range(-(e.cost.min(3))..4),
+                cost: e.cost + r.random_range(-(e.cost.min(3))..4),
                 time: None,
-                direction: if mixed && (all_forward || r.gen_bool(0.3)) { ServeDirection::Forward } else { ServeDirection::Either },
+                direction: if mixed && (all_forward || r.random_bool(0.3)) { ServeDirection::Forward } else { ServeDirection::Either },
             });
             net.add_link(Link { from: e.u, to: e.v, oneway, cost: e.cost, time: None, service, name: None, length: None });
         }
         if mixed {
             // Two-way backbone so most instances stay valid.
-            for v in 1..n { net.add_link(Link { from: v - 1, to: v, oneway: false, cost: r.gen_range(1..60), time: None, service: None, name: None, length: None }); }
+            for v in 1..n { net.add_link(Link { from: v - 1, to: v, oneway: false, cost: r.random_range(1..60), time: None, service: None, name: None, length: None }); }
         }
-        let cap = r.gen_range(5..15);
+        let cap = r.random_range(5..15);
         let mut fleet = Fleet::with_capacity(cap);
-        if r.gen_bool(0.3) {
-            fleet.shift_limit = Some(r.gen_range(100..400));
+        if r.random_bool(0.3) {
+            fleet.shift_limit = Some(r.random_range(100..400));
         }
         let shift = fleet.shift_limit;
-        let Ok(inst) = Instance::new("random", net, fleet, r.gen_range(0..n)) else {
+        let Ok(inst) = Instance::new("random", net, fleet, r.random_range(0..n)) else {
             return Ok(());
         };
         let dist = Distances::new(&inst).unwrap();
@@ -133,7 +133,7 @@ proptest! {
         let nt = inst.tasks().len();
         let dir_of = |i: usize, r: &mut ChaCha8Rng| {
             let t = &inst.tasks()[i];
-            if t.either && r.gen_bool(0.5) { Dir::Backward } else { Dir::Forward }
+            if t.either && r.random_bool(0.5) { Dir::Backward } else { Dir::Forward }
         };
         // Plan 1: one route per task.
         let mut plans: Vec<Vec<Vec<Visit>>> = vec![(0..nt).map(|i| vec![Visit::new(i, dir_of(i, &mut r))]).collect()];
@@ -145,7 +145,7 @@ proptest! {
             let mut load = 0;
             for i in order {
                 let d = inst.tasks()[i].demand;
-                if load + d > cap || r.gen_bool(0.15) {
+                if load + d > cap || r.random_bool(0.15) {
                     routes.push(Vec::new());
                     load = 0;
                 }
@@ -157,7 +157,7 @@ proptest! {
         'plans: for routes in plans {
             let mut total = 0;
             for rt in routes.iter().filter(|rt| !rt.is_empty()) {
-                let (load, cost, time) = evaluate(&inst, &dist, rt);
+                let Totals { load, cost, time } = totals(&inst, &dist, rt);
                 prop_assert!(load <= cap);
                 prop_assert!(cost < UNREACHABLE);
                 if shift.is_some_and(|l| time > l) {
@@ -219,13 +219,17 @@ fn imbalance_flow_is_the_directed_postman_value_when_all_is_required() {
     let mut applied = 0;
     for seed in 0..40u64 {
         let mut r = ChaCha8Rng::seed_from_u64(seed);
-        let n = r.gen_range(2..25);
+        let n = r.random_range(2..25);
         let mut g = Multigraph::new(n);
         for v in 0..n {
-            g.add(v, (v + 1) % n, r.gen_range(1..30));
+            g.add(v, (v + 1) % n, r.random_range(1..30));
         }
-        for _ in 0..r.gen_range(0..2 * n) {
-            g.add(r.gen_range(0..n), r.gen_range(0..n), r.gen_range(0..30));
+        for _ in 0..r.random_range(0..2 * n) {
+            g.add(
+                r.random_range(0..n),
+                r.random_range(0..n),
+                r.random_range(0..30),
+            );
         }
         let mut net = Network::with_junctions(n);
         for e in &g.edges {

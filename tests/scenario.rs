@@ -2,6 +2,8 @@
 //! read -> write -> read gives an equal instance, for that file and for every
 //! public benchmark instance in ../shared/instances.
 
+mod common;
+
 use std::path::Path;
 
 use arcwright::io::{read_dat_file, read_scenario, read_scenario_file, write_scenario};
@@ -58,11 +60,9 @@ fn tiny_scenario_reads_as_written() {
 
 #[test]
 fn public_instances_round_trip() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
-    if !root.is_dir() {
-        println!("SKIPPED: {} is absent", root.display());
+    let Some(root) = common::shared_dir("scenario::public_instances_round_trip") else {
         return;
-    }
+    };
     let mut n = 0;
     for set in ["gdb", "val", "egl"] {
         let mut files: Vec<_> = std::fs::read_dir(root.join(set))

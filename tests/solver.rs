@@ -4,25 +4,19 @@
 //! Bartolini, Cordeau & Laporte 2013 and the heuristic literature) and
 //! against small hand-computed cases. All runs use iteration limits.
 
+mod common;
+
 use std::collections::HashMap;
 use std::path::PathBuf;
 
-use arcwright::construct::arcs::ArcMatrix;
-use arcwright::construct::split::{split, split_bounded, SplitFailure};
 use arcwright::io::{read_dat_file, read_reference};
-use arcwright::model::{Dir, Fleet, Instance, Network};
+use arcwright::model::{Fleet, Instance};
 use arcwright::paths::Distances;
 use arcwright::plan::{self, Plan};
 use arcwright::{SolveError, Solver};
 
 fn shared() -> Option<PathBuf> {
-    let p = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/instances");
-    if p.join("reference.csv").exists() {
-        Some(p)
-    } else {
-        eprintln!("SKIPPED: ../shared/instances not found");
-        None
-    }
+    common::shared_dir("solver")
 }
 
 /// instance -> (lower bound, best known, proven optimal)
@@ -51,7 +45,7 @@ fn verify(inst: &Instance, plan: &Plan) {
             seen[v.task] += 1;
             assert!(inst.tasks()[v.task].allows(v.dir));
         }
-        let (load, cost, time) = plan::evaluate(inst, &dist, &r.visits);
+        let plan::Totals { load, cost, time } = plan::totals(inst, &dist, &r.visits);
         assert_eq!((load, cost, time), (r.load, r.cost, r.time));
         assert!(load <= inst.fleet().capacity, "overloaded route");
         if let Some(s) = inst.fleet().shift_limit {
@@ -144,45 +138,6 @@ fn same_seed_and_workers_give_the_same_plan() {
     }
 }
 
-/// A square of junctions 0-1-2-3 (depot 0), every side costing 1. Required:
-/// e0 = (0,1), e1 = (1,2), e2 = (2,3), each of demand 1; (3,0) may only be
-/// deadheaded. Capacity 2. Giant tour [e2, e1, e0].
-///
-/// Routes of consecutive tasks (service 1 per task plus shortest deadheads):
-/// - {e2}: 0->3 (1) serve 3->2 (1) 2->0 (2) = 4 (the other direction also 4);
-/// - {e2,e1}: 0->3 (1), serve 3->2, serve 2->1, 1->0 (1) = 4 (both backward);
-/// - {e1}: 4; {e1,e0}: 0->2 (2) serve 2->1, serve 1->0 = 4; {e0}: 2;
-/// - {e2,e1,e0} would need load 3 > 2.
-///
-/// Shortest path on the auxiliary graph: V1 = 4, V2 = min(4+4, 4) = 4,
-/// V3 = min(V1 + {e1,e0} = 8, V2 + {e0} = 6) = 6. So the split is
-/// [e2 backward, e1 backward], [e0], cost 6.
-#[test]
-fn split_of_a_hand_made_tour() {
-    let mut net = Network::with_junctions(4);
-    net.add_required_edge(0, 1, 1, 1);
-    net.add_required_edge(1, 2, 1, 1);
-    net.add_required_edge(2, 3, 1, 1);
-    net.add_edge(3, 0, 1);
-    let inst = Instance::new("square", net, Fleet::with_capacity(2), 0).unwrap();
-    let dist = Distances::new(&inst).unwrap();
-    let m = ArcMatrix::new(&inst, &dist).unwrap();
-    let s = split(&m, &[2, 1, 0]).unwrap();
-    assert_eq!(s.cost, 6);
-    assert_eq!(s.routes.len(), 2);
-    let r0: Vec<_> = s.routes[0].iter().map(|&a| ArcMatrix::visit(a)).collect();
-    assert_eq!(r0[0].task, 2);
-    assert_eq!(r0[0].dir, Dir::Backward);
-    assert_eq!(r0[1].task, 1);
-    assert_eq!(r0[1].dir, Dir::Backward);
-    assert_eq!(ArcMatrix::task(s.routes[1][0]), 0);
-    // One truck cannot carry demand 3 with capacity 2.
-    assert_eq!(
-        split_bounded(&m, &[2, 1, 0], Some(1)).unwrap_err(),
-        SplitFailure::TooFewVehicles { fewest: 2 }
-    );
-}
-
 #[test]
 fn bounded_fleet_split_and_impossible_fleet() {
     let Some(dir) = shared() else { return };
@@ -217,12 +172,6 @@ fn bounded_fleet_split_and_impossible_fleet() {
             max_vehicles: Some(5),
         })
         .unwrap();
-    let dist = Distances::new(&five).unwrap();
-    let m = ArcMatrix::new(&five, &dist).unwrap();
-    let tour: Vec<usize> = (0..22).collect();
-    let free = split_bounded(&m, &tour, None).unwrap();
-    let bounded = split(&m, &tour).unwrap();
-    assert!(bounded.routes.len() <= 5 && bounded.cost >= free.cost);
     let sol = Solver::new(&five).max_iterations(100).solve().unwrap();
     verify(&five, &sol.plan);
     assert!(sol.plan.routes.len() <= 5);

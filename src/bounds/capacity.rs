@@ -60,6 +60,10 @@ fn ceil_div(a: Cost, b: Cost) -> Cost {
 /// two extra copies matched to `x` and `y` can be dropped and `x`, `y`
 /// matched together at no more cost, by the triangle inequality
 /// (`c₂ ≥ 0`, and `dist(x, y) ≤ dist(x, depot) + dist(depot, y)`).
+///
+/// # Errors
+/// [`PostmanError`] when the matching solver fails or a cost is beyond
+/// [`crate::postman::COST_LIMIT`]; `Solver` when no link touches the yard.
 pub fn depot_degree_bound(
     inst: &Instance,
     matcher: &dyn PerfectMatching,
@@ -130,6 +134,9 @@ fn depot_degree_matching(
 /// the costs `c^α` (its proof holds for any non-negative link costs). The
 /// two parts bound disjoint shares of the same cost, so they add; the sum is
 /// rounded up since plan costs are integers.
+///
+/// # Errors
+/// [`PostmanError`] from the matching solver, as for [`depot_degree_bound`].
 pub fn blended_bound(inst: &Instance, matcher: &dyn PerfectMatching) -> Result<Cost, PostmanError> {
     let g = Multigraph::from_network(inst.network());
     let (dist, _) = g.dijkstra(&[inst.depot()], false);

@@ -25,6 +25,10 @@ use crate::postman::{
 /// cost between its ends in the undirected relaxation. So `cost(D)` is at
 /// least the cheapest perfect matching of `O`. When every link is required,
 /// two-way and connected, this is exactly the Chinese postman value.
+///
+/// # Errors
+/// [`PostmanError`] when the matching solver fails or a cost is beyond
+/// [`crate::postman::COST_LIMIT`].
 pub fn odd_matching_bound(
     inst: &Instance,
     matcher: &dyn PerfectMatching,

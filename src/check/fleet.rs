@@ -40,6 +40,7 @@ use std::fmt;
 
 use crate::fleet::{FleetPlan, FleetRoute};
 use crate::model::{Cost, Dir, Instance, TruckType};
+use crate::plan::Visit;
 
 /// One thing wrong with a fleet plan. Routes, visits and tips are 0-based
 /// positions in the plan; streets are link indices.
@@ -47,75 +48,136 @@ use crate::model::{Cost, Dir, Instance, TruckType};
 #[non_exhaustive]
 pub enum FleetViolation {
     /// A route names a truck type that does not exist.
-    UnknownType { route: usize, truck_type: usize },
+    UnknownType {
+        /// The route.
+        route: usize,
+        /// The type index given.
+        truck_type: usize,
+    },
     /// A route starts from another yard than its type's home yard.
     WrongYard {
+        /// The route.
         route: usize,
+        /// The yard the route names.
         yard: usize,
+        /// The home yard of its truck type.
         home: usize,
     },
     /// More routes of a type than trucks of it.
     TooManyTrucks {
+        /// The truck type's name.
         truck_type: String,
+        /// Routes of that type.
         used: usize,
+        /// Trucks of that type.
         count: usize,
     },
     /// A visit names a task that does not exist.
-    UnknownTask { route: usize, visit: usize },
+    UnknownTask {
+        /// The route.
+        route: usize,
+        /// The visit's position in the route.
+        visit: usize,
+    },
     /// A task served in a direction it may not be served in.
     WrongDirection {
+        /// The route.
         route: usize,
+        /// The visit's position in the route.
         visit: usize,
+        /// The street (link index).
         street: usize,
     },
     /// A task the route's truck type may not serve (or drive on).
     TypeMayNotServe {
+        /// The route.
         route: usize,
+        /// The visit's position in the route.
         visit: usize,
+        /// The street (link index).
         street: usize,
+        /// The truck type's name.
         truck_type: String,
     },
     /// A task served more than once or not at all.
-    ServedTimes { street: usize, times: usize },
+    ServedTimes {
+        /// The street (link index).
+        street: usize,
+        /// How often the plan serves it.
+        times: usize,
+    },
     /// Tips out of order, at the start, twice in one gap or naming no dump site.
-    BadTip { route: usize, tip: usize },
+    BadTip {
+        /// The route.
+        route: usize,
+        /// The tip's position in the route's tips.
+        tip: usize,
+    },
     /// A trip over the type's load limit.
     Overloaded {
+        /// The route.
         route: usize,
+        /// The trip's position in the route.
         trip: usize,
+        /// Its load.
         load: Cost,
+        /// The truck type's load limit.
         capacity: Cost,
     },
     /// A truck returns to its yard loaded although it must return empty.
-    ReturnsLoaded { route: usize, load: Cost },
+    ReturnsLoaded {
+        /// The route.
+        route: usize,
+        /// The load it returns with.
+        load: Cost,
+    },
     /// The route arrives at a dump site after it closes.
     SiteClosed {
+        /// The route.
         route: usize,
+        /// The tip's position in the route's tips.
         tip: usize,
+        /// When the truck arrives.
         arrival: Cost,
+        /// When the site closes.
         closes: Cost,
     },
     /// No path between two stops for the route's truck type.
     NoPath {
+        /// The route.
         route: usize,
+        /// Junction index of the stop left.
         from: usize,
+        /// Junction index of the next stop.
         to: usize,
     },
     /// The route's shift time is over its type's limit.
     OverShift {
+        /// The route.
         route: usize,
+        /// Its shift time.
         time: Cost,
+        /// The truck type's shift limit.
         limit: Cost,
     },
     /// A stated number (cost, time, driven, trip loads) differs from the recomputed one.
     Mismatch {
+        /// The route.
         route: usize,
+        /// Which number.
         what: &'static str,
+        /// As stated in the plan.
         stated: String,
+        /// As recomputed.
         actual: String,
     },
     /// The plan's cost is not the sum of its routes' costs.
-    WrongTotal { stated: Cost, actual: Cost },
+    WrongTotal {
+        /// As stated.
+        stated: Cost,
+        /// The sum of the route costs.
+        actual: Cost,
+    },
 }
 
 impl fmt::Display for FleetViolation {
@@ -325,6 +387,178 @@ pub fn check_fleet_plan(inst: &Instance, plan: &FleetPlan) -> Result<(), Vec<Fle
     }
 }
 
+/// A route driven stop by stop, with everything recomputed so far.
+struct Walker<'a> {
+    inst: &'a Instance,
+    ty: &'a TruckType,
+    ri: usize,
+    /// Shortest paths from the junctions left so far (source, rows).
+    memo: Vec<(usize, Vec<(Cost, Cost)>)>,
+    at: usize,
+    time: Cost,
+    driven: Cost,
+    unload: Cost,
+    loads: Vec<Cost>,
+    /// Whether a stop could not be driven (then numbers are not compared).
+    broken: bool,
+    out: &'a mut Vec<FleetViolation>,
+}
+
+impl Walker<'_> {
+    /// Drives to junction `b` on a shortest path of the truck type.
+    fn drive(&mut self, b: usize) {
+        let a = self.at;
+        let pos = match self.memo.iter().position(|(s, _)| *s == a) {
+            Some(p) => p,
+            None => {
+                self.memo
+                    .push((a, dijkstra(self.inst, &self.ty.no_entry, a)));
+                self.memo.len() - 1
+            }
+        };
+        let (c, t) = self.memo[pos].1[b];
+        if c < INF {
+            self.driven += c;
+            self.time += t;
+        } else {
+            self.out.push(FleetViolation::NoPath {
+                route: self.ri,
+                from: a,
+                to: b,
+            });
+            self.broken = true;
+        }
+        self.at = b;
+    }
+
+    /// Tip number `ti`; `misplaced` when it may not stand where it does.
+    fn tip(&mut self, ti: usize, site: usize, misplaced: bool) {
+        let ops = self.inst.operations();
+        let Some(site) = ops.dump_sites.get(site) else {
+            self.out.push(FleetViolation::BadTip {
+                route: self.ri,
+                tip: ti,
+            });
+            self.broken = true;
+            return;
+        };
+        if misplaced {
+            self.out.push(FleetViolation::BadTip {
+                route: self.ri,
+                tip: ti,
+            });
+        }
+        self.drive(site.junction);
+        if let Some(h) = site.hours {
+            if self.time > h.closes {
+                self.out.push(FleetViolation::SiteClosed {
+                    route: self.ri,
+                    tip: ti,
+                    arrival: self.time,
+                    closes: h.closes,
+                });
+            }
+            self.time = self.time.max(h.opens);
+        }
+        self.time += site.unload_time;
+        self.unload += site.unload_cost;
+        self.loads.push(0);
+    }
+
+    /// Visit number `pos`: drive to its start and serve it.
+    fn serve(&mut self, pos: usize, v: Visit, served: &mut [usize]) {
+        let Some(task) = self.inst.tasks().get(v.task) else {
+            self.out.push(FleetViolation::UnknownTask {
+                route: self.ri,
+                visit: pos,
+            });
+            self.broken = true;
+            return;
+        };
+        served[v.task] += 1;
+        if !task.allows(v.dir) {
+            self.out.push(FleetViolation::WrongDirection {
+                route: self.ri,
+                visit: pos,
+                street: task.link,
+            });
+        }
+        let ty = self.ty;
+        if ty.no_entry.contains(&task.link) || ty.no_service.contains(&task.link) {
+            self.out.push(FleetViolation::TypeMayNotServe {
+                route: self.ri,
+                visit: pos,
+                street: task.link,
+                truck_type: ty.name.clone(),
+            });
+        }
+        let (s, e) = match v.dir {
+            Dir::Forward => (task.tail, task.head),
+            Dir::Backward => (task.head, task.tail),
+        };
+        self.drive(s);
+        self.driven += task.cost;
+        self.time += task.time;
+        *self.loads.last_mut().expect("a trip") += task.demand;
+        self.at = e;
+    }
+
+    /// The limits of the whole route, then its stated numbers.
+    fn finish(self, r: &FleetRoute) {
+        let (ty, ri) = (self.ty, self.ri);
+        for (trip, &load) in self.loads.iter().enumerate() {
+            if load > ty.capacity {
+                self.out.push(FleetViolation::Overloaded {
+                    route: ri,
+                    trip,
+                    load,
+                    capacity: ty.capacity,
+                });
+            }
+        }
+        let ops = self.inst.operations();
+        let last = *self.loads.last().expect("a trip");
+        if ops.return_empty && !ops.dump_sites.is_empty() && last > 0 {
+            self.out.push(FleetViolation::ReturnsLoaded {
+                route: ri,
+                load: last,
+            });
+        }
+        if let Some(limit) = ty.shift_limit.filter(|&l| self.time > l) {
+            self.out.push(FleetViolation::OverShift {
+                route: ri,
+                time: self.time,
+                limit,
+            });
+        }
+        if self.broken {
+            return;
+        }
+        let milli = ty.cost_per_mille * self.driven + 1000 * self.unload;
+        let cost = ty.fixed_cost + (milli + 999).div_euclid(1000);
+        let numbers = [
+            ("cost", r.cost.to_string(), cost.to_string()),
+            ("shift time", r.time.to_string(), self.time.to_string()),
+            ("cost driven", r.driven.to_string(), self.driven.to_string()),
+            (
+                "trip loads",
+                format!("{:?}", r.trip_loads),
+                format!("{:?}", self.loads),
+            ),
+        ];
+        for (what, stated, actual) in numbers {
+            if stated != actual {
+                self.out.push(FleetViolation::Mismatch {
+                    route: ri,
+                    what,
+                    stated,
+                    actual,
+                });
+            }
+        }
+    }
+}
+
 /// Checks one route of type `ty` from junction `yard`; counts its services
 /// in `served` and pushes what is wrong onto `out`.
 fn check_route(
@@ -336,182 +570,36 @@ fn check_route(
     served: &mut [usize],
     out: &mut Vec<FleetViolation>,
 ) {
-    let ops = inst.operations();
-    let mut memo: Vec<(usize, Vec<(Cost, Cost)>)> = Vec::new();
-    let mut leg = |a: usize, b: usize| -> Option<(Cost, Cost)> {
-        let pos = match memo.iter().position(|(s, _)| *s == a) {
-            Some(p) => p,
-            None => {
-                memo.push((a, dijkstra(inst, &ty.no_entry, a)));
-                memo.len() - 1
-            }
-        };
-        let d = memo[pos].1[b];
-        (d.0 < INF).then_some(d)
+    let mut w = Walker {
+        inst,
+        ty,
+        ri,
+        memo: Vec::new(),
+        at: yard,
+        time: 0,
+        driven: 0,
+        unload: 0,
+        loads: vec![0],
+        broken: false,
+        out,
     };
-    let (mut driven, mut time, mut unload) = (0, 0, 0);
-    let mut loads = vec![0];
-    let mut at = yard;
     let mut ti = 0;
-    let mut broken = false;
     for pos in 0..=r.visits.len() {
         // Tips placed before visit `pos` (after `pos` visits).
         let mut first_here = true;
         while ti < r.tips.len() && r.tips[ti].after == pos {
-            let tip = r.tips[ti];
-            let Some(site) = ops.dump_sites.get(tip.site) else {
-                out.push(FleetViolation::BadTip { route: ri, tip: ti });
-                broken = true;
-                ti += 1;
-                continue;
-            };
-            if pos == 0 || !first_here {
-                out.push(FleetViolation::BadTip { route: ri, tip: ti });
-            }
+            w.tip(ti, r.tips[ti].site, pos == 0 || !first_here);
             first_here = false;
-            match leg(at, site.junction) {
-                None => {
-                    out.push(FleetViolation::NoPath {
-                        route: ri,
-                        from: at,
-                        to: site.junction,
-                    });
-                    broken = true;
-                }
-                Some((c, t)) => {
-                    driven += c;
-                    let mut arrive = time + t;
-                    if let Some(h) = site.hours {
-                        if arrive > h.closes {
-                            out.push(FleetViolation::SiteClosed {
-                                route: ri,
-                                tip: ti,
-                                arrival: arrive,
-                                closes: h.closes,
-                            });
-                        }
-                        arrive = arrive.max(h.opens);
-                    }
-                    time = arrive + site.unload_time;
-                }
-            }
-            unload += site.unload_cost;
-            loads.push(0);
-            at = site.junction;
             ti += 1;
         }
-        let Some(v) = r.visits.get(pos) else { break };
-        let Some(task) = inst.tasks().get(v.task) else {
-            out.push(FleetViolation::UnknownTask {
-                route: ri,
-                visit: pos,
-            });
-            broken = true;
-            continue;
-        };
-        served[v.task] += 1;
-        if !task.allows(v.dir) {
-            out.push(FleetViolation::WrongDirection {
-                route: ri,
-                visit: pos,
-                street: task.link,
-            });
-        }
-        if ty.no_entry.contains(&task.link) || ty.no_service.contains(&task.link) {
-            out.push(FleetViolation::TypeMayNotServe {
-                route: ri,
-                visit: pos,
-                street: task.link,
-                truck_type: ty.name.clone(),
-            });
-        }
-        let (s, e) = match v.dir {
-            Dir::Forward => (task.tail, task.head),
-            Dir::Backward => (task.head, task.tail),
-        };
-        match leg(at, s) {
-            None => {
-                out.push(FleetViolation::NoPath {
-                    route: ri,
-                    from: at,
-                    to: s,
-                });
-                broken = true;
-            }
-            Some((c, t)) => {
-                driven += c + task.cost;
-                time += t + task.time;
-            }
-        }
-        *loads.last_mut().expect("a trip") += task.demand;
-        at = e;
+        let Some(&v) = r.visits.get(pos) else { break };
+        w.serve(pos, v, served);
     }
     if ti < r.tips.len() {
-        out.push(FleetViolation::BadTip { route: ri, tip: ti });
+        w.out.push(FleetViolation::BadTip { route: ri, tip: ti });
     }
     if !r.visits.is_empty() {
-        match leg(at, yard) {
-            None => {
-                out.push(FleetViolation::NoPath {
-                    route: ri,
-                    from: at,
-                    to: yard,
-                });
-                broken = true;
-            }
-            Some((c, t)) => {
-                driven += c;
-                time += t;
-            }
-        }
+        w.drive(yard);
     }
-    for (trip, &load) in loads.iter().enumerate() {
-        if load > ty.capacity {
-            out.push(FleetViolation::Overloaded {
-                route: ri,
-                trip,
-                load,
-                capacity: ty.capacity,
-            });
-        }
-    }
-    let last = *loads.last().expect("a trip");
-    if ops.return_empty && !ops.dump_sites.is_empty() && last > 0 {
-        out.push(FleetViolation::ReturnsLoaded {
-            route: ri,
-            load: last,
-        });
-    }
-    if let Some(limit) = ty.shift_limit {
-        if time > limit {
-            out.push(FleetViolation::OverShift {
-                route: ri,
-                time,
-                limit,
-            });
-        }
-    }
-    if broken {
-        return;
-    }
-    let milli = ty.cost_per_mille * driven + 1000 * unload;
-    let cost = ty.fixed_cost + (milli + 999).div_euclid(1000);
-    let mut differ = |what, stated: String, actual: String| {
-        if stated != actual {
-            out.push(FleetViolation::Mismatch {
-                route: ri,
-                what,
-                stated,
-                actual,
-            });
-        }
-    };
-    differ("cost", r.cost.to_string(), cost.to_string());
-    differ("shift time", r.time.to_string(), time.to_string());
-    differ("cost driven", r.driven.to_string(), driven.to_string());
-    differ(
-        "trip loads",
-        format!("{:?}", r.trip_loads),
-        format!("{loads:?}"),
-    );
+    w.finish(r);
 }

@@ -70,10 +70,11 @@ impl fmt::Display for At {
 }
 
 /// One thing wrong with a plan or a walk.
-#[derive(Clone, Debug, PartialEq, Eq)]
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum Violation {
     /// A visit names a task index that does not exist.
+    #[error("{at}: task {task} does not exist (the instance has {tasks} tasks)")]
     UnknownTask {
         /// Where.
         at: At,
@@ -84,6 +85,9 @@ pub enum Violation {
     },
     /// A task is served backward although only forward service is allowed
     /// (a one-way street, or one side of a street).
+    #[error(
+        "{at}: task {task} (link {link}) is served backward, but only forward service is allowed"
+    )]
     DirectionNotAllowed {
         /// Where.
         at: At,
@@ -93,6 +97,7 @@ pub enum Violation {
         link: usize,
     },
     /// A task is served more than once.
+    #[error("task {task} (link {link}) is served twice: at {first} and again at {again}")]
     ServedTwice {
         /// Task index.
         task: usize,
@@ -104,6 +109,7 @@ pub enum Violation {
         again: At,
     },
     /// A task is not served at all.
+    #[error("task {task} (link {link}) is not served")]
     NotServed {
         /// Task index.
         task: usize,
@@ -111,6 +117,9 @@ pub enum Violation {
         link: usize,
     },
     /// No path leads from one junction to the next in a route.
+    #[error(
+        "route {route}: no path from junction {from} (id {from_id}) to junction {to} (id {to_id})"
+    )]
     NoPath {
         /// Route index.
         route: usize,
@@ -124,6 +133,7 @@ pub enum Violation {
         to_id: u64,
     },
     /// A route carries more than a truck holds.
+    #[error("route {route}: load {load} exceeds the capacity {capacity} by {}", .load - .capacity)]
     OverCapacity {
         /// Route index.
         route: usize,
@@ -133,6 +143,7 @@ pub enum Violation {
         capacity: Cost,
     },
     /// A route takes longer than the shift limit.
+    #[error("route {route}: time {time} exceeds the shift limit {limit} by {}", .time - .limit)]
     OverShift {
         /// Route index.
         route: usize,
@@ -142,6 +153,7 @@ pub enum Violation {
         limit: Cost,
     },
     /// The plan uses more trucks than the fleet has.
+    #[error("the plan uses {routes} routes, but the fleet has only {max} trucks")]
     TooManyRoutes {
         /// Number of routes.
         routes: usize,
@@ -149,11 +161,13 @@ pub enum Violation {
         max: usize,
     },
     /// A route serves nothing.
+    #[error("route {route} serves nothing")]
     EmptyRoute {
         /// Route index.
         route: usize,
     },
     /// A route's reported load differs from the recomputed one.
+    #[error("route {route}: reported load {reported}, but it recomputes to {actual}")]
     WrongLoad {
         /// Route index.
         route: usize,
@@ -163,6 +177,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported cost differs from the recomputed one.
+    #[error("route {route}: reported cost {reported}, but it recomputes to {actual}")]
     WrongCost {
         /// Route index.
         route: usize,
@@ -172,6 +187,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported time differs from the recomputed one.
+    #[error("route {route}: reported time {reported}, but it recomputes to {actual}")]
     WrongTime {
         /// Route index.
         route: usize,
@@ -182,6 +198,7 @@ pub enum Violation {
     },
     /// The plan's reported total cost differs from the sum of the
     /// recomputed route costs.
+    #[error("plan: reported total cost {reported}, but the routes add up to {actual}")]
     WrongTotal {
         /// Value in the plan.
         reported: Cost,
@@ -189,6 +206,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A walk step names a link index that does not exist.
+    #[error("{at}: link {link} does not exist (the network has {links} links)")]
     UnknownLink {
         /// Where.
         at: At,
@@ -198,6 +216,7 @@ pub enum Violation {
         links: usize,
     },
     /// A walk step's junctions are not the two ends of its link.
+    #[error("{at}: a step from junction {from} to junction {to} does not follow link {link}")]
     NotOnLink {
         /// Where.
         at: At,
@@ -209,6 +228,7 @@ pub enum Violation {
         to: usize,
     },
     /// A walk step drives a one-way link against its direction.
+    #[error("{at}: one-way link {link} is driven against its direction")]
     AgainstOneWay {
         /// Where.
         at: At,
@@ -216,6 +236,7 @@ pub enum Violation {
         link: usize,
     },
     /// A walk step does not start where the previous one ended.
+    #[error("{at}: the step starts at junction {found}, but the previous one ended at junction {expected}")]
     Disconnected {
         /// Where (the step that does not connect).
         at: At,
@@ -225,6 +246,7 @@ pub enum Violation {
         found: usize,
     },
     /// A walk does not start at the depot.
+    #[error("route {route}: starts at junction {junction}, not at the depot")]
     NotFromDepot {
         /// Walk index.
         route: usize,
@@ -232,6 +254,7 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk does not end at the depot.
+    #[error("route {route}: ends at junction {junction}, not at the depot")]
     NotToDepot {
         /// Walk index.
         route: usize,
@@ -239,6 +262,7 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk serves a link that is not required.
+    #[error("{at}: link {link} is served but it is not required")]
     ServesNonRequired {
         /// Where.
         at: At,
@@ -246,121 +270,6 @@ pub enum Violation {
         link: usize,
     },
 }
-
-impl fmt::Display for Violation {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        use Violation::*;
-        match self {
-            UnknownTask { at, task, tasks } => write!(
-                f,
-                "{at}: task {task} does not exist (the instance has {tasks} tasks)"
-            ),
-            DirectionNotAllowed { at, task, link } => write!(
-                f,
-                "{at}: task {task} (link {link}) is served backward, but only forward service is allowed"
-            ),
-            ServedTwice {
-                task,
-                link,
-                first,
-                again,
-            } => write!(
-                f,
-                "task {task} (link {link}) is served twice: at {first} and again at {again}"
-            ),
-            NotServed { task, link } => write!(f, "task {task} (link {link}) is not served"),
-            NoPath {
-                route,
-                from,
-                from_id,
-                to,
-                to_id,
-            } => write!(
-                f,
-                "route {route}: no path from junction {from} (id {from_id}) to junction {to} (id {to_id})"
-            ),
-            OverCapacity {
-                route,
-                load,
-                capacity,
-            } => write!(
-                f,
-                "route {route}: load {load} exceeds the capacity {capacity} by {}",
-                load - capacity
-            ),
-            OverShift { route, time, limit } => write!(
-                f,
-                "route {route}: time {time} exceeds the shift limit {limit} by {}",
-                time - limit
-            ),
-            TooManyRoutes { routes, max } => write!(
-                f,
-                "the plan uses {routes} routes, but the fleet has only {max} trucks"
-            ),
-            EmptyRoute { route } => write!(f, "route {route} serves nothing"),
-            WrongLoad {
-                route,
-                reported,
-                actual,
-            } => write!(
-                f,
-                "route {route}: reported load {reported}, but it recomputes to {actual}"
-            ),
-            WrongCost {
-                route,
-                reported,
-                actual,
-            } => write!(
-                f,
-                "route {route}: reported cost {reported}, but it recomputes to {actual}"
-            ),
-            WrongTime {
-                route,
-                reported,
-                actual,
-            } => write!(
-                f,
-                "route {route}: reported time {reported}, but it recomputes to {actual}"
-            ),
-            WrongTotal { reported, actual } => write!(
-                f,
-                "plan: reported total cost {reported}, but the routes add up to {actual}"
-            ),
-            UnknownLink { at, link, links } => write!(
-                f,
-                "{at}: link {link} does not exist (the network has {links} links)"
-            ),
-            NotOnLink { at, link, from, to } => write!(
-                f,
-                "{at}: a step from junction {from} to junction {to} does not follow link {link}"
-            ),
-            AgainstOneWay { at, link } => {
-                write!(f, "{at}: one-way link {link} is driven against its direction")
-            }
-            Disconnected {
-                at,
-                expected,
-                found,
-            } => write!(
-                f,
-                "{at}: the step starts at junction {found}, but the previous one ended at junction {expected}"
-            ),
-            NotFromDepot { route, junction } => write!(
-                f,
-                "route {route}: starts at junction {junction}, not at the depot"
-            ),
-            NotToDepot { route, junction } => write!(
-                f,
-                "route {route}: ends at junction {junction}, not at the depot"
-            ),
-            ServesNonRequired { at, link } => {
-                write!(f, "{at}: link {link} is served but it is not required")
-            }
-        }
-    }
-}
-
-impl std::error::Error for Violation {}
 
 /// Forward adjacency of the deadhead graph: for each junction, (to, cost, time).
 fn adjacency(inst: &Instance) -> Vec<Vec<(usize, Cost, Cost)>> {
@@ -413,166 +322,72 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
 /// legs (ties between equally cheap paths broken by least time).
 ///
 /// Returns every violation found (in a deterministic order).
+///
+/// # Errors
+/// Every [`Violation`] found, when the plan is not valid for the instance.
+///
+/// # Complexity
+/// One Dijkstra search `O((V + E) log V)` per distinct leg start (at most
+/// the number of visits plus one), then `O(visits)`; memory `O(V + E)` per
+/// search and one entry per leg.
+///
+/// ```
+/// use arcwright::check::{check_plan, Violation};
+/// use arcwright::model::{Dir, Fleet, Instance, Network};
+/// use arcwright::plan::{Plan, Route, Visit};
+/// let mut net = Network::with_junctions(2);
+/// net.add_required_edge(0, 1, 5, 1);
+/// let inst = Instance::new("one street", net, Fleet::with_capacity(1), 0).unwrap();
+/// let there_and_back = Route { visits: vec![Visit::new(0, Dir::Forward)], load: 1, cost: 10, time: 10 };
+/// assert!(check_plan(&inst, &Plan { routes: vec![there_and_back], cost: 10 }).is_ok());
+/// let nothing = Plan { routes: vec![], cost: 0 };
+/// assert_eq!(check_plan(&inst, &nothing), Err(vec![Violation::NotServed { task: 0, link: 0 }]));
+/// ```
 pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
-    let tasks = inst.tasks();
-    let fleet = inst.fleet();
-    let depot = inst.depot();
     let mut out = Vec::new();
-
-    if let Some(max) = fleet.max_vehicles {
-        if plan.routes.len() > max {
-            out.push(Violation::TooManyRoutes {
-                routes: plan.routes.len(),
-                max,
-            });
-        }
-    }
-
-    // Service coverage.
-    let mut seen: Vec<Option<At>> = vec![None; tasks.len()];
+    fleet_size(inst, plan.routes.len(), &mut out);
+    let mut cover = Coverage::new(inst);
     for (r, route) in plan.routes.iter().enumerate() {
         if route.visits.is_empty() {
             out.push(Violation::EmptyRoute { route: r });
         }
         for (p, v) in route.visits.iter().enumerate() {
-            let at = At { route: r, pos: p };
-            let Some(t) = tasks.get(v.task) else {
-                out.push(Violation::UnknownTask {
-                    at,
-                    task: v.task,
-                    tasks: tasks.len(),
-                });
-                continue;
-            };
-            if v.dir == Dir::Backward && !t.either {
-                out.push(Violation::DirectionNotAllowed {
-                    at,
-                    task: v.task,
-                    link: t.link,
-                });
-            }
-            match seen[v.task] {
-                Some(first) => out.push(Violation::ServedTwice {
-                    task: v.task,
-                    link: t.link,
-                    first,
-                    again: at,
-                }),
-                None => seen[v.task] = Some(at),
-            }
+            cover.visit(inst, At { route: r, pos: p }, v.task, v.dir, &mut out);
         }
     }
-    for (i, s) in seen.iter().enumerate() {
-        if s.is_none() {
-            out.push(Violation::NotServed {
-                task: i,
-                link: tasks[i].link,
-            });
-        }
-    }
+    cover.finish(inst, &mut out);
 
-    // Legs of every route, as (from, to) junction pairs, skipping unknown tasks.
-    let mut legs: Vec<Vec<(usize, usize)>> = Vec::with_capacity(plan.routes.len());
-    for route in &plan.routes {
-        let mut at = depot;
-        let mut l = Vec::new();
-        for v in &route.visits {
-            if let Some(t) = tasks.get(v.task) {
-                let (s, e) = t.ends(v.dir);
-                l.push((at, s));
-                at = e;
-            }
-        }
-        if !route.visits.is_empty() {
-            l.push((at, depot));
-        }
-        legs.push(l);
-    }
-    // One search per distinct leg start.
-    let adj = adjacency(inst);
-    let mut by_source: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
-    for l in legs.iter().flatten() {
-        by_source.entry(l.0).or_default().push(l.1);
-    }
-    let mut leg_dist: BTreeMap<(usize, usize), Option<(Cost, Cost)>> = BTreeMap::new();
-    for (s, targets) in by_source {
-        let d = shortest_from(&adj, s);
-        for t in targets {
-            leg_dist.insert((s, t), d[t]);
-        }
-    }
-
-    let ids = |j: usize| inst.network().junctions[j].id;
+    let legs: Vec<Vec<(usize, usize)>> = plan.routes.iter().map(|r| legs_of(inst, r)).collect();
+    let leg_dist = leg_distances(inst, &legs);
     let mut total: Cost = 0;
     let mut total_known = true;
     for (r, route) in plan.routes.iter().enumerate() {
-        let (mut load, mut cost, mut time) = (0 as Cost, 0 as Cost, 0 as Cost);
-        for v in &route.visits {
-            if let Some(t) = tasks.get(v.task) {
-                load = load.saturating_add(t.demand);
-                cost = cost.saturating_add(t.cost);
-                time = time.saturating_add(t.time);
-            }
-        }
-        let mut reachable = true;
-        for &(a, b) in &legs[r] {
-            match leg_dist[&(a, b)] {
-                Some((c, t)) => {
-                    cost = cost.saturating_add(c);
-                    time = time.saturating_add(t);
-                }
-                None => {
-                    reachable = false;
-                    out.push(Violation::NoPath {
-                        route: r,
-                        from: a,
-                        from_id: ids(a),
-                        to: b,
-                        to_id: ids(b),
-                    });
-                }
-            }
-        }
-        if load > fleet.capacity {
-            out.push(Violation::OverCapacity {
-                route: r,
-                load,
-                capacity: fleet.capacity,
-            });
-        }
-        if route.load != load {
+        let found = route_totals(inst, r, route, &legs[r], &leg_dist, &mut out);
+        limits(
+            inst,
+            r,
+            found.load,
+            found.cost.map(|_| found.time),
+            &mut out,
+        );
+        if route.load != found.load {
             out.push(Violation::WrongLoad {
                 route: r,
                 reported: route.load,
-                actual: load,
+                actual: found.load,
             });
         }
-        if !reachable {
+        let Some(cost) = found.cost else {
             total_known = false;
             continue;
-        }
-        if let Some(limit) = fleet.shift_limit {
-            if time > limit {
-                out.push(Violation::OverShift {
-                    route: r,
-                    time,
-                    limit,
-                });
+        };
+        for (reported, actual, wrong) in [
+            (route.cost, cost, WrongField::Cost),
+            (route.time, found.time, WrongField::Time),
+        ] {
+            if reported != actual {
+                out.push(wrong.violation(r, reported, actual));
             }
-        }
-        if route.cost != cost {
-            out.push(Violation::WrongCost {
-                route: r,
-                reported: route.cost,
-                actual: cost,
-            });
-        }
-        if route.time != time {
-            out.push(Violation::WrongTime {
-                route: r,
-                reported: route.time,
-                actual: time,
-            });
         }
         total = total.saturating_add(cost);
     }
@@ -589,6 +404,198 @@ pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     }
 }
 
+/// The one check of the fleet bound, shared by plans and walks.
+fn fleet_size(inst: &Instance, routes: usize, out: &mut Vec<Violation>) {
+    if let Some(max) = inst.fleet().max_vehicles {
+        if routes > max {
+            out.push(Violation::TooManyRoutes { routes, max });
+        }
+    }
+}
+
+/// The one check of a route's load and shift limits, shared by plans and
+/// walks; `time` is `None` when it cannot be known (a leg without a path).
+fn limits(inst: &Instance, route: usize, load: Cost, time: Option<Cost>, out: &mut Vec<Violation>) {
+    let fleet = inst.fleet();
+    if load > fleet.capacity {
+        out.push(Violation::OverCapacity {
+            route,
+            load,
+            capacity: fleet.capacity,
+        });
+    }
+    if let (Some(limit), Some(time)) = (fleet.shift_limit, time) {
+        if time > limit {
+            out.push(Violation::OverShift { route, time, limit });
+        }
+    }
+}
+
+/// Which tasks were served where: finds unknown tasks, forbidden
+/// directions, second services and (at the end) tasks never served.
+struct Coverage {
+    seen: Vec<Option<At>>,
+}
+
+impl Coverage {
+    fn new(inst: &Instance) -> Self {
+        Coverage {
+            seen: vec![None; inst.tasks().len()],
+        }
+    }
+
+    fn visit(&mut self, inst: &Instance, at: At, task: usize, dir: Dir, out: &mut Vec<Violation>) {
+        let tasks = inst.tasks();
+        let Some(t) = tasks.get(task) else {
+            out.push(Violation::UnknownTask {
+                at,
+                task,
+                tasks: tasks.len(),
+            });
+            return;
+        };
+        if dir == Dir::Backward && !t.either {
+            out.push(Violation::DirectionNotAllowed {
+                at,
+                task,
+                link: t.link,
+            });
+        }
+        match self.seen[task] {
+            Some(first) => out.push(Violation::ServedTwice {
+                task,
+                link: t.link,
+                first,
+                again: at,
+            }),
+            None => self.seen[task] = Some(at),
+        }
+    }
+
+    fn finish(self, inst: &Instance, out: &mut Vec<Violation>) {
+        for (i, s) in self.seen.iter().enumerate() {
+            if s.is_none() {
+                out.push(Violation::NotServed {
+                    task: i,
+                    link: inst.tasks()[i].link,
+                });
+            }
+        }
+    }
+}
+
+/// The deadhead legs of a route as (from, to) junction pairs, yard to
+/// yard, skipping unknown tasks.
+fn legs_of(inst: &Instance, route: &crate::plan::Route) -> Vec<(usize, usize)> {
+    let depot = inst.depot();
+    let mut at = depot;
+    let mut legs = Vec::new();
+    for v in &route.visits {
+        if let Some(t) = inst.tasks().get(v.task) {
+            let (s, e) = t.ends(v.dir);
+            legs.push((at, s));
+            at = e;
+        }
+    }
+    if !route.visits.is_empty() {
+        legs.push((at, depot));
+    }
+    legs
+}
+
+type LegDistances = BTreeMap<(usize, usize), Option<(Cost, Cost)>>;
+
+/// Least cost (and its time) of every leg, one search per distinct start.
+fn leg_distances(inst: &Instance, legs: &[Vec<(usize, usize)>]) -> LegDistances {
+    let adj = adjacency(inst);
+    let mut by_source: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
+    for l in legs.iter().flatten() {
+        by_source.entry(l.0).or_default().push(l.1);
+    }
+    let mut leg_dist = BTreeMap::new();
+    for (s, targets) in by_source {
+        let d = shortest_from(&adj, s);
+        for t in targets {
+            leg_dist.insert((s, t), d[t]);
+        }
+    }
+    leg_dist
+}
+
+/// A route's recomputed load, cost (`None` when a leg has no path) and time.
+struct Found {
+    load: Cost,
+    cost: Option<Cost>,
+    time: Cost,
+}
+
+fn route_totals(
+    inst: &Instance,
+    r: usize,
+    route: &crate::plan::Route,
+    legs: &[(usize, usize)],
+    leg_dist: &LegDistances,
+    out: &mut Vec<Violation>,
+) -> Found {
+    let (mut load, mut cost, mut time) = (0 as Cost, 0 as Cost, 0 as Cost);
+    for v in &route.visits {
+        if let Some(t) = inst.tasks().get(v.task) {
+            load = load.saturating_add(t.demand);
+            cost = cost.saturating_add(t.cost);
+            time = time.saturating_add(t.time);
+        }
+    }
+    let ids = |j: usize| inst.network().junctions[j].id;
+    let mut reachable = true;
+    for &(a, b) in legs {
+        match leg_dist[&(a, b)] {
+            Some((c, t)) => {
+                cost = cost.saturating_add(c);
+                time = time.saturating_add(t);
+            }
+            None => {
+                reachable = false;
+                out.push(Violation::NoPath {
+                    route: r,
+                    from: a,
+                    from_id: ids(a),
+                    to: b,
+                    to_id: ids(b),
+                });
+            }
+        }
+    }
+    Found {
+        load,
+        cost: reachable.then_some(cost),
+        time,
+    }
+}
+
+/// A reported route figure that may be wrong.
+#[derive(Clone, Copy)]
+enum WrongField {
+    Cost,
+    Time,
+}
+
+impl WrongField {
+    fn violation(self, route: usize, reported: Cost, actual: Cost) -> Violation {
+        match self {
+            WrongField::Cost => Violation::WrongCost {
+                route,
+                reported,
+                actual,
+            },
+            WrongField::Time => Violation::WrongTime {
+                route,
+                reported,
+                actual,
+            },
+        }
+    }
+}
+
 /// Checks explicit walks, one per truck, street by street.
 ///
 /// Checks: every step names a real link and follows it between its two ends,
@@ -598,41 +605,21 @@ pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
 /// exactly once; nothing else is served. Also the fleet limits: load within
 /// capacity, time (service time of served steps plus driving time of the
 /// others) within the shift limit, and at most `max_vehicles` walks.
+///
+/// # Errors
+/// Every [`Violation`] found, when the walks are not valid for the instance.
 pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Violation>> {
     let net = inst.network();
-    let tasks = inst.tasks();
-    let fleet = inst.fleet();
-    let depot = inst.depot();
     let mut task_of = vec![None; net.links.len()];
-    for (i, t) in tasks.iter().enumerate() {
+    for (i, t) in inst.tasks().iter().enumerate() {
         task_of[t.link] = Some(i);
     }
     let mut out = Vec::new();
-    if let Some(max) = fleet.max_vehicles {
-        if walks.len() > max {
-            out.push(Violation::TooManyRoutes {
-                routes: walks.len(),
-                max,
-            });
-        }
-    }
-    let mut seen: Vec<Option<At>> = vec![None; tasks.len()];
+    fleet_size(inst, walks.len(), &mut out);
+    let mut cover = Coverage::new(inst);
     for (r, walk) in walks.iter().enumerate() {
+        walk_ends(inst, r, walk, &mut out);
         let (mut load, mut time, mut served) = (0 as Cost, 0 as Cost, 0usize);
-        if let (Some(first), Some(last)) = (walk.first(), walk.last()) {
-            if first.from != depot {
-                out.push(Violation::NotFromDepot {
-                    route: r,
-                    junction: first.from,
-                });
-            }
-            if last.to != depot {
-                out.push(Violation::NotToDepot {
-                    route: r,
-                    junction: last.to,
-                });
-            }
-        }
         for (p, s) in walk.iter().enumerate() {
             let at = At { route: r, pos: p };
             if p > 0 && walk[p - 1].to != s.from {
@@ -642,28 +629,10 @@ pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Viola
                     found: s.from,
                 });
             }
-            let Some(l) = net.links.get(s.link) else {
-                out.push(Violation::UnknownLink {
-                    at,
-                    link: s.link,
-                    links: net.links.len(),
-                });
+            let Some(forward) = step_on_link(inst, at, s, &mut out) else {
                 continue;
             };
-            let forward = (s.from, s.to) == (l.from, l.to);
-            let backward = (s.from, s.to) == (l.to, l.from);
-            if !forward && !backward {
-                out.push(Violation::NotOnLink {
-                    at,
-                    link: s.link,
-                    from: s.from,
-                    to: s.to,
-                });
-                continue;
-            }
-            if !forward && l.oneway {
-                out.push(Violation::AgainstOneWay { at, link: s.link });
-            }
+            let l = &net.links[s.link];
             if !s.serve {
                 time = time.saturating_add(l.time.unwrap_or(l.cost));
                 continue;
@@ -672,59 +641,72 @@ pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Viola
                 out.push(Violation::ServesNonRequired { at, link: s.link });
                 continue;
             };
-            let t = &tasks[ti];
+            let t = &inst.tasks()[ti];
             served += 1;
             load = load.saturating_add(t.demand);
             time = time.saturating_add(t.time);
             // A loop link (from == to) is forward either way.
-            if !forward && !t.either {
-                out.push(Violation::DirectionNotAllowed {
-                    at,
-                    task: ti,
-                    link: s.link,
-                });
-            }
-            match seen[ti] {
-                Some(first) => out.push(Violation::ServedTwice {
-                    task: ti,
-                    link: s.link,
-                    first,
-                    again: at,
-                }),
-                None => seen[ti] = Some(at),
-            }
+            let dir = if forward { Dir::Forward } else { Dir::Backward };
+            cover.visit(inst, at, ti, dir, &mut out);
         }
         if served == 0 {
             out.push(Violation::EmptyRoute { route: r });
         }
-        if load > fleet.capacity {
-            out.push(Violation::OverCapacity {
-                route: r,
-                load,
-                capacity: fleet.capacity,
-            });
-        }
-        if let Some(limit) = fleet.shift_limit {
-            if time > limit {
-                out.push(Violation::OverShift {
-                    route: r,
-                    time,
-                    limit,
-                });
-            }
-        }
+        limits(inst, r, load, Some(time), &mut out);
     }
-    for (i, s) in seen.iter().enumerate() {
-        if s.is_none() {
-            out.push(Violation::NotServed {
-                task: i,
-                link: tasks[i].link,
-            });
-        }
-    }
+    cover.finish(inst, &mut out);
     if out.is_empty() {
         Ok(())
     } else {
         Err(out)
     }
+}
+
+/// A walk starts and ends at the yard.
+fn walk_ends(inst: &Instance, r: usize, walk: &[Step], out: &mut Vec<Violation>) {
+    let depot = inst.depot();
+    if let (Some(first), Some(last)) = (walk.first(), walk.last()) {
+        if first.from != depot {
+            out.push(Violation::NotFromDepot {
+                route: r,
+                junction: first.from,
+            });
+        }
+        if last.to != depot {
+            out.push(Violation::NotToDepot {
+                route: r,
+                junction: last.to,
+            });
+        }
+    }
+}
+
+/// Whether a step drives its link forward (`Some(true)`), backward, or is
+/// not on it at all (`None`, with the violation recorded). Driving a
+/// one-way link backward is recorded too.
+fn step_on_link(inst: &Instance, at: At, s: &Step, out: &mut Vec<Violation>) -> Option<bool> {
+    let links = &inst.network().links;
+    let Some(l) = links.get(s.link) else {
+        out.push(Violation::UnknownLink {
+            at,
+            link: s.link,
+            links: links.len(),
+        });
+        return None;
+    };
+    let forward = (s.from, s.to) == (l.from, l.to);
+    let backward = (s.from, s.to) == (l.to, l.from);
+    if !forward && !backward {
+        out.push(Violation::NotOnLink {
+            at,
+            link: s.link,
+            from: s.from,
+            to: s.to,
+        });
+        return None;
+    }
+    if !forward && l.oneway {
+        out.push(Violation::AgainstOneWay { at, link: s.link });
+    }
+    Some(forward)
 }

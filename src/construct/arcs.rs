@@ -20,16 +20,33 @@
 //! so the lookup has no branch (measured with `cargo bench --bench kernels`:
 //! no change on egl-e4-C against a plain `a * arcs + b`).
 //!
-//! Entries are `i32` (the deadheads of one instance fit comfortably); a
-//! missing path is stored as [`BIG`], which no feasible route ever pays.
+//! Entries are `i32` (a deadhead of at most [`MAX_LEG`]); a missing path is
+//! stored as `-1` and read as [`BIG`] (`2^40`), which no feasible route ever
+//! pays: the solver refuses instances on which a route could cost or take
+//! `BIG` or more (`SolveError::RouteTooLong`), so a route sum below `BIG` is a
+//! real route and one at or above it uses a missing path. Sums stay far from
+//! `i64` overflow (a route would need 2^16 missing legs at cost scale 100).
 
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::{Distances, UNREACHABLE};
 use crate::plan::Visit;
 
-/// Stored for a missing path: large enough to dominate any feasible route,
-/// small enough that sums of a few never overflow `i64`.
-pub const BIG: i32 = 1 << 29;
+/// Read for a missing path: larger than any feasible route (the solver
+/// checks), small enough that sums never overflow `i64`.
+pub const BIG: i64 = 1 << 40;
+
+/// The longest deadhead the 32-bit matrices store.
+pub const MAX_LEG: i64 = i32::MAX as i64;
+
+/// Stored for a missing path.
+const MISSING: i32 = -1;
+
+/// Decodes a stored entry: itself, or [`BIG`] for [`MISSING`] (branch-free).
+#[inline(always)]
+fn decode(x: i32) -> i64 {
+    let x = x as i64;
+    x + ((x >> 63) & (BIG + 1))
+}
 
 /// Largest number of arcs stored in the by-arc layout (64 MiB per matrix).
 pub const DENSE_ARCS: usize = 4096;
@@ -76,6 +93,9 @@ pub struct MatrixOverflow {
 
 impl ArcMatrix {
     /// Builds the matrices from the instance's shortest paths.
+    ///
+    /// # Errors
+    /// [`MatrixOverflow`] when a deadhead is longer than [`MAX_LEG`].
     pub fn new(inst: &Instance, dist: &Distances) -> Result<Self, MatrixOverflow> {
         let tasks = inst.tasks();
         let n = tasks.len();
@@ -102,8 +122,8 @@ impl ArcMatrix {
         let timed = inst.fleet().shift_limit.is_some();
         let conv = |x: Cost| -> Result<i32, MatrixOverflow> {
             if x >= UNREACHABLE {
-                Ok(BIG)
-            } else if x >= BIG as Cost {
+                Ok(MISSING)
+            } else if x > MAX_LEG {
                 Err(MatrixOverflow { value: x })
             } else {
                 Ok(x as i32)
@@ -172,12 +192,19 @@ impl ArcMatrix {
     /// Deadhead cost from the end of `a` to the start of `b`.
     #[inline(always)]
     pub fn d(&self, a: u32, b: u32) -> i64 {
-        self.cost[self.cell(a, b)] as i64
+        decode(self.cost[self.cell(a, b)])
     }
 
     #[inline(always)]
     fn cell(&self, a: u32, b: u32) -> usize {
         self.kend_row[a as usize] + self.kstart[b as usize] as usize
+    }
+
+    /// The longest stored deadhead cost and time (missing paths left out).
+    pub fn longest_legs(&self) -> (i64, i64) {
+        let longest = |v: &[i32]| v.iter().copied().max().unwrap_or(0).max(0) as i64;
+        let d = longest(&self.cost);
+        (d, self.time.as_deref().map_or(d, longest))
     }
 
     /// Number of key junctions the matrices are indexed by.
@@ -195,7 +222,7 @@ impl ArcMatrix {
     #[inline(always)]
     pub fn t(&self, a: u32, b: u32) -> i64 {
         match &self.time {
-            Some(t) => t[self.cell(a, b)] as i64,
+            Some(t) => decode(t[self.cell(a, b)]),
             None => self.d(a, b),
         }
     }
@@ -249,7 +276,7 @@ impl ArcMatrix {
     /// Whether a route (task arcs) respects capacity and shift limit.
     pub fn route_feasible(&self, arcs: &[u32]) -> bool {
         let (c, t, l) = self.route_eval(arcs);
-        c < BIG as i64
+        c < BIG
             && l <= self.capacity
             && self.shift.is_none_or(|s| t <= s)
             && arcs.iter().all(|&a| self.allowed[a as usize])

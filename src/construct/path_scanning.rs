@@ -99,7 +99,7 @@ pub fn path_scan<R: Rng>(
                         continue;
                     }
                     let d = m.d(at, a);
-                    if d >= BIG as i64 {
+                    if d >= BIG {
                         continue;
                     }
                     if let Some(s) = shift {
@@ -131,7 +131,7 @@ pub fn path_scan<R: Rng>(
                 break;
             }
             let pick = match (rule, rng.as_deref_mut()) {
-                (Rule::Random, Some(r)) => ties[r.gen_range(0..ties.len())],
+                (Rule::Random, Some(r)) => ties[r.random_range(0..ties.len())],
                 (Rule::Random, None) => ties[0],
                 _ => {
                     let mut b = ties[0];

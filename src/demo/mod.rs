@@ -116,11 +116,11 @@ struct Names {
 impl Names {
     fn pick(&mut self, rng: &mut ChaCha8Rng, kinds: &[&str]) -> String {
         for attempt in 0.. {
-            let a = NAME_FIRST[rng.gen_range(0..NAME_FIRST.len())];
-            let b = NAME_SECOND[rng.gen_range(0..NAME_SECOND.len())];
-            let k = kinds[rng.gen_range(0..kinds.len())];
+            let a = NAME_FIRST[rng.random_range(0..NAME_FIRST.len())];
+            let b = NAME_SECOND[rng.random_range(0..NAME_SECOND.len())];
+            let k = kinds[rng.random_range(0..kinds.len())];
             // Half the names are compounds ("Hazelmead Rise"), half plain ("Hazel Rise").
-            let name = if rng.gen_bool(0.5) || attempt > 20 {
+            let name = if rng.random_bool(0.5) || attempt > 20 {
                 format!("{a}{b} {k}")
             } else {
                 format!("{a} {k}")
@@ -182,7 +182,7 @@ impl Builder {
     ) -> usize {
         let length = length.max(1.0);
         let service = frontage.map(|f| {
-            let bins = ((length / f) * self.rng.gen_range(0.6..1.4))
+            let bins = ((length / f) * self.rng.random_range(0.6..1.4))
                 .round()
                 .max(1.0);
             ServiceSpec {
@@ -210,6 +210,9 @@ impl Builder {
 /// `blocks` below 2 is raised to 2 and a capacity below 60 bins to 60 (the
 /// fullest street of a town carries fewer bins). The only error left is a
 /// shift limit too short for some street on its own (a few minutes suffice).
+///
+/// # Errors
+/// [`ModelError`] only when the shift limit is too short for some street on its own.
 pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     let blocks = spec.blocks.max(2);
     let capacity = spec.capacity.max(60);
@@ -220,15 +223,41 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             used: HashSet::new(),
         },
     };
+    // The parts in the order they draw from the generator (the order is
+    // part of the town a seed makes).
+    let grid = central_grid(&mut b, blocks);
+    let half = blocks as f64 * BLOCK / 2.0;
+    let corner = half * std::f64::consts::SQRT_2;
+    let rings = suburban_rings(&mut b, spec, corner);
+    let perimeter = connectors_and_spokes(&mut b, &grid, &rings);
+    cul_de_sacs(&mut b, spec, &rings, &perimeter);
+    let yard = arterial_and_yard(&mut b, spec, &grid, &rings, corner);
+    let fleet = fleet_for(&b.net, spec, capacity);
+    let name = format!("demo town (seed {}, {} blocks)", spec.seed, blocks);
+    // Costs are metres of street, times seconds, demands bins; the town is
+    // invented, so its planar metres have no place on the Earth.
+    let inst = Instance::new(name, b.net, fleet, yard)?.with_units(Units {
+        cost: Some("m".into()),
+        length: None,
+        time: Some("s".into()),
+        load: Some("bins".into()),
+    });
+    Ok(inst
+        .with_coordinates(Coordinates::Planar { origin: None })
+        .expect("the generator places junctions within a few kilometres"))
+}
+
+/// The central grid of `blocks` x `blocks` blocks: `grid[row][col]`
+/// junctions (row 0 at the south), one-way interior rows, two avenues whose
+/// sides are served apart.
+fn central_grid(b: &mut Builder, blocks: usize) -> Vec<Vec<usize>> {
     let n = blocks + 1;
     let half = blocks as f64 * BLOCK / 2.0;
-
-    // --- Central grid -----------------------------------------------------
     let mut grid = vec![vec![0usize; n]; n]; // grid[row][col], row 0 at the south
     for (r, row) in grid.iter_mut().enumerate() {
         for (c, cell) in row.iter_mut().enumerate() {
-            let jx = b.rng.gen_range(-8.0..8.0);
-            let jy = b.rng.gen_range(-8.0..8.0);
+            let jx = b.rng.random_range(-8.0..8.0);
+            let jy = b.rng.random_range(-8.0..8.0);
             let x = c as f64 * BLOCK - half + jx;
             let y = r as f64 * BLOCK - half + jy;
             *cell = b.junction(x, y);
@@ -239,8 +268,8 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     let oneway_rows: Vec<bool> = (0..n).map(|r| r > 0 && r + 1 < n && r % 3 == 1).collect();
     let mut two_sided: Vec<usize> = Vec::new();
     if n >= 4 {
-        two_sided.push(1 + b.rng.gen_range(0..(n - 2) / 2));
-        let second = n - 2 - b.rng.gen_range(0..(n - 2) / 2);
+        two_sided.push(1 + b.rng.random_range(0..(n - 2) / 2));
+        let second = n - 2 - b.rng.random_range(0..(n - 2) / 2);
         if second != two_sided[0] {
             two_sided.push(second);
         }
@@ -312,16 +341,22 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             }
         }
     }
+    grid
+}
 
-    // --- Suburban rings -----------------------------------------------------
-    let corner = half * std::f64::consts::SQRT_2;
+/// Rings of curving suburban streets around the grid (corner distance
+/// `corner`); each ring as (junction, angle) pairs.
+fn suburban_rings(b: &mut Builder, spec: &TownSpec, corner: f64) -> Vec<Vec<(usize, f64)>> {
     let mut rings: Vec<Vec<(usize, f64)>> = Vec::new(); // (junction, angle)
     for k in 0..spec.rings {
         let radius = corner + 110.0 + RING_GAP * k as f64;
         let count = ((2.0 * PI * radius / RING_STEP).round() as usize).max(12);
-        let phase = b.rng.gen_range(0.0..2.0 * PI);
-        let (wobble, lobes) = (b.rng.gen_range(8.0..25.0), b.rng.gen_range(3..7) as f64);
-        let offset = b.rng.gen_range(0.0..2.0 * PI / count as f64);
+        let phase = b.rng.random_range(0.0..2.0 * PI);
+        let (wobble, lobes) = (
+            b.rng.random_range(8.0..25.0),
+            b.rng.random_range(3..7) as f64,
+        );
+        let offset = b.rng.random_range(0.0..2.0 * PI / count as f64);
         let mut ring = Vec::with_capacity(count);
         for i in 0..count {
             let a = offset + 2.0 * PI * i as f64 / count as f64;
@@ -331,7 +366,7 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         // Ring streets: crescents of 4 to 8 links, each with its own name.
         let mut i = 0;
         while i < count {
-            let len = b.rng.gen_range(4..=8).min(count - i);
+            let len = b.rng.random_range(4..=8).min(count - i);
             let name = b.names.pick(&mut b.rng, RING_KINDS);
             for s in i..i + len {
                 let (u, v) = (ring[s].0, ring[(s + 1) % count].0);
@@ -352,6 +387,17 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         }
         rings.push(ring);
     }
+    rings
+}
+
+/// Streets from the grid's edge to the first ring and spokes between rings;
+/// returns the grid's perimeter junctions.
+fn connectors_and_spokes(
+    b: &mut Builder,
+    grid: &[Vec<usize>],
+    rings: &[Vec<(usize, f64)>],
+) -> Vec<usize> {
+    let n = grid.len();
     // Connectors from the grid edge to the first ring, and spokes between rings.
     let perimeter: Vec<usize> = (0..n)
         .flat_map(|i| [grid[0][i], grid[n - 1][i], grid[i][0], grid[i][n - 1]])
@@ -364,10 +410,10 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             if idx % 2 == 1 {
                 continue;
             }
-            let q = nearest(&b, &first, p);
+            let q = nearest(b, &first, p);
             let len = b.straight(p, q) * 1.02;
             let name = b.names.pick(&mut b.rng, SPOKE_KINDS);
-            let required = b.rng.gen_bool(0.7);
+            let required = b.rng.random_bool(0.7);
             b.street(
                 p,
                 q,
@@ -383,12 +429,12 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
     for k in 1..rings.len() {
         let (inner, outer) = (rings[k - 1].clone(), rings[k].clone());
         let every = 4;
-        let start = b.rng.gen_range(0..every);
+        let start = b.rng.random_range(0..every);
         for (i, &(p, _)) in inner.iter().enumerate() {
             if i % every != start {
                 continue;
             }
-            let q = nearest(&b, &outer, p);
+            let q = nearest(b, &outer, p);
             let len = b.straight(p, q) * 1.03;
             let name = b.names.pick(&mut b.rng, SPOKE_KINDS);
             b.street(
@@ -403,20 +449,25 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             );
         }
     }
+    perimeter
+}
 
+/// Dead-end streets of one or two links off the outermost ring (or the
+/// grid's perimeter when there is no ring).
+fn cul_de_sacs(b: &mut Builder, spec: &TownSpec, rings: &[Vec<(usize, f64)>], perimeter: &[usize]) {
     // --- Cul-de-sacs on the outskirts ----------------------------------------
     let base: Vec<usize> = match rings.last() {
         Some(r) => r.iter().map(|&(j, _)| j).collect(),
-        None => perimeter.clone(),
+        None => perimeter.to_vec(),
     };
     let mut taken = HashSet::new();
     for _ in 0..spec.cul_de_sacs {
-        let mut p = base[b.rng.gen_range(0..base.len())];
+        let mut p = base[b.rng.random_range(0..base.len())];
         for _ in 0..10 {
             if !taken.contains(&p) {
                 break;
             }
-            p = base[b.rng.gen_range(0..base.len())];
+            p = base[b.rng.random_range(0..base.len())];
         }
         if !taken.insert(p) {
             continue;
@@ -425,9 +476,9 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         let (px, py) = b.xy(p);
         let r = (px * px + py * py).sqrt().max(1.0);
         let (ux, uy) = (px / r, py / r);
-        let segs = b.rng.gen_range(1..=2);
+        let segs = b.rng.random_range(1..=2);
         let mut at = p;
-        let bend = b.rng.gen_range(-0.4..0.4);
+        let bend = b.rng.random_range(-0.4..0.4);
         for s in 1..=segs {
             let d = 55.0 * s as f64;
             let (bx, by) = (-uy * bend * d, ux * bend * d);
@@ -446,7 +497,18 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             at = q;
         }
     }
+}
 
+/// The fast road on the diagonal (nothing to collect) and the yard beyond
+/// its south-western end; returns the yard.
+fn arterial_and_yard(
+    b: &mut Builder,
+    spec: &TownSpec,
+    grid: &[Vec<usize>],
+    rings: &[Vec<(usize, f64)>],
+    corner: f64,
+) -> usize {
+    let n = grid.len();
     // --- The arterial and the yard ------------------------------------------
     // A fast road on the south-west to north-east diagonal with interchanges
     // at the grid's corners and centre and at each ring; nothing to collect
@@ -486,17 +548,18 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
             &name,
         );
     }
+    yard
+}
 
-    // --- Fleet ----------------------------------------------------------------
-    let demand: Cost = b
-        .net
+/// A fleet for the town: enough trucks for the load and the work, plus two.
+fn fleet_for(net: &Network, spec: &TownSpec, capacity: Cost) -> Fleet {
+    let demand: Cost = net
         .links
         .iter()
         .filter_map(|l| l.service.as_ref())
         .map(|s| s.demand)
         .sum();
-    let work: Cost = b
-        .net
+    let work: Cost = net
         .links
         .iter()
         .filter_map(|l| l.service.as_ref())
@@ -507,23 +570,11 @@ pub fn town(spec: &TownSpec) -> Result<Instance, ModelError> {
         .shift_limit
         .map_or(0, |s| (work + s.max(1) - 1) / s.max(1));
     let max_trucks = spec.max_trucks.unwrap_or(by_load.max(by_time) as usize + 2);
-    let fleet = Fleet {
+    Fleet {
         capacity,
         shift_limit: spec.shift_limit,
         max_vehicles: Some(max_trucks.max(1)),
-    };
-    let name = format!("demo town (seed {}, {} blocks)", spec.seed, blocks);
-    // Costs are metres of street, times seconds, demands bins; the town is
-    // invented, so its planar metres have no place on the Earth.
-    let inst = Instance::new(name, b.net, fleet, yard)?.with_units(Units {
-        cost: Some("m".into()),
-        length: None,
-        time: Some("s".into()),
-        load: Some("bins".into()),
-    });
-    Ok(inst
-        .with_coordinates(Coordinates::Planar { origin: None })
-        .expect("the generator places junctions within a few kilometres"))
+    }
 }
 
 fn nearest(b: &Builder, ring: &[(usize, f64)], p: usize) -> usize {

@@ -326,14 +326,14 @@ impl<'a> FleetSolver<'a> {
         }
         let mut improving = 0;
         for _ in 0..self.moves {
-            let u = tour[rng.gen_range(0..n)];
-            let v = near[u][rng.gen_range(0..near[u].len())];
+            let u = tour[rng.random_range(0..n)];
+            let v = near[u][rng.random_range(0..near[u].len())];
             let (pu, pv) = (
                 tour.iter().position(|&x| x == u).expect("u in tour"),
                 tour.iter().position(|&x| x == v).expect("v in tour"),
             );
             let mut cand = tour.clone();
-            match rng.gen_range(0..4) {
+            match rng.random_range(0..4) {
                 0 => {
                     // Move u right after v.
                     let x = cand.remove(pu);

@@ -126,6 +126,17 @@ struct RouteData {
     modified: u64,
 }
 
+/// The result of one descent of [`LocalSearch::run`].
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Descent {
+    /// The improved routes, as task arcs.
+    pub routes: Vec<Vec<u32>>,
+    /// Their true (unpenalised) total cost.
+    pub cost: i64,
+    /// Whether every route respects capacity and shift limit.
+    pub feasible: bool,
+}
+
 /// Reusable local-search engine.
 pub struct LocalSearch<'m> {
     m: &'m ArcMatrix,
@@ -419,7 +430,7 @@ impl<'m> LocalSearch<'m> {
 
     /// Improves `routes` until no move improves the (penalised) cost; returns
     /// the routes, their true cost and whether all are feasible.
-    pub fn run<R: Rng>(&mut self, routes: &[Vec<u32>], rng: &mut R) -> (Vec<Vec<u32>>, i64, bool) {
+    pub fn run<R: Rng>(&mut self, routes: &[Vec<u32>], rng: &mut R) -> Descent {
         self.load(routes);
         self.moves = 0;
         self.last_tested.iter_mut().for_each(|x| *x = 0);
@@ -469,8 +480,12 @@ impl<'m> LocalSearch<'m> {
         }
         self.order = order;
         self.ensure_empty();
-        let (c, ok) = self.cost();
-        (self.routes(), c, ok)
+        let (cost, feasible) = self.cost();
+        Descent {
+            routes: self.routes(),
+            cost,
+            feasible,
+        }
     }
 
     /// Loads `routes` and evaluates, without applying any, every relocation
@@ -616,32 +631,8 @@ impl<'m> LocalSearch<'m> {
             return false;
         }
         let old = ru_d.cost + rv_d.cost;
-        if !self.m.timed() {
-            // Lower bound on the change (exact without reversals): service
-            // costs only move between routes, so only the deadheads at the
-            // cut points, the internal deadheads (best orientation) and the
-            // load penalties change.
-            let m = self.m;
-            let (ua, va) = (&ru_d.arcs, &rv_d.arcs);
-            let (ul, ur) = (ua[a0 - 1], ua[a1 + 1]);
-            let (vl, vr) = (va[b0 - 1], va[b1 + 1]);
-            let rem_a = m.d(ul, ua[a0]) + (ru_d.pre[a1].pd - ru_d.pre[a0].pd) + m.d(ua[a1], ur);
-            let ins_a = ins_at(m, vl, vr, ru_d, a0, a1);
-            let (rem_b, ins_b) = if l2 == 0 {
-                (m.d(vl, vr), m.d(ul, ur))
-            } else {
-                (
-                    m.d(vl, va[b0]) + (rv_d.pre[b1].pd - rv_d.pre[b0].pd) + m.d(va[b1], vr),
-                    ins_at(m, ul, ur, rv_d, b0, b1),
-                )
-            };
-            let pen = |load: i64| self.pen_load * (load - self.m.capacity).max(0);
-            let dpen = pen(ru_d.load - load_a + load_b) + pen(rv_d.load - load_b + load_a)
-                - pen(ru_d.load)
-                - pen(rv_d.load);
-            if (ins_a + ins_b - rem_a - rem_b) * SCALE + dpen >= 0 {
-                return false;
-            }
+        if !self.m.timed() && self.exchange_cannot_gain(ru, rv, (a0, a1), (b0, b1), l2 == 0) {
+            return false;
         }
         let mut best_v = INFEASIBLE;
         let mut pv_best = [piece(0, 0, 0, false); 3];
@@ -692,6 +683,49 @@ impl<'m> LocalSearch<'m> {
         }
         self.apply(&[(ru, &pu_best), (rv, &pv_best)]);
         true
+    }
+
+    /// For [`LocalSearch::try_exchange`] without times: whether a lower
+    /// bound on the change of moving `ru[a0..=a1]` and `rv[b0..=b1]` (empty
+    /// when `empty_b`) across shows that it cannot gain. Exact without
+    /// reversals: service costs only move between routes, so only the
+    /// deadheads at the cut points, the internal deadheads (best
+    /// orientation) and the load penalties change.
+    #[inline(always)]
+    fn exchange_cannot_gain(
+        &self,
+        ru: usize,
+        rv: usize,
+        (a0, a1): (usize, usize),
+        (b0, b1): (usize, usize),
+        empty_b: bool,
+    ) -> bool {
+        let m = self.m;
+        let (ru_d, rv_d) = (&self.routes[ru], &self.routes[rv]);
+        let load_a = ru_d.pre[a1].pl - ru_d.pre[a0 - 1].pl;
+        let load_b = if empty_b {
+            0
+        } else {
+            rv_d.pre[b1].pl - rv_d.pre[b0 - 1].pl
+        };
+        let (ua, va) = (&ru_d.arcs, &rv_d.arcs);
+        let (ul, ur) = (ua[a0 - 1], ua[a1 + 1]);
+        let (vl, vr) = (va[b0 - 1], va[b1 + 1]);
+        let rem_a = m.d(ul, ua[a0]) + (ru_d.pre[a1].pd - ru_d.pre[a0].pd) + m.d(ua[a1], ur);
+        let ins_a = ins_at(m, vl, vr, ru_d, a0, a1);
+        let (rem_b, ins_b) = if empty_b {
+            (m.d(vl, vr), m.d(ul, ur))
+        } else {
+            (
+                m.d(vl, va[b0]) + (rv_d.pre[b1].pd - rv_d.pre[b0].pd) + m.d(va[b1], vr),
+                ins_at(m, ul, ur, rv_d, b0, b1),
+            )
+        };
+        let pen = |load: i64| self.pen_load * (load - m.capacity).max(0);
+        let dpen = pen(ru_d.load - load_a + load_b) + pen(rv_d.load - load_b + load_a)
+            - pen(ru_d.load)
+            - pen(rv_d.load);
+        (ins_a + ins_b - rem_a - rem_b) * SCALE + dpen >= 0
     }
 
     fn try_two_opt_star(&mut self, ru: usize, i: usize, rv: usize, j: usize) -> bool {

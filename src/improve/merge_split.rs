@@ -78,7 +78,7 @@ pub fn merge_split<R: Rng>(
                 route_of[ArcMatrix::task(a)] = r;
             }
         }
-        let u = rng.gen_range(0..m.n);
+        let u = rng.random_range(0..m.n);
         let ru = route_of[u];
         let cands: Vec<usize> = neigh[u]
             .iter()
@@ -88,7 +88,7 @@ pub fn merge_split<R: Rng>(
         if ru == usize::MAX || cands.is_empty() {
             continue;
         }
-        let rv = cands[rng.gen_range(0..cands.len())];
+        let rv = cands[rng.random_range(0..cands.len())];
         if let Some(g) = merge_split_routes(m, routes, &[ru, rv], rng, 1) {
             gain += g;
         }

@@ -20,10 +20,11 @@
 //! the published values). The fleet read is unlimited: `VEHICULOS` is kept
 //! in [`DatInstance::vehicles`] as information only.
 
+use std::collections::HashMap;
 use std::path::Path;
 
 use super::{MAX_JUNCTIONS, MAX_NUMBER};
-use crate::error::{Error, ParseProblem, Result};
+use crate::error::{Error, ParseProblem, Problems, Result};
 use crate::model::{Cost, Fleet, Instance, Network};
 
 /// An instance read from the research format, with the header's extra fields.
@@ -45,14 +46,12 @@ pub struct DatInstance {
 }
 
 /// Reads a research-format file from disk.
+///
+/// # Errors
+/// [`Error::Io`] when the file cannot be read, [`ParseProblem::NotUtf8`]
+/// (with its line) when it is not UTF-8 text, and the errors of [`read_dat`].
 pub fn read_dat_file(path: impl AsRef<Path>) -> Result<DatInstance> {
-    let path = path.as_ref();
-    let name = path.display().to_string();
-    let bytes = std::fs::read(path).map_err(|source| Error::Io {
-        file: name.clone(),
-        source,
-    })?;
-    let text = String::from_utf8_lossy(&bytes);
+    let (name, text) = super::read_text(path.as_ref())?;
     read_dat(&text, &name)
 }
 
@@ -163,275 +162,367 @@ fn parse_edge(file: &str, line: usize, s: &str, required: bool, n: usize) -> Res
     if required && demand.is_none() {
         return Err(bad("`demanda D` on a required edge"));
     }
+    if !required && demand.is_some() {
+        // Defect 3.6 of issue 8: this demand used to be dropped silently.
+        return Err(Error::parse(
+            file,
+            Some(line),
+            ParseProblem::DemandNotRequired,
+        ));
+    }
     Ok(Edge {
         u,
         v,
         cost,
-        demand: if required { demand } else { None },
+        demand,
         line,
     })
 }
 
 /// Parses research-format text. `file` names the source in errors.
+///
+/// # Errors
+/// [`Error::Parse`] with the file, the line and the problem in the format's
+/// own words (vertex, edge, depot): a line that fits nowhere, a number
+/// that does not parse or is out of range, a header count that the listed
+/// edges do not match (or, for `VERTICES`, cannot back: more than twice the
+/// edges plus one), a `demanda` on an edge under `LISTA_ARISTAS_NOREQ`, a
+/// missing header key, a file that ends early, or an invalid instance
+/// ([`ParseProblem::Model`], at the line of the edge concerned).
+///
+/// # Complexity
+/// `O(L + V + E)` time and memory for `L` bytes of text, `V` vertices and
+/// `E` edges; `V` is at most `2E + 1`, so the work is bounded by the text.
+///
+/// ```
+/// let text = "NOMBRE : pair\nVERTICES : 2\nARISTAS_REQ : 1\nARISTAS_NOREQ : 0\n\
+///             CAPACIDAD : 5\nLISTA_ARISTAS_REQ :\n( 1, 2) coste 3 demanda 2\nDEPOSITO : 1\n";
+/// let d = arcwright::io::read_dat(text, "pair.dat").unwrap();
+/// assert_eq!(d.instance.total_service_cost(), 3);
+/// let bad = text.replace("demanda 2", "demanda x");
+/// let e = arcwright::io::read_dat(&bad, "pair.dat").unwrap_err();
+/// assert_eq!(e.to_string(), "pair.dat:7: expected demand, found `x`");
+/// ```
 pub fn read_dat(text: &str, file: &str) -> Result<DatInstance> {
-    let mut name: Option<String> = None;
-    let mut header: std::collections::HashMap<String, (String, usize)> = Default::default();
-    let mut section = Section::Header;
-    let mut edges: Vec<Edge> = Vec::new();
-    let mut n_req_listed = 0usize;
-    let mut n_other_listed = 0usize;
-    let mut depot: Option<(usize, usize)> = None;
-    let mut n: Option<usize> = None;
-    let mut last_line = 0;
-
-    let get_usize = |header: &std::collections::HashMap<String, (String, usize)>,
-                     key: &'static str|
-     -> Result<Option<usize>> {
-        match header.get(key) {
-            None => Ok(None),
-            Some((v, l)) => Ok(Some(nonneg(file, *l, v, key)? as usize)),
-        }
-    };
-
     let total_lines = text.lines().count();
-    // A file cut off in the middle of its last line: a bad last line is then
-    // reported as truncation.
-    let cut = !text.ends_with('\n');
+    let mut r = DatReader {
+        file,
+        name: None,
+        header: HashMap::new(),
+        section: Section::Header,
+        edges: Vec::new(),
+        n_req_listed: 0,
+        n_other_listed: 0,
+        depot: None,
+        n: None,
+        // A file cut off in the middle of its last line: a bad last line is
+        // then reported as truncation.
+        cut_line: (!text.ends_with('\n')).then_some(total_lines),
+        first_list: None,
+    };
+    let mut last_line = 0;
     for (idx, raw) in text.lines().enumerate() {
         let line = idx + 1;
-        let cut_here = |e: Error| {
-            if cut && line == total_lines {
-                Error::parse(
-                    file,
-                    Some(line),
-                    ParseProblem::Truncated {
-                        expected: format!("the rest of line {line}"),
-                    },
-                )
-            } else {
-                e
-            }
-        };
         last_line = line;
         let s = raw.trim_matches(|c: char| c.is_whitespace() || c == '\u{feff}');
         if s.is_empty() {
             continue;
         }
         if s.starts_with('(') {
-            let nv = match n {
-                Some(nv) => nv,
-                None => {
-                    return Err(Error::parse(
-                        file,
-                        Some(line),
-                        ParseProblem::MissingKey { key: "VERTICES" },
-                    ))
-                }
-            };
-            match section {
-                Section::Header => {
-                    return Err(Error::parse(
-                        file,
-                        Some(line),
-                        ParseProblem::Unexpected {
-                            expected: "LISTA_ARISTAS_REQ : before the edges",
-                            found: s.to_string(),
-                        },
-                    ))
-                }
-                Section::Required => {
-                    edges.push(parse_edge(file, line, s, true, nv).map_err(cut_here)?);
-                    n_req_listed += 1;
-                }
-                Section::Other => {
-                    edges.push(parse_edge(file, line, s, false, nv).map_err(cut_here)?);
-                    n_other_listed += 1;
-                }
-            }
-            continue;
+            r.edge_line(line, s)?;
+        } else {
+            r.key_line(line, s)?;
         }
-        let (key, value) = match s.split_once(':') {
-            Some((k, v)) => (k.trim().to_ascii_uppercase(), v.trim().to_string()),
-            None => {
-                return Err(Error::parse(
-                    file,
+    }
+    r.finish(last_line.max(1))
+}
+
+/// The reader's state while it goes through the lines.
+struct DatReader<'f> {
+    file: &'f str,
+    name: Option<String>,
+    header: HashMap<String, (String, usize)>,
+    section: Section,
+    edges: Vec<Edge>,
+    n_req_listed: usize,
+    n_other_listed: usize,
+    /// Depot (0-based) and its line.
+    depot: Option<(usize, usize)>,
+    /// `VERTICES`, once read.
+    n: Option<usize>,
+    /// The last line, when the text ends without a line end.
+    cut_line: Option<usize>,
+    /// Line of the first `LISTA_ARISTAS_*` key (where the header ends).
+    first_list: Option<usize>,
+}
+
+impl DatReader<'_> {
+    fn err(&self, line: Option<usize>, problem: ParseProblem) -> Error {
+        Error::parse(self.file, line, problem)
+    }
+
+    /// `e`, or a truncation when `line` is the cut last line.
+    fn cut(&self, line: usize, e: Error) -> Error {
+        if self.cut_line == Some(line) {
+            self.err(
+                Some(line),
+                ParseProblem::Truncated {
+                    expected: format!("the rest of line {line}"),
+                },
+            )
+        } else {
+            e
+        }
+    }
+
+    fn vertices(&self, line: usize) -> Result<usize> {
+        self.n
+            .ok_or_else(|| self.err(Some(line), ParseProblem::MissingKey { key: "VERTICES" }))
+    }
+
+    fn header_usize(&self, key: &'static str) -> Result<Option<usize>> {
+        match self.header.get(key) {
+            None => Ok(None),
+            Some((v, l)) => Ok(Some(nonneg(self.file, *l, v, key)? as usize)),
+        }
+    }
+
+    fn header_line(&self, key: &str) -> Option<usize> {
+        self.header.get(key).map(|(_, l)| *l)
+    }
+
+    /// An edge line `( u , v) coste C [demanda D]` in the current section.
+    fn edge_line(&mut self, line: usize, s: &str) -> Result<()> {
+        let nv = self.vertices(line)?;
+        let required = match self.section {
+            Section::Header => {
+                return Err(self.err(
                     Some(line),
                     ParseProblem::Unexpected {
-                        expected: "`KEY : value` or an edge `( u , v) coste C`",
+                        expected: "LISTA_ARISTAS_REQ : before the edges",
                         found: s.to_string(),
                     },
                 ))
             }
+            Section::Required => true,
+            Section::Other => false,
         };
+        let edge = parse_edge(self.file, line, s, required, nv).map_err(|e| self.cut(line, e))?;
+        self.edges.push(edge);
+        if required {
+            self.n_req_listed += 1;
+        } else {
+            self.n_other_listed += 1;
+        }
+        Ok(())
+    }
+
+    /// A `KEY : value` line: a section start, the depot or a header key.
+    fn key_line(&mut self, line: usize, s: &str) -> Result<()> {
+        let Some((key, value)) = s.split_once(':') else {
+            return Err(self.err(
+                Some(line),
+                ParseProblem::Unexpected {
+                    expected: "`KEY : value` or an edge `( u , v) coste C`",
+                    found: s.to_string(),
+                },
+            ));
+        };
+        let (key, value) = (key.trim().to_ascii_uppercase(), value.trim().to_string());
         match key.as_str() {
-            "LISTA_ARISTAS_REQ" => section = Section::Required,
-            "LISTA_ARISTAS_NOREQ" => section = Section::Other,
+            "LISTA_ARISTAS_REQ" => {
+                self.section = Section::Required;
+                self.first_list.get_or_insert(line);
+            }
+            "LISTA_ARISTAS_NOREQ" => {
+                self.section = Section::Other;
+                self.first_list.get_or_insert(line);
+            }
             "DEPOSITO" => {
-                if let Some((_, first)) = depot {
-                    return Err(Error::parse(
-                        file,
+                if let Some((_, first)) = self.depot {
+                    return Err(self.err(
                         Some(line),
                         ParseProblem::DuplicateDepot { first_line: first },
                     ));
                 }
-                let nv = n.ok_or_else(|| {
-                    Error::parse(
-                        file,
-                        Some(line),
-                        ParseProblem::MissingKey { key: "VERTICES" },
-                    )
-                })?;
-                let d = num(file, line, &value, "the depot vertex").map_err(cut_here)?;
+                let nv = self.vertices(line)?;
+                let d = num(self.file, line, &value, "the depot vertex")
+                    .map_err(|e| self.cut(line, e))?;
                 if d < 1 || d as usize > nv {
-                    return Err(Error::parse(
-                        file,
+                    return Err(self.err(
                         Some(line),
                         ParseProblem::UnknownVertex { vertex: d, max: nv },
                     ));
                 }
-                depot = Some((d as usize - 1, line));
-                section = Section::Other;
+                self.depot = Some((d as usize - 1, line));
+                self.section = Section::Other;
             }
-            _ => {
-                if section != Section::Header {
-                    return Err(Error::parse(
-                        file,
-                        Some(line),
-                        ParseProblem::Unexpected {
-                            expected: "an edge line or DEPOSITO",
-                            found: s.to_string(),
-                        },
-                    ));
-                }
-                if header.contains_key(&key) {
-                    return Err(Error::parse(
-                        file,
-                        Some(line),
-                        ParseProblem::DuplicateKey { key },
-                    ));
-                }
-                if key == "NOMBRE" {
-                    name = Some(value.clone());
-                }
-                header.insert(key.clone(), (value, line));
-                if key == "VERTICES" {
-                    n = get_usize(&header, "VERTICES")?;
-                    if let Some(v) = n.filter(|&v| v > MAX_JUNCTIONS) {
-                        return Err(Error::parse(
-                            file,
-                            Some(line),
-                            ParseProblem::TooLarge {
-                                what: "VERTICES",
-                                value: v as u64,
-                                max: MAX_JUNCTIONS as u64,
-                            },
-                        ));
-                    }
-                }
-            }
+            _ => self.header_key(line, s, key, value)?,
         }
+        Ok(())
     }
 
-    let end = Some(last_line.max(1));
-    let nv =
-        n.ok_or_else(|| Error::parse(file, end, ParseProblem::MissingKey { key: "VERTICES" }))?;
-    let n_req = get_usize(&header, "ARISTAS_REQ")?
-        .ok_or_else(|| Error::parse(file, end, ParseProblem::MissingKey { key: "ARISTAS_REQ" }))?;
-    let n_other = get_usize(&header, "ARISTAS_NOREQ")?.unwrap_or(0);
-    let capacity = get_usize(&header, "CAPACIDAD")?
-        .ok_or_else(|| Error::parse(file, end, ParseProblem::MissingKey { key: "CAPACIDAD" }))?;
-    let vehicles = get_usize(&header, "VEHICULOS")?;
-    let checksum = match header.get("COSTE_TOTAL_REQ") {
-        Some((v, l)) => Some(nonneg(file, *l, v, "COSTE_TOTAL_REQ")?),
-        None => None,
-    };
-    let header_line = |k: &str| header.get(k).map(|(_, l)| *l);
-
-    // Counts: a short list is a truncated file when the file ends in it.
-    if n_req_listed != n_req {
-        if n_req_listed < n_req && depot.is_none() && n_other_listed == 0 {
-            return Err(Error::parse(
-                file,
-                end,
-                ParseProblem::Truncated {
-                    expected: format!("{n_req} required edges, found {n_req_listed}"),
+    fn header_key(&mut self, line: usize, s: &str, key: String, value: String) -> Result<()> {
+        if self.section != Section::Header {
+            return Err(self.err(
+                Some(line),
+                ParseProblem::Unexpected {
+                    expected: "an edge line or DEPOSITO",
+                    found: s.to_string(),
                 },
             ));
         }
-        return Err(Error::parse(
-            file,
-            header_line("ARISTAS_REQ"),
-            ParseProblem::CountMismatch {
-                what: "ARISTAS_REQ",
-                header: n_req,
-                found: n_req_listed,
-            },
-        ));
+        if self.header.contains_key(&key) {
+            return Err(self.err(Some(line), ParseProblem::DuplicateKey { key }));
+        }
+        if key == "NOMBRE" {
+            self.name = Some(value.clone());
+        }
+        let vertices = key == "VERTICES";
+        self.header.insert(key, (value, line));
+        if vertices {
+            self.n = self.header_usize("VERTICES")?;
+            if let Some(v) = self.n.filter(|&v| v > MAX_JUNCTIONS) {
+                return Err(self.err(
+                    Some(line),
+                    ParseProblem::TooLarge {
+                        what: "VERTICES",
+                        value: v as u64,
+                        max: MAX_JUNCTIONS as u64,
+                    },
+                ));
+            }
+        }
+        Ok(())
     }
-    if n_other_listed != n_other {
-        if n_other_listed < n_other && depot.is_none() {
-            return Err(Error::parse(
-                file,
-                end,
-                ParseProblem::Truncated {
-                    expected: format!("{n_other} non-required edges, found {n_other_listed}"),
+
+    /// A missing header key, reported at the line where the header ends
+    /// (the first list), or at the end of the file.
+    fn missing(&self, key: &'static str, end: usize) -> Error {
+        let at = self.first_list.unwrap_or(end);
+        self.err(Some(at), ParseProblem::MissingKey { key })
+    }
+
+    /// Header counts against the lists; `end` is the last line.
+    fn check_counts(&self, end: usize) -> Result<()> {
+        let n_req = self
+            .header_usize("ARISTAS_REQ")?
+            .ok_or_else(|| self.missing("ARISTAS_REQ", end))?;
+        let n_other = self.header_usize("ARISTAS_NOREQ")?.unwrap_or(0);
+        // A short list is a truncated file when the file ends in it.
+        let lists = [
+            (
+                "ARISTAS_REQ",
+                "required",
+                n_req,
+                self.n_req_listed,
+                self.n_other_listed == 0,
+            ),
+            (
+                "ARISTAS_NOREQ",
+                "non-required",
+                n_other,
+                self.n_other_listed,
+                true,
+            ),
+        ];
+        for (key, kind, header, found, last_list) in lists {
+            if found == header {
+                continue;
+            }
+            if found < header && self.depot.is_none() && last_list {
+                return Err(self.err(
+                    Some(end),
+                    ParseProblem::Truncated {
+                        expected: format!("{header} {kind} edges, found {found}"),
+                    },
+                ));
+            }
+            return Err(self.err(
+                self.header_line(key),
+                ParseProblem::CountMismatch {
+                    what: key,
+                    header,
+                    found,
                 },
             ));
         }
-        return Err(Error::parse(
-            file,
-            header_line("ARISTAS_NOREQ"),
-            ParseProblem::CountMismatch {
-                what: "ARISTAS_NOREQ",
-                header: n_other,
-                found: n_other_listed,
-            },
-        ));
+        // Defect 3.5 of issue 8: a huge VERTICES in a tiny file made the
+        // work follow the header. Each edge brings at most two vertices.
+        let nv = self.n.unwrap_or(0);
+        let most = 2 * self.edges.len() + 1;
+        if nv > most {
+            return Err(self.err(
+                self.header_line("VERTICES"),
+                ParseProblem::Unbacked {
+                    what: "VERTICES",
+                    header: nv,
+                    most,
+                },
+            ));
+        }
+        Ok(())
     }
-    let (depot, _) = depot.ok_or_else(|| {
-        Error::parse(
-            file,
-            end,
-            ParseProblem::Truncated {
-                expected: "DEPOSITO : d".to_string(),
-            },
-        )
-    })?;
-    let required_cost: Cost = edges
-        .iter()
-        .filter(|e| e.demand.is_some())
-        .fold(0, |acc: Cost, e| acc.saturating_add(e.cost));
 
-    let mut net = Network::with_junctions(nv);
-    let mut link_lines = Vec::with_capacity(edges.len());
-    for e in &edges {
-        match e.demand {
-            Some(d) => net.add_required_edge(e.u, e.v, e.cost, d),
-            None => net.add_edge(e.u, e.v, e.cost),
+    fn finish(self, end: usize) -> Result<DatInstance> {
+        let nv = self.n.ok_or_else(|| self.missing("VERTICES", end))?;
+        self.check_counts(end)?;
+        let capacity = self
+            .header_usize("CAPACIDAD")?
+            .ok_or_else(|| self.missing("CAPACIDAD", end))?;
+        let vehicles = self.header_usize("VEHICULOS")?;
+        let checksum = match self.header.get("COSTE_TOTAL_REQ") {
+            Some((v, l)) => Some(nonneg(self.file, *l, v, "COSTE_TOTAL_REQ")?),
+            None => None,
         };
-        link_lines.push(e.line);
-    }
-    let name = name.unwrap_or_else(|| {
-        Path::new(file)
-            .file_stem()
-            .map(|s| s.to_string_lossy().into_owned())
-            .unwrap_or_default()
-    });
-    let instance = Instance::new(name, net, Fleet::with_capacity(capacity as Cost), depot)
-        .map_err(|m| {
-            let line = m
-                .link()
-                .and_then(|l| link_lines.get(l).copied())
-                .or(header_line("CAPACIDAD").filter(|_| m.link().is_none()));
-            Error::parse(file, line, ParseProblem::Model(m))
+        let (depot, _) = self.depot.ok_or_else(|| {
+            self.err(
+                Some(end),
+                ParseProblem::Truncated {
+                    expected: "DEPOSITO : d".to_string(),
+                },
+            )
         })?;
-    Ok(DatInstance {
-        instance,
-        vehicles,
-        checksum,
-        required_cost,
-        link_lines,
-    })
+        let required_cost: Cost = self
+            .edges
+            .iter()
+            .filter(|e| e.demand.is_some())
+            .fold(0, |acc: Cost, e| acc.saturating_add(e.cost));
+        let mut net = Network::with_junctions(nv);
+        let mut link_lines = Vec::with_capacity(self.edges.len());
+        for e in &self.edges {
+            match e.demand {
+                Some(d) => net.add_required_edge(e.u, e.v, e.cost, d),
+                None => net.add_edge(e.u, e.v, e.cost),
+            };
+            link_lines.push(e.line);
+        }
+        let name = self.name.clone().unwrap_or_else(|| {
+            Path::new(self.file)
+                .file_stem()
+                .map(|s| s.to_string_lossy().into_owned())
+                .unwrap_or_default()
+        });
+        let fleet = Fleet::with_capacity(capacity as Cost);
+        let instance = Instance::validate(name, net, fleet, depot).map_err(|all| {
+            let mut problems = Problems::new(self.file);
+            for m in all {
+                let line = m
+                    .link()
+                    .and_then(|l| link_lines.get(l).copied())
+                    .or(self.header_line("CAPACIDAD").filter(|_| m.link().is_none()));
+                problems.push(self.err(line, ParseProblem::Model(m)));
+            }
+            problems.failed()
+        })?;
+        Ok(DatInstance {
+            instance,
+            vehicles,
+            checksum,
+            required_cost,
+            link_lines,
+        })
+    }
 }
 
 #[cfg(test)]

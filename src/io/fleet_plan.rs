@@ -250,7 +250,6 @@ fn read_route(
 ) -> Result<FleetRoute> {
     let ops = inst.operations();
     let types = ops.types_of(inst);
-    let id = |j: usize| inst.network().junctions[j].id;
     let p = |k: &str| format!("routes[{ri}].{k}");
     let k = types
         .iter()
@@ -264,6 +263,64 @@ fn read_route(
                 },
             )
         })?;
+    let (visits, tips) = read_stops(inst, at, ri, r)?;
+    let route = FleetRoute::new(inst, tables, k, visits, tips).map_err(|e| {
+        at(
+            p("stops"),
+            ParseProblem::Unexpected {
+                expected: "a route its truck type can drive",
+                found: format!("{e:?}"),
+            },
+        )
+    })?;
+    let home = &ops.yards_of(inst)[route.yard].name;
+    if *home != r.yard {
+        return Err(at(
+            p("yard"),
+            ParseProblem::Unexpected {
+                expected: "the home yard of the truck type",
+                found: r.yard.clone(),
+            },
+        ));
+    }
+    let stated = [
+        ("cost", r.cost, route.cost),
+        ("driven", r.driven, route.driven),
+        ("time", r.time, route.time),
+    ];
+    for (what, s, c) in stated {
+        if s != c {
+            return Err(at(
+                p(what),
+                ParseProblem::Mismatch {
+                    what: format!("route {ri} {what}"),
+                    stated: s,
+                    computed: c,
+                },
+            ));
+        }
+    }
+    if r.trip_loads != route.trip_loads {
+        return Err(at(
+            p("trip_loads"),
+            ParseProblem::Unexpected {
+                expected: "the recomputed trip loads",
+                found: format!("{:?} (recomputed {:?})", r.trip_loads, route.trip_loads),
+            },
+        ));
+    }
+    Ok(route)
+}
+
+/// The visits and tips of route `ri` of a plan file, from its stops.
+fn read_stops(
+    inst: &Instance,
+    at: &dyn Fn(String, ParseProblem) -> Error,
+    ri: usize,
+    r: &RouteRec,
+) -> Result<(Vec<Visit>, Vec<Tip>)> {
+    let ops = inst.operations();
+    let id = |j: usize| inst.network().junctions[j].id;
     let (mut visits, mut tips) = (Vec::new(), Vec::new());
     for (si, s) in r.stops.iter().enumerate() {
         let sp = format!("routes[{ri}].stops[{si}]");
@@ -311,50 +368,5 @@ fn read_route(
             }
         }
     }
-    let route = FleetRoute::new(inst, tables, k, visits, tips).map_err(|e| {
-        at(
-            p("stops"),
-            ParseProblem::Unexpected {
-                expected: "a route its truck type can drive",
-                found: format!("{e:?}"),
-            },
-        )
-    })?;
-    let home = &ops.yards_of(inst)[route.yard].name;
-    if *home != r.yard {
-        return Err(at(
-            p("yard"),
-            ParseProblem::Unexpected {
-                expected: "the home yard of the truck type",
-                found: r.yard.clone(),
-            },
-        ));
-    }
-    let stated = [
-        ("cost", r.cost, route.cost),
-        ("driven", r.driven, route.driven),
-        ("time", r.time, route.time),
-    ];
-    for (what, s, c) in stated {
-        if s != c {
-            return Err(at(
-                p(what),
-                ParseProblem::Mismatch {
-                    what: format!("route {ri} {what}"),
-                    stated: s,
-                    computed: c,
-                },
-            ));
-        }
-    }
-    if r.trip_loads != route.trip_loads {
-        return Err(at(
-            p("trip_loads"),
-            ParseProblem::Unexpected {
-                expected: "the recomputed trip loads",
-                found: format!("{:?} (recomputed {:?})", r.trip_loads, route.trip_loads),
-            },
-        ));
-    }
-    Ok(route)
+    Ok((visits, tips))
 }

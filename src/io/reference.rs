@@ -55,12 +55,19 @@ pub struct Reference {
 }
 
 /// Reads the table from a file. The file name in errors is `path` as given.
+///
+/// # Errors
+/// [`crate::Error::Io`] when the file cannot be read, and the errors of [`parse_reference`].
 pub fn read_reference(path: impl AsRef<Path>) -> Result<Vec<Reference>> {
     let (name, text) = super::read_text(path.as_ref())?;
     parse_reference(&text, &name)
 }
 
 /// Parses the table from text; `file` names the text in errors.
+///
+/// # Errors
+/// [`crate::Error::Parse`] with the line: a wrong header, a row with the wrong number of
+/// columns, a number or yes/no that does not parse, an open quote.
 pub fn parse_reference(text: &str, file: &str) -> Result<Vec<Reference>> {
     let mut rows = Vec::new();
     let mut header_seen = false;

@@ -33,6 +33,7 @@
 //! as many trucks as all types together. Files without these fields read as
 //! before, with every feature off.
 //!
+//!
 //! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
 //! "length": integer?, "drive_time": integer?, "name": string?, "service":
 //! {...}? }` (`length`, in the `length` unit, is shown on the sheets and
@@ -98,7 +99,7 @@ use std::path::Path;
 use serde::{Deserialize, Serialize};
 
 use super::MAX_NUMBER;
-use crate::error::{Error, ParseProblem, Result};
+use crate::error::{Error, ParseProblem, Problems, Result};
 use crate::model::{
     Balance, Coordinates, Cost, DumpSite, Element, Fleet, Hours, Instance, Junction, Link,
     ModelError, Network, Operations, OperationsError, ServeDirection, ServiceSpec, TruckType,
@@ -476,146 +477,110 @@ impl Scan<'_> {
 }
 
 /// Reads a scenario file from disk.
+///
+/// # Errors
+/// [`Error::Io`] when the file cannot be read, [`ParseProblem::NotUtf8`] (with its line) when
+/// it is not UTF-8, and the errors of [`read_scenario`].
 pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
     let (name, text) = super::read_text(path.as_ref())?;
     read_scenario(&text, &name)
 }
 
 /// Parses scenario JSON text. `file` names the source in errors.
+///
+/// A byte-order mark before the JSON is skipped. After the JSON itself
+/// reads, validation goes on past the first problem and reports them all
+/// (up to [`crate::model::MAX_PROBLEMS`]) in one [`Error::Several`].
+///
+/// # Errors
+/// [`ParseProblem::Json`] for JSON syntax or a value of the wrong type (at
+/// its line, with the column), a wrong `format` or `version`, and then each
+/// problem of the content at its JSON path and line: a junction id given
+/// twice or unknown, a number above [`MAX_NUMBER`], a negative shift limit,
+/// or an invalid instance ([`ParseProblem::Model`]).
+///
+/// # Complexity
+/// `O(L + V + E)` for `L` bytes of text, `V` junctions and `E` streets
+/// (finding the line of a problem scans the text once per problem).
+///
+/// ```
+/// let text = r#"{"format": "arcwright-scenario", "version": 1, "name": "lane",
+///   "junctions": [{"id": 1}, {"id": 2}],
+///   "streets": [{"from": 1, "to": 2, "cost": 60, "name": "Mill Lane",
+///                "service": {"demand": 12, "cost": 75}}],
+///   "yard": 1, "fleet": {"capacity": 100}}"#;
+/// let inst = arcwright::io::read_scenario(text, "lane.json").unwrap();
+/// assert_eq!(inst.tasks()[0].cost, 75);
+/// let bad = text.replace("\"to\": 2", "\"to\": 7");
+/// let e = arcwright::io::read_scenario(&bad, "lane.json").unwrap_err();
+/// assert_eq!(e.to_string(), "lane.json:3: at `streets[0].to`: no junction has id 7");
+/// ```
 pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     // A byte-order mark, as some editors write, is not JSON: skip it.
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let rec: FileRec = serde_json::from_str(text).map_err(|e| {
-        let line = (e.line() > 0).then_some(e.line());
-        Error::parse(
-            file,
-            line,
-            ParseProblem::Json {
-                message: e.to_string(),
-            },
-        )
-    })?;
-    let at = |path: Vec<Seg>, problem: ParseProblem| {
-        Error::parse(
-            file,
-            line_of(text, &path),
-            ParseProblem::AtPath {
-                path: path_string(&path),
-                problem: Box::new(problem),
-            },
-        )
+    let rec: FileRec = serde_json::from_str(text).map_err(|e| Error::json(file, &e))?;
+    let mut c = Collect {
+        file,
+        text,
+        problems: Problems::new(file),
     };
     if rec.format != FORMAT_TAG {
-        return Err(at(
+        c.at(
             vec![Seg::Key("format")],
             ParseProblem::Unexpected {
                 expected: "\"arcwright-scenario\"",
                 found: rec.format.clone(),
             },
-        ));
+        );
+        return Err(c.problems.failed());
     }
     if rec.version != VERSION {
-        return Err(at(
+        c.at(
             vec![Seg::Key("version")],
             ParseProblem::Unexpected {
                 expected: "version 1",
                 found: rec.version.to_string(),
             },
-        ));
+        );
+        return Err(c.problems.failed());
     }
-    let limit = |path: Vec<Seg>, what: &'static str, v: i64| -> Result<()> {
-        if v > MAX_NUMBER {
-            return Err(at(
-                path,
-                ParseProblem::TooLarge {
-                    what,
-                    value: v as u64,
-                    max: MAX_NUMBER as u64,
-                },
-            ));
+    let (junctions, index) = c.junctions(&rec.junctions);
+    let links = c.streets(&rec.streets, &index);
+    let fleet_ops = c.fleet_and_operations(&rec, &index);
+    let (fleet, depot, ops) = match fleet_ops {
+        Ok((fleet, depot, ops)) => (fleet, Some(depot), Some(ops)),
+        Err(e) => {
+            c.problems.push(e);
+            (Fleet::with_capacity(1), None, None)
         }
-        Ok(())
     };
-    let mut index: HashMap<u64, usize> = HashMap::with_capacity(rec.junctions.len());
-    let mut junctions = Vec::with_capacity(rec.junctions.len());
-    for (i, j) in rec.junctions.iter().enumerate() {
-        if let Some(&first) = index.get(&j.id) {
-            return Err(at(
-                vec![Seg::Key("junctions"), Seg::Index(i), Seg::Key("id")],
-                ParseProblem::DuplicateJunction { id: j.id, first },
-            ));
-        }
-        index.insert(j.id, i);
-        junctions.push(Junction {
-            id: j.id,
-            x: j.x,
-            y: j.y,
-        });
-    }
-    let lookup = |path: Vec<Seg>, id: u64| -> Result<usize> {
-        index
-            .get(&id)
-            .copied()
-            .ok_or_else(|| at(path, ParseProblem::UnknownJunction { id }))
-    };
-    let mut links = Vec::with_capacity(rec.streets.len());
-    for (i, s) in rec.streets.iter().enumerate() {
-        let p = |k: &'static str| vec![Seg::Key("streets"), Seg::Index(i), Seg::Key(k)];
-        let ps = |k: &'static str| {
-            vec![
-                Seg::Key("streets"),
-                Seg::Index(i),
-                Seg::Key("service"),
-                Seg::Key(k),
-            ]
-        };
-        let from = lookup(p("from"), s.from)?;
-        let to = lookup(p("to"), s.to)?;
-        limit(p("cost"), "cost", s.cost)?;
-        if let Some(len) = s.length {
-            limit(p("length"), "length", len)?;
-        }
-        if let Some(t) = s.drive_time {
-            limit(p("drive_time"), "drive time", t)?;
-        }
-        let service = match &s.service {
-            None => None,
-            Some(sv) => {
-                limit(ps("demand"), "demand", sv.demand)?;
-                limit(ps("cost"), "service cost", sv.cost)?;
-                if let Some(t) = sv.time {
-                    limit(ps("time"), "service time", t)?;
-                }
-                Some(ServiceSpec {
-                    demand: sv.demand,
-                    cost: sv.cost,
-                    time: sv.time,
-                    direction: match sv.directions {
-                        Directions::Either => ServeDirection::Either,
-                        Directions::Forward => ServeDirection::Forward,
-                    },
-                })
+    let at = |path: Vec<Seg>, problem: ParseProblem| c.error_at(path, problem);
+    let units = read_units(rec.units.as_ref(), &at);
+    let system = read_system(rec.coordinates.as_ref(), &at);
+    let (units, system) = match (units, system) {
+        (Ok(u), Ok(s)) => (Some(u), Some(s)),
+        (u, s) => {
+            for e in [u.err(), s.err()].into_iter().flatten() {
+                c.problems.push(e);
             }
-        };
-        links.push(Link {
-            from,
-            to,
-            oneway: s.one_way,
-            cost: s.cost,
-            time: s.drive_time,
-            service,
-            name: s.name.clone(),
-            length: s.length,
-        });
-    }
+            (None, None)
+        }
+    };
+    let (Some(depot), Some(ops), Some(units), Some(system), true) =
+        (depot, ops, units, system, c.problems.is_empty())
+    else {
+        return Err(c.problems.failed());
+    };
     let network = Network { junctions, links };
-    let (fleet, depot, ops) = fleet_and_operations(&rec, &lookup, &at, &limit)?;
-    let units = read_units(rec.units.as_ref(), &at)?;
-    let system = read_system(rec.coordinates.as_ref(), &at)?;
-    let inst = Instance::new(rec.name, network, fleet, depot).map_err(|m| {
-        let path = model_error_path(&m);
-        at(path, ParseProblem::Model(m))
-    })?;
+    let inst = match Instance::validate(rec.name, network, fleet, depot) {
+        Ok(inst) => inst,
+        Err(all) => {
+            for m in all {
+                c.at(model_error_path(&m), ParseProblem::Model(m));
+            }
+            return Err(c.problems.failed());
+        }
+    };
     let inst = inst
         .with_units(units)
         .with_coordinates(system)
@@ -625,15 +590,401 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             } else {
                 "y"
             };
-            at(
+            c.error_at(
                 vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
                 ParseProblem::Coordinate(e),
             )
         })?;
     inst.with_operations(ops).map_err(|e| {
         let path = operations_error_path(&rec.yards, &rec.truck_types, &e);
-        at(path, ParseProblem::Model(ModelError::Operations(e)))
+        c.error_at(path, ParseProblem::Model(ModelError::Operations(e)))
     })
+}
+
+/// The problems of one scenario text, each at its JSON path and line.
+struct Collect<'t> {
+    file: &'t str,
+    text: &'t str,
+    problems: Problems,
+}
+
+impl Collect<'_> {
+    /// The error for `problem` at `path`, with its line.
+    fn error_at(&self, path: Vec<Seg>, problem: ParseProblem) -> Error {
+        Error::parse(
+            self.file,
+            line_of(self.text, &path),
+            ParseProblem::AtPath {
+                path: path_string(&path),
+                problem: Box::new(problem),
+            },
+        )
+    }
+
+    /// The fleet, depot and operations (see [`fleet_and_operations`]), the
+    /// junctions looked up in `index`.
+    fn fleet_and_operations(
+        &self,
+        rec: &FileRec,
+        index: &HashMap<u64, usize>,
+    ) -> Result<(Fleet, usize, Operations)> {
+        let at = |path: Vec<Seg>, problem: ParseProblem| self.error_at(path, problem);
+        let lookup = |path: Vec<Seg>, id: u64| -> Result<usize> {
+            index
+                .get(&id)
+                .copied()
+                .ok_or_else(|| at(path, ParseProblem::UnknownJunction { id }))
+        };
+        let limit = |path: Vec<Seg>, what: &'static str, v: i64| -> Result<()> {
+            if v > MAX_NUMBER {
+                let max = MAX_NUMBER as u64;
+                return Err(at(
+                    path,
+                    ParseProblem::TooLarge {
+                        what,
+                        value: v as u64,
+                        max,
+                    },
+                ));
+            }
+            Ok(())
+        };
+        fleet_and_operations(rec, &lookup, &at, &limit)
+    }
+
+    /// Records `problem` at `path`.
+    fn at(&mut self, path: Vec<Seg>, problem: ParseProblem) {
+        let e = self.error_at(path, problem);
+        self.problems.push(e);
+    }
+
+    /// `v` if it is at most [`MAX_NUMBER`], else a problem and `None`.
+    fn limit(&mut self, path: Vec<Seg>, what: &'static str, v: i64) -> Option<i64> {
+        if v > MAX_NUMBER {
+            let problem = ParseProblem::TooLarge {
+                what,
+                value: v as u64,
+                max: MAX_NUMBER as u64,
+            };
+            self.at(path, problem);
+            return None;
+        }
+        Some(v)
+    }
+
+    fn junctions(&mut self, recs: &[JunctionRec]) -> (Vec<Junction>, HashMap<u64, usize>) {
+        let mut index: HashMap<u64, usize> = HashMap::with_capacity(recs.len());
+        let mut junctions = Vec::with_capacity(recs.len());
+        for (i, j) in recs.iter().enumerate() {
+            if let Some(&first) = index.get(&j.id) {
+                self.at(
+                    vec![Seg::Key("junctions"), Seg::Index(i), Seg::Key("id")],
+                    ParseProblem::DuplicateJunction { id: j.id, first },
+                );
+            } else {
+                index.insert(j.id, i);
+            }
+            junctions.push(Junction {
+                id: j.id,
+                x: j.x,
+                y: j.y,
+            });
+        }
+        (junctions, index)
+    }
+
+    fn lookup(&mut self, index: &HashMap<u64, usize>, path: Vec<Seg>, id: u64) -> Option<usize> {
+        let found = index.get(&id).copied();
+        if found.is_none() {
+            self.at(path, ParseProblem::UnknownJunction { id });
+        }
+        found
+    }
+
+    /// The streets as links; a street with an unknown end is left out (its
+    /// problem is recorded).
+    fn streets(&mut self, recs: &[StreetRec], index: &HashMap<u64, usize>) -> Vec<Link> {
+        let mut links = Vec::with_capacity(recs.len());
+        for (i, s) in recs.iter().enumerate() {
+            let p = |k: &'static str| vec![Seg::Key("streets"), Seg::Index(i), Seg::Key(k)];
+            let ps = |k: &'static str| {
+                let mut v = p("service");
+                v.push(Seg::Key(k));
+                v
+            };
+            let from = self.lookup(index, p("from"), s.from);
+            let to = self.lookup(index, p("to"), s.to);
+            let mut ok = self.limit(p("cost"), "cost", s.cost).is_some();
+            if let Some(len) = s.length {
+                ok &= self.limit(p("length"), "length", len).is_some();
+            }
+            if let Some(t) = s.drive_time {
+                ok &= self.limit(p("drive_time"), "drive time", t).is_some();
+            }
+            if let Some(sv) = &s.service {
+                ok &= self.limit(ps("demand"), "demand", sv.demand).is_some();
+                ok &= self.limit(ps("cost"), "service cost", sv.cost).is_some();
+                if let Some(t) = sv.time {
+                    ok &= self.limit(ps("time"), "service time", t).is_some();
+                }
+            }
+            let (Some(from), Some(to), true) = (from, to, ok) else {
+                continue;
+            };
+            links.push(Link {
+                from,
+                to,
+                oneway: s.one_way,
+                cost: s.cost,
+                time: s.drive_time,
+                service: s.service.as_ref().map(|sv| ServiceSpec {
+                    demand: sv.demand,
+                    cost: sv.cost,
+                    time: sv.time,
+                    direction: match sv.directions {
+                        Directions::Either => ServeDirection::Either,
+                        Directions::Forward => ServeDirection::Forward,
+                    },
+                }),
+                name: s.name.clone(),
+                length: s.length,
+            });
+        }
+        links
+    }
+}
+
+type Lookup<'a> = dyn Fn(Vec<Seg>, u64) -> Result<usize> + 'a;
+type At<'a> = dyn Fn(Vec<Seg>, ParseProblem) -> Error + 'a;
+type Limit<'a> = dyn Fn(Vec<Seg>, &'static str, i64) -> Result<()> + 'a;
+
+/// A number that must be at most [`MAX_NUMBER`] and not negative.
+fn number(at: &At, limit: &Limit, path: Vec<Seg>, what: &'static str, v: i64) -> Result<()> {
+    limit(path.clone(), what, v)?;
+    if v < 0 {
+        return Err(at(path, ParseProblem::Negative { what, value: v }));
+    }
+    Ok(())
+}
+
+/// The fleet, depot and operations of a scenario: `yard` + `fleet` (the
+/// plain model) or `yards` / `truck_types`, plus dump sites and balance.
+fn fleet_and_operations(
+    rec: &FileRec,
+    lookup: &Lookup,
+    at: &At,
+    limit: &Limit,
+) -> Result<(Fleet, usize, Operations)> {
+    let key = |k: &'static str| vec![Seg::Key(k)];
+    let both = |k: &'static str, other: &'static str| {
+        at(key(k), ParseProblem::Conflict { given: k, other })
+    };
+    let mut yards = Vec::with_capacity(rec.yards.len());
+    for (i, y) in rec.yards.iter().enumerate() {
+        let p = vec![Seg::Key("yards"), Seg::Index(i), Seg::Key("junction")];
+        yards.push(Yard {
+            name: y.name.clone(),
+            junction: lookup(p, y.junction)?,
+        });
+    }
+    let depot = match (rec.yard, yards.first()) {
+        (Some(_), Some(_)) => return Err(both("yard", "yards")),
+        (Some(id), None) => lookup(key("yard"), id)?,
+        (None, Some(y)) => y.junction,
+        (None, None) => {
+            return Err(at(
+                Vec::new(),
+                ParseProblem::MissingKey {
+                    key: "yard (or yards)",
+                },
+            ))
+        }
+    };
+    let dump_sites = read_dump_sites(rec, lookup, at, limit)?;
+    let truck_types = read_truck_types(rec, at, limit)?;
+    let fleet = match (&rec.fleet, truck_types.is_empty()) {
+        (Some(_), false) => return Err(both("fleet", "truck_types")),
+        (None, true) => {
+            return Err(at(
+                Vec::new(),
+                ParseProblem::MissingKey {
+                    key: "fleet (or truck_types)",
+                },
+            ))
+        }
+        (Some(f), true) => {
+            limit(key_in("fleet", "capacity"), "capacity", f.capacity)?;
+            if let Some(t) = f.shift_limit {
+                number(at, limit, key_in("fleet", "shift_limit"), "shift limit", t)?;
+            }
+            Fleet {
+                capacity: f.capacity,
+                shift_limit: f.shift_limit,
+                max_vehicles: f.max_trucks,
+            }
+        }
+        // The plain model's view of a mixed fleet: the largest load limit,
+        // no shift limit, as many trucks as all types together.
+        (None, false) => Fleet {
+            capacity: truck_types.iter().map(|t| t.capacity).max().unwrap_or(1),
+            shift_limit: None,
+            max_vehicles: truck_types
+                .iter()
+                .map(|t| t.count)
+                .try_fold(0usize, |a, c| c.map(|c| a.saturating_add(c))),
+        },
+    };
+    let balance = match &rec.balance {
+        None => Balance::LeastCost,
+        Some(b) => {
+            let p = key_in("balance", "longest_shift_weight");
+            number(at, limit, p, "longest-shift weight", b.longest_shift_weight)?;
+            Balance::LongestShift {
+                weight: b.longest_shift_weight,
+            }
+        }
+    };
+    let ops = Operations {
+        dump_sites,
+        return_empty: rec.return_empty.unwrap_or(true),
+        yards,
+        truck_types,
+        balance,
+    };
+    Ok((fleet, depot, ops))
+}
+
+/// The `dump_sites` of a scenario.
+fn read_dump_sites(
+    rec: &FileRec,
+    lookup: &Lookup,
+    at: &At,
+    limit: &Limit,
+) -> Result<Vec<DumpSite>> {
+    let mut dump_sites = Vec::with_capacity(rec.dump_sites.len());
+    for (i, d) in rec.dump_sites.iter().enumerate() {
+        let p = |k: &'static str| vec![Seg::Key("dump_sites"), Seg::Index(i), Seg::Key(k)];
+        number(at, limit, p("unload_time"), "unload time", d.unload_time)?;
+        number(at, limit, p("unload_cost"), "unload cost", d.unload_cost)?;
+        let hours = match (d.opens, d.closes) {
+            (None, None) => None,
+            (o, c) => {
+                let opens = o.unwrap_or(0);
+                let closes = c.unwrap_or(MAX_NUMBER);
+                number(at, limit, p("opens"), "opening time", opens)?;
+                number(at, limit, p("closes"), "closing time", closes)?;
+                Some(Hours { opens, closes })
+            }
+        };
+        dump_sites.push(DumpSite {
+            name: d.name.clone(),
+            junction: lookup(p("junction"), d.junction)?,
+            unload_time: d.unload_time,
+            unload_cost: d.unload_cost,
+            hours,
+        });
+    }
+    Ok(dump_sites)
+}
+
+/// The `truck_types` of a scenario, their yards by index into `yards`.
+fn read_truck_types(rec: &FileRec, at: &At, limit: &Limit) -> Result<Vec<TruckType>> {
+    let mut truck_types = Vec::with_capacity(rec.truck_types.len());
+    for (i, t) in rec.truck_types.iter().enumerate() {
+        let p = |k: &'static str| vec![Seg::Key("truck_types"), Seg::Index(i), Seg::Key(k)];
+        limit(p("capacity"), "capacity", t.capacity)?;
+        if t.capacity <= 0 {
+            return Err(at(
+                p("capacity"),
+                ParseProblem::Model(ModelError::BadCapacity {
+                    capacity: t.capacity,
+                }),
+            ));
+        }
+        if let Some(v) = t.shift_limit {
+            number(at, limit, p("shift_limit"), "shift limit", v)?;
+        }
+        number(at, limit, p("fixed_cost"), "fixed cost", t.fixed_cost)?;
+        number(
+            at,
+            limit,
+            p("cost_per_mille"),
+            "cost factor",
+            t.cost_per_mille,
+        )?;
+        let yard = match (&t.yard, rec.yards.len()) {
+            (None, 0 | 1) => 0,
+            (None, _) => return Err(at(p("name"), ParseProblem::MissingKey { key: "yard" })),
+            (Some(name), _) => rec
+                .yards
+                .iter()
+                .position(|y| &y.name == name)
+                .ok_or_else(|| {
+                    at(
+                        p("yard"),
+                        ParseProblem::UnknownName {
+                            what: "yard",
+                            name: name.clone(),
+                        },
+                    )
+                })?,
+        };
+        truck_types.push(TruckType {
+            name: t.name.clone(),
+            count: t.count,
+            capacity: t.capacity,
+            shift_limit: t.shift_limit,
+            yard,
+            fixed_cost: t.fixed_cost,
+            cost_per_mille: t.cost_per_mille,
+            no_entry: t.no_entry.clone(),
+            no_service: t.no_service.clone(),
+        });
+    }
+    Ok(truck_types)
+}
+
+fn key_in(a: &'static str, b: &'static str) -> Vec<Seg> {
+    vec![Seg::Key(a), Seg::Key(b)]
+}
+
+/// Where in the file an error of the operations points.
+fn operations_error_path(
+    yards: &[YardRec],
+    types: &[TruckTypeRec],
+    e: &OperationsError,
+) -> Vec<Seg> {
+    let field = match e {
+        OperationsError::Negative { what, .. } => match *what {
+            "unload time" => Some("unload_time"),
+            "unload cost" => Some("unload_cost"),
+            "opening time" => Some("opens"),
+            "shift limit" => Some("shift_limit"),
+            "fixed cost" => Some("fixed_cost"),
+            "cost factor" => Some("cost_per_mille"),
+            _ => None,
+        },
+        OperationsError::BadHours { .. } => Some("closes"),
+        OperationsError::NoSuchStreet { list, .. } => Some(*list),
+        _ => None,
+    };
+    let mut p = match e.element() {
+        Some(Element::DumpSite(i)) => vec![Seg::Key("dump_sites"), Seg::Index(i)],
+        Some(Element::Street(i)) => vec![Seg::Key("streets"), Seg::Index(i)],
+        Some(Element::Yard(name)) => match yards.iter().position(|y| y.name == name) {
+            Some(i) => vec![Seg::Key("yards"), Seg::Index(i)],
+            None => vec![Seg::Key("yard")],
+        },
+        Some(Element::TruckType(name)) => match types.iter().position(|t| t.name == name) {
+            Some(i) => vec![Seg::Key("truck_types"), Seg::Index(i)],
+            None => vec![Seg::Key("fleet")],
+        },
+        None => Vec::new(),
+    };
+    if let (Some(f), false) = (field, p.is_empty()) {
+        p.push(Seg::Key(f));
+    }
+    p
 }
 
 /// The declared units, each checked ([`Units::valid_unit`]).
@@ -704,222 +1055,6 @@ fn read_system(
         SystemRec::Wgs84 => Coordinates::Wgs84,
         SystemRec::Planar => Coordinates::Planar { origin },
     })
-}
-
-type Lookup<'a> = dyn Fn(Vec<Seg>, u64) -> Result<usize> + 'a;
-type At<'a> = dyn Fn(Vec<Seg>, ParseProblem) -> Error + 'a;
-type Limit<'a> = dyn Fn(Vec<Seg>, &'static str, i64) -> Result<()> + 'a;
-
-/// A number that must be at most [`MAX_NUMBER`] and not negative.
-fn number(at: &At, limit: &Limit, path: Vec<Seg>, what: &'static str, v: i64) -> Result<()> {
-    limit(path.clone(), what, v)?;
-    if v < 0 {
-        return Err(at(path, ParseProblem::Negative { what, value: v }));
-    }
-    Ok(())
-}
-
-/// The fleet, depot and operations of a scenario: `yard` + `fleet` (the
-/// plain model) or `yards` / `truck_types`, plus dump sites and balance.
-fn fleet_and_operations(
-    rec: &FileRec,
-    lookup: &Lookup,
-    at: &At,
-    limit: &Limit,
-) -> Result<(Fleet, usize, Operations)> {
-    let key = |k: &'static str| vec![Seg::Key(k)];
-    let both = |k: &'static str, other: &'static str| {
-        at(key(k), ParseProblem::Conflict { given: k, other })
-    };
-    let mut yards = Vec::with_capacity(rec.yards.len());
-    for (i, y) in rec.yards.iter().enumerate() {
-        let p = vec![Seg::Key("yards"), Seg::Index(i), Seg::Key("junction")];
-        yards.push(Yard {
-            name: y.name.clone(),
-            junction: lookup(p, y.junction)?,
-        });
-    }
-    let depot = match (rec.yard, yards.first()) {
-        (Some(_), Some(_)) => return Err(both("yard", "yards")),
-        (Some(id), None) => lookup(key("yard"), id)?,
-        (None, Some(y)) => y.junction,
-        (None, None) => {
-            return Err(at(
-                Vec::new(),
-                ParseProblem::MissingKey {
-                    key: "yard (or yards)",
-                },
-            ))
-        }
-    };
-    let mut dump_sites = Vec::with_capacity(rec.dump_sites.len());
-    for (i, d) in rec.dump_sites.iter().enumerate() {
-        let p = |k: &'static str| vec![Seg::Key("dump_sites"), Seg::Index(i), Seg::Key(k)];
-        number(at, limit, p("unload_time"), "unload time", d.unload_time)?;
-        number(at, limit, p("unload_cost"), "unload cost", d.unload_cost)?;
-        let hours = match (d.opens, d.closes) {
-            (None, None) => None,
-            (o, c) => {
-                let opens = o.unwrap_or(0);
-                let closes = c.unwrap_or(MAX_NUMBER);
-                number(at, limit, p("opens"), "opening time", opens)?;
-                number(at, limit, p("closes"), "closing time", closes)?;
-                Some(Hours { opens, closes })
-            }
-        };
-        dump_sites.push(DumpSite {
-            name: d.name.clone(),
-            junction: lookup(p("junction"), d.junction)?,
-            unload_time: d.unload_time,
-            unload_cost: d.unload_cost,
-            hours,
-        });
-    }
-    let mut truck_types = Vec::with_capacity(rec.truck_types.len());
-    for (i, t) in rec.truck_types.iter().enumerate() {
-        let p = |k: &'static str| vec![Seg::Key("truck_types"), Seg::Index(i), Seg::Key(k)];
-        limit(p("capacity"), "capacity", t.capacity)?;
-        if t.capacity <= 0 {
-            return Err(at(
-                p("capacity"),
-                ParseProblem::Model(ModelError::BadCapacity {
-                    capacity: t.capacity,
-                }),
-            ));
-        }
-        if let Some(v) = t.shift_limit {
-            number(at, limit, p("shift_limit"), "shift limit", v)?;
-        }
-        number(at, limit, p("fixed_cost"), "fixed cost", t.fixed_cost)?;
-        number(
-            at,
-            limit,
-            p("cost_per_mille"),
-            "cost factor",
-            t.cost_per_mille,
-        )?;
-        let yard = match (&t.yard, rec.yards.len()) {
-            (None, 0 | 1) => 0,
-            (None, _) => return Err(at(p("name"), ParseProblem::MissingKey { key: "yard" })),
-            (Some(name), _) => rec
-                .yards
-                .iter()
-                .position(|y| &y.name == name)
-                .ok_or_else(|| {
-                    at(
-                        p("yard"),
-                        ParseProblem::UnknownName {
-                            what: "yard",
-                            name: name.clone(),
-                        },
-                    )
-                })?,
-        };
-        truck_types.push(TruckType {
-            name: t.name.clone(),
-            count: t.count,
-            capacity: t.capacity,
-            shift_limit: t.shift_limit,
-            yard,
-            fixed_cost: t.fixed_cost,
-            cost_per_mille: t.cost_per_mille,
-            no_entry: t.no_entry.clone(),
-            no_service: t.no_service.clone(),
-        });
-    }
-    let fleet = match (&rec.fleet, truck_types.is_empty()) {
-        (Some(_), false) => return Err(both("fleet", "truck_types")),
-        (None, true) => {
-            return Err(at(
-                Vec::new(),
-                ParseProblem::MissingKey {
-                    key: "fleet (or truck_types)",
-                },
-            ))
-        }
-        (Some(f), true) => {
-            limit(key_in("fleet", "capacity"), "capacity", f.capacity)?;
-            if let Some(t) = f.shift_limit {
-                number(at, limit, key_in("fleet", "shift_limit"), "shift limit", t)?;
-            }
-            Fleet {
-                capacity: f.capacity,
-                shift_limit: f.shift_limit,
-                max_vehicles: f.max_trucks,
-            }
-        }
-        // The plain model's view of a mixed fleet: the largest load limit,
-        // no shift limit, as many trucks as all types together.
-        (None, false) => Fleet {
-            capacity: truck_types.iter().map(|t| t.capacity).max().unwrap_or(1),
-            shift_limit: None,
-            max_vehicles: truck_types
-                .iter()
-                .map(|t| t.count)
-                .try_fold(0usize, |a, c| c.map(|c| a.saturating_add(c))),
-        },
-    };
-    let balance = match &rec.balance {
-        None => Balance::LeastCost,
-        Some(b) => {
-            let p = key_in("balance", "longest_shift_weight");
-            number(at, limit, p, "longest-shift weight", b.longest_shift_weight)?;
-            Balance::LongestShift {
-                weight: b.longest_shift_weight,
-            }
-        }
-    };
-    let ops = Operations {
-        dump_sites,
-        return_empty: rec.return_empty.unwrap_or(true),
-        yards,
-        truck_types,
-        balance,
-    };
-    Ok((fleet, depot, ops))
-}
-
-fn key_in(a: &'static str, b: &'static str) -> Vec<Seg> {
-    vec![Seg::Key(a), Seg::Key(b)]
-}
-
-/// Where in the file an error of the operations points.
-fn operations_error_path(
-    yards: &[YardRec],
-    types: &[TruckTypeRec],
-    e: &OperationsError,
-) -> Vec<Seg> {
-    let field = match e {
-        OperationsError::Negative { what, .. } => match *what {
-            "unload time" => Some("unload_time"),
-            "unload cost" => Some("unload_cost"),
-            "opening time" => Some("opens"),
-            "shift limit" => Some("shift_limit"),
-            "fixed cost" => Some("fixed_cost"),
-            "cost factor" => Some("cost_per_mille"),
-            _ => None,
-        },
-        OperationsError::BadHours { .. } => Some("closes"),
-        OperationsError::NoSuchStreet { list, .. } => Some(*list),
-        _ => None,
-    };
-    let mut p = match e.element() {
-        Some(Element::DumpSite(i)) => vec![Seg::Key("dump_sites"), Seg::Index(i)],
-        Some(Element::Street(i)) => vec![Seg::Key("streets"), Seg::Index(i)],
-        Some(Element::Yard(name)) => match yards.iter().position(|y| y.name == name) {
-            Some(i) => vec![Seg::Key("yards"), Seg::Index(i)],
-            None => vec![Seg::Key("yard")],
-        },
-        Some(Element::TruckType(name)) => match types.iter().position(|t| t.name == name) {
-            Some(i) => vec![Seg::Key("truck_types"), Seg::Index(i)],
-            None => vec![Seg::Key("fleet")],
-        },
-        None => Vec::new(),
-    };
-    if let (Some(f), false) = (field, p.is_empty()) {
-        p.push(Seg::Key(f));
-    }
-    p
 }
 
 /// Where in the file a model error points.
@@ -1018,34 +1153,9 @@ pub fn write_scenario(inst: &Instance) -> String {
                 junction: id(y.junction),
             })
             .collect(),
-        dump_sites: ops
-            .dump_sites
-            .iter()
-            .map(|d| DumpSiteRec {
-                name: d.name.clone(),
-                junction: id(d.junction),
-                unload_time: d.unload_time,
-                unload_cost: d.unload_cost,
-                opens: d.hours.map(|h| h.opens),
-                closes: d.hours.map(|h| h.closes),
-            })
-            .collect(),
+        dump_sites: dump_site_recs(inst),
         return_empty: (!ops.return_empty).then_some(false),
-        truck_types: ops
-            .truck_types
-            .iter()
-            .map(|t| TruckTypeRec {
-                name: t.name.clone(),
-                count: t.count,
-                capacity: t.capacity,
-                shift_limit: t.shift_limit,
-                yard: ops.yards.get(t.yard).map(|y| y.name.clone()),
-                fixed_cost: t.fixed_cost,
-                cost_per_mille: t.cost_per_mille,
-                no_entry: t.no_entry.clone(),
-                no_service: t.no_service.clone(),
-            })
-            .collect(),
+        truck_types: truck_type_recs(inst),
         balance: match ops.balance {
             Balance::LeastCost => None,
             Balance::LongestShift { weight } => Some(BalanceRec {
@@ -1058,6 +1168,42 @@ pub fn write_scenario(inst: &Instance) -> String {
     let mut s = serde_json::to_string_pretty(&rec).expect("scenario records always serialize");
     s.push('\n');
     s
+}
+
+/// The dump sites of `inst` as scenario records.
+fn dump_site_recs(inst: &Instance) -> Vec<DumpSiteRec> {
+    let ops = inst.operations();
+    let id = |j: usize| inst.network().junctions[j].id;
+    ops.dump_sites
+        .iter()
+        .map(|d| DumpSiteRec {
+            name: d.name.clone(),
+            junction: id(d.junction),
+            unload_time: d.unload_time,
+            unload_cost: d.unload_cost,
+            opens: d.hours.map(|h| h.opens),
+            closes: d.hours.map(|h| h.closes),
+        })
+        .collect()
+}
+
+/// The truck types of `inst` as scenario records (yards by name).
+fn truck_type_recs(inst: &Instance) -> Vec<TruckTypeRec> {
+    let ops = inst.operations();
+    ops.truck_types
+        .iter()
+        .map(|t| TruckTypeRec {
+            name: t.name.clone(),
+            count: t.count,
+            capacity: t.capacity,
+            shift_limit: t.shift_limit,
+            yard: ops.yards.get(t.yard).map(|y| y.name.clone()),
+            fixed_cost: t.fixed_cost,
+            cost_per_mille: t.cost_per_mille,
+            no_entry: t.no_entry.clone(),
+            no_service: t.no_service.clone(),
+        })
+        .collect()
 }
 
 fn units_rec(u: &Units) -> Option<UnitsRec> {

@@ -1,5 +1,3 @@
-use std::collections::VecDeque;
-
 use serde::{Deserialize, Serialize};
 
 use super::{
@@ -7,47 +5,98 @@ use super::{
     Units,
 };
 
-/// Why a network, fleet and depot do not make a valid instance.
+/// Why a network, fleet and yard do not make a valid instance.
+///
+/// Messages speak of streets, the yard and trucks, and name a street by its
+/// name and end junctions ([`Network::street_label`]); `link` fields are
+/// indices into [`Network::links`] (for a scenario file: `streets[link]`).
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum ModelError {
-    /// The depot index is not a junction.
-    #[error("depot {depot} is not a junction (the network has {junctions})")]
-    DepotOutOfRange { depot: usize, junctions: usize },
-    /// A link refers to a junction that does not exist.
-    #[error("link {link} refers to junction {junction}, but the network has {junctions}")]
+    /// The yard index is not a junction.
+    #[error("the yard (junction index {depot}) is not a junction: the network has {junctions}")]
+    DepotOutOfRange {
+        /// The yard index given.
+        depot: usize,
+        /// The number of junctions of the network.
+        junctions: usize,
+    },
+    /// A street refers to a junction that does not exist.
+    #[error("street {link} refers to junction index {junction}, but the network has {junctions} junctions")]
     LinkEndOutOfRange {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
         link: usize,
+        /// The junction index given.
         junction: usize,
+        /// The number of junctions of the network.
         junctions: usize,
     },
     /// A cost, time or demand is negative.
-    #[error("link {link}: {what} must not be negative, found {value}")]
+    #[error("{street}: {what} must not be negative, found {value}")]
     Negative {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
         link: usize,
+        /// The street as messages name it (`Network::street_label`).
+        street: String,
+        /// What the number is (cost, demand, ...).
         what: &'static str,
+        /// The value found.
         value: Cost,
     },
     /// The trucks' capacity is not positive.
-    #[error("vehicle capacity must be positive, found {capacity}")]
-    BadCapacity { capacity: Cost },
-    /// A single required link needs more than a whole truck.
-    #[error("link {link}: demand {demand} exceeds the vehicle capacity {capacity}")]
-    DemandExceedsCapacity {
-        link: usize,
-        demand: Cost,
+    #[error("the truck capacity must be positive, found {capacity}")]
+    BadCapacity {
+        /// The truck capacity.
         capacity: Cost,
     },
-    /// A required link cannot be served on a round trip from the depot.
-    #[error("link {link} is required but cannot be reached from the depot and back")]
-    Unreachable { link: usize },
-    /// The fleet allows zero vehicles but there is work to do.
-    #[error("the fleet allows no vehicle but there are {tasks} required links")]
-    NoVehicles { tasks: usize },
+    /// A single street to serve needs more than a whole truck.
+    #[error("{street}: demand {demand} exceeds the truck capacity {capacity}")]
+    DemandExceedsCapacity {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
+        link: usize,
+        /// The street as messages name it (`Network::street_label`).
+        street: String,
+        /// The demand of the street.
+        demand: Cost,
+        /// The truck capacity.
+        capacity: Cost,
+    },
+    /// A street to serve cannot be served on a round trip from the yard.
+    #[error("{street} is to be served, but {why}")]
+    Unreachable {
+        /// Index of the link (street) in `Network::links` (for a scenario: `streets[link]`).
+        link: usize,
+        /// The street as messages name it (`Network::street_label`).
+        street: String,
+        /// Why no round trip from the yard serves it.
+        why: Reach,
+    },
+    /// The fleet allows zero trucks but there is work to do.
+    #[error("the fleet allows no truck but there are {tasks} streets to serve")]
+    NoVehicles {
+        /// The number of streets to serve.
+        tasks: usize,
+    },
     /// Dump sites, yards or truck types that do not fit the network.
     #[error("{0}")]
     Operations(OperationsError),
 }
+
+/// Why a street to serve is out of reach of a round trip from the yard.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum Reach {
+    /// No way leads from the yard to its start (in any allowed direction).
+    #[error("no way leads to it from the yard")]
+    NotFromYard,
+    /// A truck can get to it, but no way leads from its end back to the
+    /// yard: it can be entered but not left (a one-way trap).
+    #[error("no way leads from it back to the yard (a truck could enter it but not leave)")]
+    NoWayBack,
+}
+
+/// Most problems a reader lists for one input (from [`Instance::validate`]
+/// and its own checks); the rest are counted, not listed.
+pub const MAX_PROBLEMS: usize = 20;
 
 impl ModelError {
     /// The link the error is about, if any (readers map it back to a source line).
@@ -56,7 +105,7 @@ impl ModelError {
             ModelError::LinkEndOutOfRange { link, .. }
             | ModelError::Negative { link, .. }
             | ModelError::DemandExceedsCapacity { link, .. }
-            | ModelError::Unreachable { link } => Some(link),
+            | ModelError::Unreachable { link, .. } => Some(link),
             _ => None,
         }
     }
@@ -141,73 +190,63 @@ impl Instance {
     /// let inst = Instance::new("triangle", net, Fleet::with_capacity(10), 0).unwrap();
     /// assert_eq!(inst.tasks().len(), 2);
     /// ```
+    ///
+    /// # Errors
+    /// The first [`ModelError`] that [`Instance::validate`] finds.
     pub fn new(
         name: impl Into<String>,
         network: Network,
         fleet: Fleet,
         depot: usize,
     ) -> Result<Instance, ModelError> {
+        Instance::validate(name, network, fleet, depot).map_err(|mut all| all.remove(0))
+    }
+
+    /// Validates and builds an instance, reporting every problem found (the
+    /// general ones first, then in link order) instead of stopping at the
+    /// first. Readers list up to [`MAX_PROBLEMS`] of them and count the rest.
+    ///
+    /// # Errors
+    /// A non-empty list of [`ModelError`]s: the yard or a street end is not a
+    /// junction, a negative number, a capacity that is not positive, a street
+    /// whose demand exceeds a truck, no truck for the work, or a street to
+    /// serve that no round trip from the yard can serve.
+    ///
+    /// # Complexity
+    /// `O(V + E)` for `V` junctions and `E` links.
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, ModelError, Network};
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(0, 1, -4, 2);
+    /// net.add_required_edge(1, 2, 5, 30);
+    /// let all = Instance::validate("faults", net, Fleet::with_capacity(10), 0).unwrap_err();
+    /// // Street 0: negative cost and service cost; street 1: 30 bins in trucks of 10.
+    /// assert_eq!(all.len(), 3);
+    /// assert!(matches!(all[2], ModelError::DemandExceedsCapacity { link: 1, .. }));
+    /// ```
+    pub fn validate(
+        name: impl Into<String>,
+        network: Network,
+        fleet: Fleet,
+        depot: usize,
+    ) -> Result<Instance, Vec<ModelError>> {
         let n = network.junctions.len();
+        let mut problems = Vec::new();
         if depot >= n {
-            return Err(ModelError::DepotOutOfRange {
+            problems.push(ModelError::DepotOutOfRange {
                 depot,
                 junctions: n,
             });
         }
         if fleet.capacity <= 0 {
-            return Err(ModelError::BadCapacity {
+            problems.push(ModelError::BadCapacity {
                 capacity: fleet.capacity,
             });
         }
-        let mut tasks = Vec::new();
-        for (i, l) in network.links.iter().enumerate() {
-            for j in [l.from, l.to] {
-                if j >= n {
-                    return Err(ModelError::LinkEndOutOfRange {
-                        link: i,
-                        junction: j,
-                        junctions: n,
-                    });
-                }
-            }
-            let neg = |what, value: Cost| {
-                if value < 0 {
-                    Err(ModelError::Negative {
-                        link: i,
-                        what,
-                        value,
-                    })
-                } else {
-                    Ok(())
-                }
-            };
-            neg("cost", l.cost)?;
-            neg("time", l.time.unwrap_or(0))?;
-            neg("length", l.length.unwrap_or(0))?;
-            if let Some(s) = &l.service {
-                neg("service cost", s.cost)?;
-                neg("service time", s.time.unwrap_or(0))?;
-                neg("demand", s.demand)?;
-                if s.demand > fleet.capacity {
-                    return Err(ModelError::DemandExceedsCapacity {
-                        link: i,
-                        demand: s.demand,
-                        capacity: fleet.capacity,
-                    });
-                }
-                tasks.push(Task {
-                    link: i,
-                    tail: l.from,
-                    head: l.to,
-                    demand: s.demand,
-                    cost: s.cost,
-                    time: s.time.unwrap_or(s.cost),
-                    either: s.direction == ServeDirection::Either && !l.oneway,
-                });
-            }
-        }
+        let tasks = check_links(&network, &fleet, &mut problems);
         if fleet.max_vehicles == Some(0) && !tasks.is_empty() {
-            return Err(ModelError::NoVehicles { tasks: tasks.len() });
+            problems.push(ModelError::NoVehicles { tasks: tasks.len() });
         }
         let inst = Instance {
             name: name.into(),
@@ -219,51 +258,73 @@ impl Instance {
             tasks,
             ops: Operations::default(),
         };
-        inst.check_reachable()?;
-        Ok(inst)
+        if problems.is_empty() {
+            inst.check_reachable(&mut problems);
+        }
+        if problems.is_empty() {
+            Ok(inst)
+        } else {
+            Err(problems)
+        }
     }
 
-    fn check_reachable(&self) -> Result<(), ModelError> {
+    /// Every task must be servable on a round trip from the yard: in some
+    /// allowed direction its start and end lie in the yard's strongly
+    /// connected component of the driving graph (the task's own link is an
+    /// arc of that graph, so this is the same as: the start can be reached
+    /// from the yard and the yard from the end). Strongly connected
+    /// components by Tarjan's algorithm (petgraph); the reason given tells
+    /// a street the yard cannot reach from one a truck cannot leave.
+    fn check_reachable(&self, problems: &mut Vec<ModelError>) {
+        use petgraph::graph::{DiGraph, NodeIndex};
         let n = self.network.junctions.len();
-        let mut out: Vec<Vec<usize>> = vec![Vec::new(); n];
-        let mut inn: Vec<Vec<usize>> = vec![Vec::new(); n];
+        let mut g: DiGraph<(), ()> = DiGraph::with_capacity(n, 2 * self.network.links.len());
+        for _ in 0..n {
+            g.add_node(());
+        }
         for l in &self.network.links {
-            out[l.from].push(l.to);
-            inn[l.to].push(l.from);
+            g.add_edge(NodeIndex::new(l.from), NodeIndex::new(l.to), ());
             if !l.oneway {
-                out[l.to].push(l.from);
-                inn[l.from].push(l.to);
+                g.add_edge(NodeIndex::new(l.to), NodeIndex::new(l.from), ());
             }
         }
-        let reach = |adj: &Vec<Vec<usize>>| {
-            let mut seen = vec![false; n];
-            let mut q = VecDeque::from([self.depot]);
-            seen[self.depot] = true;
-            while let Some(v) = q.pop_front() {
-                for &w in &adj[v] {
-                    if !seen[w] {
-                        seen[w] = true;
-                        q.push_back(w);
-                    }
+        let mut with_yard = vec![false; n];
+        for comp in petgraph::algo::tarjan_scc(&g) {
+            if comp.iter().any(|v| v.index() == self.depot) {
+                for v in comp {
+                    with_yard[v.index()] = true;
                 }
-            }
-            seen
-        };
-        let from_depot = reach(&out);
-        let to_depot = reach(&inn);
-        for t in &self.tasks {
-            let ok = [Dir::Forward, Dir::Backward]
-                .into_iter()
-                .filter(|&d| t.allows(d))
-                .any(|d| {
-                    let (s, e) = t.ends(d);
-                    from_depot[s] && to_depot[e]
-                });
-            if !ok {
-                return Err(ModelError::Unreachable { link: t.link });
+                break;
             }
         }
-        Ok(())
+        let mut from_yard = vec![false; n];
+        let mut dfs = petgraph::visit::Dfs::new(&g, NodeIndex::new(self.depot));
+        while let Some(v) = dfs.next(&g) {
+            from_yard[v.index()] = true;
+        }
+        for t in &self.tasks {
+            let dirs = || {
+                [Dir::Forward, Dir::Backward]
+                    .into_iter()
+                    .filter(|&d| t.allows(d))
+            };
+            if dirs().any(|d| {
+                let (s, e) = t.ends(d);
+                with_yard[s] && with_yard[e]
+            }) {
+                continue;
+            }
+            let entered = dirs().any(|d| from_yard[t.ends(d).0]);
+            problems.push(ModelError::Unreachable {
+                link: t.link,
+                street: self.network.street_label(t.link),
+                why: if entered {
+                    Reach::NoWayBack
+                } else {
+                    Reach::NotFromYard
+                },
+            });
+        }
     }
 
     /// The street network.
@@ -305,9 +366,9 @@ impl Instance {
     /// kept and revalidated too).
     ///
     /// # Errors
-    ///
-    /// A [`ModelError`] when the fleet does not fit the network; operations
-    /// that no longer fit give [`ModelError::Operations`].
+    /// The first [`ModelError`] with the new fleet (a capacity that is not positive, a street
+    /// heavier than a truck, no truck for the work); operations that no longer fit give
+    /// [`ModelError::Operations`].
     pub fn with_fleet(&self, fleet: Fleet) -> Result<Instance, ModelError> {
         let inst = Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)?;
         let inst = Instance {
@@ -390,4 +451,59 @@ impl Instance {
             ..self
         })
     }
+}
+
+/// Checks every link (ends, signs, demand against capacity) and derives the
+/// tasks of the valid required ones; problems go to `problems`.
+fn check_links(network: &Network, fleet: &Fleet, problems: &mut Vec<ModelError>) -> Vec<Task> {
+    let n = network.junctions.len();
+    let mut tasks = Vec::new();
+    for (i, l) in network.links.iter().enumerate() {
+        if let Some(&j) = [l.from, l.to].iter().find(|&&j| j >= n) {
+            problems.push(ModelError::LinkEndOutOfRange {
+                link: i,
+                junction: j,
+                junctions: n,
+            });
+            continue;
+        }
+        let before = problems.len();
+        let mut neg = |what, value: Cost| {
+            if value < 0 {
+                problems.push(ModelError::Negative {
+                    link: i,
+                    street: network.street_label(i),
+                    what,
+                    value,
+                });
+            }
+        };
+        neg("cost", l.cost);
+        neg("time", l.time.unwrap_or(0));
+        neg("length", l.length.unwrap_or(0));
+        let Some(s) = &l.service else { continue };
+        neg("service cost", s.cost);
+        neg("service time", s.time.unwrap_or(0));
+        neg("demand", s.demand);
+        if s.demand > fleet.capacity && fleet.capacity > 0 {
+            problems.push(ModelError::DemandExceedsCapacity {
+                link: i,
+                street: network.street_label(i),
+                demand: s.demand,
+                capacity: fleet.capacity,
+            });
+        }
+        if problems.len() == before {
+            tasks.push(Task {
+                link: i,
+                tail: l.from,
+                head: l.to,
+                demand: s.demand,
+                cost: s.cost,
+                time: s.time.unwrap_or(s.cost),
+                either: s.direction == ServeDirection::Either && !l.oneway,
+            });
+        }
+    }
+    tasks
 }

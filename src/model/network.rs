@@ -131,6 +131,21 @@ impl Network {
         })
     }
 
+    /// How messages name link `i`: by its street name when it has one, and
+    /// always by the numbers of its end junctions as the input file gives
+    /// them, e.g. `street "Elm Road" (junctions 4-7)` or `street 4-7`.
+    ///
+    /// # Panics
+    /// If `i` is not a link index or an end is not a junction.
+    pub fn street_label(&self, i: usize) -> String {
+        let l = &self.links[i];
+        let (a, b) = (self.junctions[l.from].id, self.junctions[l.to].id);
+        match &l.name {
+            Some(name) => format!("street {name:?} (junctions {a}-{b})"),
+            None => format!("street {a}-{b}"),
+        }
+    }
+
     /// Number of junctions.
     pub fn len(&self) -> usize {
         self.junctions.len()

@@ -128,7 +128,14 @@ impl Adjacency {
 pub enum DistanceError {
     /// A shortest path is too long for the compact 32-bit matrix.
     #[error("a shortest path from junction {from} to {to} costs {value}, more than the 32-bit matrix holds")]
-    Overflow { from: usize, to: usize, value: Cost },
+    Overflow {
+        /// Index of the start junction.
+        from: usize,
+        /// Index of the end junction.
+        to: usize,
+        /// The path's cost.
+        value: Cost,
+    },
 }
 
 /// One source's rows of the cost and (optional) time matrices.
@@ -146,6 +153,26 @@ pub struct Distances {
 
 impl Distances {
     /// Computes distances between the depot and all task ends of `inst`.
+    ///
+    /// # Errors
+    /// [`DistanceError::Overflow`] when a shortest path costs more than the 32-bit matrix holds
+    /// (`u32::MAX - 1`).
+    ///
+    /// # Complexity
+    /// One Dijkstra search `O((V + E) log V)` per key junction `K` (in
+    /// parallel), `4·K²` bytes (`8·K²` with times); see the module docs.
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// use arcwright::paths::Distances;
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(1, 2, 4, 1);
+    /// net.add_edge(0, 1, 3);
+    /// net.add_edge(0, 2, 9);
+    /// let inst = Instance::new("detour", net, Fleet::with_capacity(5), 0).unwrap();
+    /// let dist = Distances::new(&inst).unwrap();
+    /// assert_eq!(dist.cost(0, 2), 7); // 0 -> 1 -> 2 beats the direct 9
+    /// ```
     pub fn new(inst: &Instance) -> Result<Self, DistanceError> {
         let mut keys = vec![inst.depot()];
         for t in inst.tasks() {
@@ -157,6 +184,9 @@ impl Distances {
 
     /// Computes distances between arbitrary junctions of a network.
     /// Duplicates in `keys` are removed; `with_times` keeps a time matrix too.
+    ///
+    /// # Errors
+    /// [`DistanceError::Overflow`], as for [`Distances::new`].
     pub fn between(
         net: &Network,
         mut keys: Vec<usize>,
@@ -221,6 +251,19 @@ impl Distances {
             cost,
             time: with_times.then_some(time),
         })
+    }
+
+    /// Whether these distances can serve `inst`: its yard and every street
+    /// end are keys, the junction count matches and times are kept when the
+    /// instance has them.
+    pub(crate) fn serves(&self, inst: &Instance) -> bool {
+        self.key_of.len() == inst.network().len()
+            && (self.time.is_some() || !inst.has_times())
+            && self.key_index(inst.depot()).is_some()
+            && inst
+                .tasks()
+                .iter()
+                .all(|t| self.key_index(t.tail).is_some() && self.key_index(t.head).is_some())
     }
 
     /// The key junctions, sorted.

@@ -36,6 +36,9 @@ pub struct PostmanTour {
 
 /// Exact undirected Chinese postman tour from `start` with the default
 /// matching solver ([`DenseBlossom`]).
+///
+/// # Errors
+/// As [`undirected_postman_with`].
 pub fn undirected_postman(g: &Multigraph, start: usize) -> Result<PostmanTour, PostmanError> {
     undirected_postman_with(g, start, &DenseBlossom)
 }
@@ -108,7 +111,8 @@ fn finish(
 /// Exact undirected Chinese postman tour from `start`, with a chosen
 /// matching solver.
 ///
-/// Errors: [`PostmanError::Disconnected`] when the edges are not connected
+/// # Errors
+/// [`PostmanError::Disconnected`] when the edges are not connected
 /// (or `start` is not on them); range and cost errors from validation. A
 /// graph with no odd vertex gets its Euler tour; a graph without edges the
 /// empty tour.
@@ -153,6 +157,9 @@ pub(crate) fn paths_between(
 
 /// Exact directed Chinese postman tour from `start` (edges read as arcs
 /// `u -> v`), with the default transportation solver.
+///
+/// # Errors
+/// As [`directed_postman_with`].
 pub fn directed_postman(g: &Multigraph, start: usize) -> Result<PostmanTour, PostmanError> {
     directed_postman_with(g, start, &SuccessiveShortestPaths)
 }
@@ -160,7 +167,8 @@ pub fn directed_postman(g: &Multigraph, start: usize) -> Result<PostmanTour, Pos
 /// Exact directed Chinese postman tour from `start` with a chosen
 /// transportation solver.
 ///
-/// Errors: [`PostmanError::NotStronglyConnected`] when some arc end cannot
+/// # Errors
+/// [`PostmanError::NotStronglyConnected`] when some arc end cannot
 /// be reached from `start` or cannot reach it.
 pub fn directed_postman_with(
     g: &Multigraph,

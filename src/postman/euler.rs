@@ -67,7 +67,8 @@ fn check_start(g: &Multigraph, start: usize) -> Result<(), PostmanError> {
 /// An Euler tour (closed walk using every edge exactly once) from `start`,
 /// reading edges as undirected.
 ///
-/// Errors: [`PostmanError::OddDegree`] when some degree is odd,
+/// # Errors
+/// [`PostmanError::OddDegree`] when some degree is odd,
 /// [`PostmanError::Disconnected`] when the edges are not all connected to
 /// `start`. A graph without edges gives the empty tour.
 ///
@@ -95,6 +96,11 @@ pub fn euler_tour(g: &Multigraph, start: usize) -> Result<Vec<Traversal>, Postma
 
 /// An open Euler trail from `start` when exactly two vertices (one of them
 /// `start`) have odd degree, or a closed tour when all degrees are even.
+///
+/// # Errors
+/// [`PostmanError::OddDegree`] unless exactly `start` and one other vertex have odd degree (or
+/// none), [`PostmanError::Disconnected`] when the edges are not all connected to `start`,
+/// [`PostmanError::StartOutOfRange`].
 pub fn euler_trail(g: &Multigraph, start: usize) -> Result<Vec<Traversal>, PostmanError> {
     check_start(g, start)?;
     let odd = g.odd_vertices();
@@ -109,7 +115,8 @@ pub fn euler_trail(g: &Multigraph, start: usize) -> Result<Vec<Traversal>, Postm
 
 /// A directed Euler tour from `start` (edges read as arcs `u -> v`).
 ///
-/// Errors: [`PostmanError::Unbalanced`] when some in-degree differs from the
+/// # Errors
+/// [`PostmanError::Unbalanced`] when some in-degree differs from the
 /// out-degree, [`PostmanError::Disconnected`] when some arc cannot be reached
 /// from `start`.
 pub fn euler_tour_directed(g: &Multigraph, start: usize) -> Result<Vec<Traversal>, PostmanError> {
@@ -178,6 +185,10 @@ fn walk(g: &Multigraph, start: usize, directed: bool) -> Result<Vec<Traversal>, 
 /// every edge of `g` exactly once, and drives each edge between its ends
 /// (along its direction when `directed`). Returns a description of the first
 /// problem found.
+///
+/// # Errors
+/// A message saying which step does not follow the graph, which edge is used twice or not at
+/// all, or where the walk ends.
 pub fn check_tour(
     g: &Multigraph,
     tour: &[Traversal],

@@ -27,6 +27,10 @@ pub trait Transport {
     /// Ships every unit of `supply` to `demand` (equal totals) at least total
     /// cost; `cost(i, j)` is the unit cost from supply `i` to demand `j`, or
     /// `None` when `i` cannot ship to `j`. Costs must be non-negative.
+    ///
+    /// # Errors
+    /// [`PostmanError::Solver`] when supplies and demands do not balance, an arc refers to a
+    /// missing node, or the demands cannot be met.
     fn min_cost_transport(
         &self,
         supply: &[Cost],

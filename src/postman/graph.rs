@@ -86,6 +86,10 @@ impl Multigraph {
     }
 
     /// Checks vertex ranges and costs.
+    ///
+    /// # Errors
+    /// [`PostmanError::VertexOutOfRange`], [`PostmanError::NegativeCost`] or
+    /// [`PostmanError::CostTooLarge`] for the first bad edge.
     pub fn validate(&self) -> Result<(), PostmanError> {
         for (i, e) in self.edges.iter().enumerate() {
             for x in [e.u, e.v] {

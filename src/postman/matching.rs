@@ -14,6 +14,10 @@ pub trait PerfectMatching {
     /// Pairs `0..n` (`n` even) so that the sum of `cost(i, mate[i])` over the
     /// pairs is least. `cost` must be symmetric and non-negative; only
     /// `cost(i, j)` with `i < j` is read. Returns `mate` (`mate[mate[i]] == i`).
+    ///
+    /// # Errors
+    /// [`PostmanError::Solver`] for an odd number of vertices or a negative cost,
+    /// [`PostmanError::CostTooLarge`] for a cost beyond [`crate::postman::COST_LIMIT`].
     fn min_cost_perfect_matching(
         &self,
         n: usize,

@@ -45,36 +45,72 @@ use crate::model::Cost;
 pub enum PostmanError {
     /// The edges do not form one connected piece (or the start vertex is not on it).
     #[error("the links are not connected: vertex {vertex} cannot be reached from vertex {start}")]
-    Disconnected { start: usize, vertex: usize },
+    Disconnected {
+        /// The start vertex.
+        start: usize,
+        /// The vertex as the problem names it.
+        vertex: usize,
+    },
     /// Directed: some vertex cannot be reached, or cannot reach back.
     #[error("the arcs are not strongly connected: vertex {vertex} and vertex {start} are not mutually reachable")]
-    NotStronglyConnected { start: usize, vertex: usize },
+    NotStronglyConnected {
+        /// The start vertex.
+        start: usize,
+        /// The vertex as the problem names it.
+        vertex: usize,
+    },
     /// Undirected Euler tour asked for, but some vertices have odd degree.
     #[error("not Eulerian: {odd} vertices have odd degree (first: {first})")]
-    OddDegree { odd: usize, first: usize },
+    OddDegree {
+        /// The number of odd-degree vertices.
+        odd: usize,
+        /// The first odd-degree vertex.
+        first: usize,
+    },
     /// Directed Euler tour asked for, but some vertex has in-degree != out-degree.
     #[error("not Eulerian: vertex {vertex} has in-degree {indeg} and out-degree {outdeg}")]
     Unbalanced {
+        /// The vertex as the problem names it.
         vertex: usize,
+        /// Its in-degree.
         indeg: usize,
+        /// Its out-degree.
         outdeg: usize,
     },
     /// A vertex or edge end is out of range.
     #[error("edge {edge} refers to vertex {vertex}, but the graph has {n}")]
     VertexOutOfRange {
+        /// The edge index.
         edge: usize,
+        /// The vertex as the problem names it.
         vertex: usize,
+        /// The number of vertices.
         n: usize,
     },
     /// The start vertex is out of range.
     #[error("start vertex {start} is out of range (the graph has {n})")]
-    StartOutOfRange { start: usize, n: usize },
+    StartOutOfRange {
+        /// The start vertex.
+        start: usize,
+        /// The number of vertices.
+        n: usize,
+    },
     /// An edge cost is negative.
     #[error("edge {edge} has negative cost {cost}")]
-    NegativeCost { edge: usize, cost: Cost },
+    NegativeCost {
+        /// The edge index.
+        edge: usize,
+        /// The cost found.
+        cost: Cost,
+    },
     /// Costs too large for exact arithmetic in the sub-solvers.
     #[error("a cost of {value} is too large for the exact sub-solvers (limit {limit})")]
-    CostTooLarge { value: Cost, limit: Cost },
+    CostTooLarge {
+        /// The value found.
+        value: Cost,
+        /// The limit.
+        limit: Cost,
+    },
     /// The instance has features this method does not handle.
     #[error("unsupported: {0}")]
     Unsupported(&'static str),

@@ -158,11 +158,18 @@ pub struct RuralTour {
 /// let t = rural_tour(&inst).unwrap();
 /// assert_eq!(t.cost, 5 + 3 + 3 + 5); // out, serve, back over 2-1, home
 /// ```
+///
+/// # Errors
+/// As [`rural_tour_with`].
 pub fn rural_tour(inst: &Instance) -> Result<RuralTour, PostmanError> {
     rural_tour_with(inst, &DenseBlossom)
 }
 
 /// A rural postman tour from the depot with a chosen matching solver.
+///
+/// # Errors
+/// [`PostmanError::Unsupported`] unless all links are two-way, without explicit times, and the
+/// fleet is one truck without limits; errors of the matching solver.
 pub fn rural_tour_with(
     inst: &Instance,
     matcher: &dyn PerfectMatching,
@@ -260,6 +267,9 @@ pub fn rural_tour_with(
 /// [`crate::bounds::depot_cut_bound`] (each cut around the depot with work
 /// beyond it is crossed at least twice). Valid for mixed networks too (all
 /// three work on the undirected relaxation).
+///
+/// # Errors
+/// As [`rural_tour_with`].
 pub fn rural_lower_bound(inst: &Instance) -> Result<Cost, PostmanError> {
     let m = crate::bounds::odd_matching_bound(inst, &DenseBlossom)?;
     Ok(m.max(crate::bounds::connection_bound(inst))

@@ -12,8 +12,8 @@ pub fn order_crossover<R: Rng>(p1: &[usize], p2: &[usize], rng: &mut R) -> Vec<u
     if n < 2 {
         return p1.to_vec();
     }
-    let mut i = rng.gen_range(0..n);
-    let mut j = rng.gen_range(0..n);
+    let mut i = rng.random_range(0..n);
+    let mut j = rng.random_range(0..n);
     if i > j {
         std::mem::swap(&mut i, &mut j);
     }

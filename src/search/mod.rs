@@ -1,11 +1,12 @@
-//! The metaheuristic search and the solver entry point.
+//! The metaheuristic search and the solver entry point, [`Solver`]
+//! (re-exported at the crate root).
 //!
-//! - [`solver`]: [`Solver`], the one entry point (re-exported at the crate root);
-//! - [`population`]: individuals, broken-pairs distance, biased fitness;
-//! - [`crossover`]: order crossover on giant tours.
+//! Inside (crate-private): `solver` (the islands and their epochs),
+//! `population` (individuals, broken-pairs distance, biased fitness) and
+//! `crossover` (order crossover on giant tours).
 
-pub mod crossover;
-pub mod population;
-pub mod solver;
+mod crossover;
+mod population;
+mod solver;
 
 pub use solver::{Progress, Solution, SolveError, Solver, Stats};

@@ -125,11 +125,6 @@ impl Population {
         self.members.len()
     }
 
-    /// True when empty.
-    pub fn is_empty(&self) -> bool {
-        self.members.is_empty()
-    }
-
     /// Removes everyone.
     pub fn clear(&mut self) {
         self.members.clear();
@@ -226,17 +221,12 @@ impl Population {
     /// Binary tournament on biased fitness.
     pub fn select<R: Rng>(&mut self, rng: &mut R) -> &Individual {
         let n = self.members.len();
-        let a = rng.gen_range(0..n);
-        let b = rng.gen_range(0..n);
+        let a = rng.random_range(0..n);
+        let b = rng.random_range(0..n);
         if self.members[a].biased <= self.members[b].biased {
             &self.members[a]
         } else {
             &self.members[b]
         }
-    }
-
-    /// The cheapest member.
-    pub fn best(&self) -> Option<&Individual> {
-        self.members.iter().min_by_key(|m| (m.cost, m.id))
     }
 }

@@ -30,7 +30,6 @@
 //! assert!(sol.cost >= sol.lower_bound.value);
 //! ```
 
-use std::fmt;
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
@@ -40,7 +39,7 @@ use rand_chacha::ChaCha12Rng;
 use rayon::prelude::*;
 
 use crate::bounds::{bound, LowerBound};
-use crate::construct::arcs::{ArcMatrix, BIG};
+use crate::construct::arcs::{ArcMatrix, BIG, MAX_LEG};
 use crate::construct::giant;
 use crate::construct::path_scanning::{path_scan, Rule, RULES};
 use crate::construct::split::{split, SplitFailure};
@@ -96,17 +95,36 @@ pub struct Solution {
 }
 
 /// Why no plan was produced.
-#[derive(Clone, Debug, PartialEq, Eq)]
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum SolveError {
     /// The shortest paths could not be computed or stored.
-    Distances(DistanceError),
+    #[error("shortest paths: {0}")]
+    Distances(#[from] DistanceError),
+    /// Distances given with [`Solver::distances`] were not built for this instance.
+    #[error("the distances given to the solver were not built for scenario {instance:?} (they lack its yard, a street end or the driving times)")]
+    DistancesMismatch {
+        /// The instance's name.
+        instance: String,
+    },
     /// A deadhead is too long for the solver's 32-bit arc matrix.
+    #[error("a deadhead costs {value}, more than the solver's limit of {limit} per leg")]
     MatrixOverflow {
         /// The offending value.
         value: Cost,
+        /// The largest deadhead the solver stores.
+        limit: Cost,
+    },
+    /// Costs or times so large that a route could exceed the solver's limit.
+    #[error("a route could cost or take up to {bound} (all service plus one longest deadhead per leg), more than the solver's limit of {limit}; use smaller units")]
+    RouteTooLong {
+        /// The upper bound on a route's cost or time.
+        bound: Cost,
+        /// The limit (`2^40`).
+        limit: Cost,
     },
     /// The total demand needs more trucks than the fleet bound allows.
+    #[error("the fleet is too small: the total demand needs at least {needed_at_least} trucks, but at most {max_vehicles} may be used")]
     FleetTooSmall {
         /// `ceil(total demand / capacity)`.
         needed_at_least: usize,
@@ -114,6 +132,7 @@ pub enum SolveError {
         max_vehicles: usize,
     },
     /// No plan within the fleet bound was found (none may exist).
+    #[error("no plan with at most {max_vehicles} trucks was found (the fewest found uses {fewest_found})")]
     NoPlanWithinFleet {
         /// The fleet bound.
         max_vehicles: usize,
@@ -123,54 +142,18 @@ pub enum SolveError {
     /// The instance has dump sites, several yards, truck types or a balance
     /// setting ([`crate::model::Operations`]), which this solver does not
     /// know: use [`crate::fleet::FleetSolver`].
+    #[error("the scenario has dump sites, several yards, truck types or balancing: plan it with the fleet solver")]
     NeedsFleetSolver,
     /// A task cannot be served on a route of its own within capacity and shift.
+    #[error(
+        "{street} cannot be served even on a route of its own within the capacity and shift limit"
+    )]
     TaskAlone {
-        /// The link of the task.
+        /// The link of the task (index in the network's links).
         link: usize,
+        /// The street, as [`crate::model::Network::street_label`] names it.
+        street: String,
     },
-}
-
-impl fmt::Display for SolveError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            SolveError::Distances(e) => write!(f, "shortest paths: {e}"),
-            SolveError::MatrixOverflow { value } => write!(
-                f,
-                "a deadhead costs {value}, too much for the solver's 32-bit arc matrix"
-            ),
-            SolveError::FleetTooSmall {
-                needed_at_least,
-                max_vehicles,
-            } => write!(
-                f,
-                "the fleet is too small: the total demand needs at least {needed_at_least} trucks, but at most {max_vehicles} may be used"
-            ),
-            SolveError::NoPlanWithinFleet {
-                max_vehicles,
-                fewest_found,
-            } => write!(
-                f,
-                "no plan with at most {max_vehicles} trucks was found (the fewest found uses {fewest_found})"
-            ),
-            SolveError::NeedsFleetSolver => write!(
-                f,
-                "the scenario has dump sites, several yards, truck types or balancing: plan it with the fleet solver"
-            ),
-            SolveError::TaskAlone { link } => write!(
-                f,
-                "link {link} cannot be served even on a route of its own within the capacity and shift limit"
-            ),
-        }
-    }
-}
-
-impl std::error::Error for SolveError {}
-
-impl From<DistanceError> for SolveError {
-    fn from(e: DistanceError) -> Self {
-        SolveError::Distances(e)
-    }
 }
 
 type ProgressFn<'a> = Box<dyn Fn(&Progress) + Send + Sync + 'a>;
@@ -178,6 +161,7 @@ type ProgressFn<'a> = Box<dyn Fn(&Progress) + Send + Sync + 'a>;
 /// The fleet solver (builder style).
 pub struct Solver<'a> {
     inst: &'a Instance,
+    dist: Option<&'a Distances>,
     seed: u64,
     workers: usize,
     time_limit: Option<Duration>,
@@ -194,6 +178,7 @@ impl<'a> Solver<'a> {
     pub fn new(inst: &'a Instance) -> Self {
         Solver {
             inst,
+            dist: None,
             seed: 1,
             workers: 1,
             time_limit: None,
@@ -203,6 +188,30 @@ impl<'a> Solver<'a> {
             stop: None,
             epoch: 500,
         }
+    }
+
+    /// Uses shortest paths the caller already has (built with
+    /// [`Distances::new`] for this same instance) instead of computing them
+    /// again. [`Solver::solve`] checks that they cover the instance's yard and
+    /// street ends (and times, when the instance has them) and otherwise
+    /// returns [`SolveError::DistancesMismatch`].
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// use arcwright::paths::Distances;
+    /// use arcwright::Solver;
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(0, 1, 4, 2);
+    /// net.add_required_edge(1, 2, 5, 3);
+    /// net.add_edge(2, 0, 7);
+    /// let inst = Instance::new("triangle", net, Fleet::with_capacity(10), 0).unwrap();
+    /// let dist = Distances::new(&inst).unwrap();
+    /// let sol = Solver::new(&inst).distances(&dist).max_iterations(50).solve().unwrap();
+    /// assert_eq!(sol.cost, 16);
+    /// ```
+    pub fn distances(mut self, dist: &'a Distances) -> Self {
+        self.dist = Some(dist);
+        self
     }
 
     /// Random seed (default 1).
@@ -255,16 +264,53 @@ impl<'a> Solver<'a> {
     }
 
     /// Runs the search.
+    ///
+    /// # Errors
+    /// [`SolveError`] when no plan can be made: the shortest paths or the
+    /// solver's matrices cannot hold the instance's numbers, a street cannot
+    /// be served on a route of its own, or the fleet bound is too small.
+    ///
+    /// # Complexity
+    /// Shortest paths `O(K (V + E) log V)` for `K` key junctions (skipped
+    /// with [`Solver::distances`]), arc matrices `O(n^2)` for `n` required
+    /// streets (`O(K^2)` memory above 2,048 streets), then the limits set:
+    /// each offspring costs one split `O(n^2)` at worst and local-search
+    /// passes of `O(n k)` move evaluations (`k` = 8 neighbours).
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// use arcwright::{check::check_plan, SolveError, Solver};
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(0, 1, 4, 6);
+    /// net.add_required_edge(1, 2, 5, 6);
+    /// net.add_edge(2, 0, 7);
+    /// let inst = Instance::new("triangle", net, Fleet::with_capacity(10), 0).unwrap();
+    /// let sol = Solver::new(&inst).seed(7).max_iterations(100).solve().unwrap();
+    /// assert!(check_plan(&inst, &sol.plan).is_ok());
+    /// assert_eq!(sol.plan.routes.len(), 2); // 12 bins, trucks of 10
+    /// assert!(sol.cost >= sol.lower_bound.value);
+    /// ```
     pub fn solve(self) -> Result<Solution, SolveError> {
         let start = Instant::now();
         let inst = self.inst;
         if !inst.operations().is_plain(inst) {
             return Err(SolveError::NeedsFleetSolver);
         }
-        let dist = Distances::new(inst)?;
-        let lb = bound(inst, &dist);
-        let m = ArcMatrix::new(inst, &dist)
-            .map_err(|e| SolveError::MatrixOverflow { value: e.value })?;
+        let owned;
+        let dist = match self.dist {
+            Some(d) if d.serves(inst) => d,
+            Some(_) => {
+                return Err(SolveError::DistancesMismatch {
+                    instance: inst.name.clone(),
+                })
+            }
+            None => {
+                owned = Distances::new(inst)?;
+                &owned
+            }
+        };
+        let lb = bound(inst, dist);
+        let m = prepare(inst, dist)?;
         let stats0 = |iterations, ttb| Stats {
             iterations,
             elapsed: start.elapsed(),
@@ -279,37 +325,35 @@ impl<'a> Solver<'a> {
             };
             return Ok(self.finish(plan, lb, stats0(0, Duration::ZERO)));
         }
-        for t in 0..m.n {
-            let ok = [2 * t as u32, 2 * t as u32 + 1]
-                .iter()
-                .any(|&a| m.allowed[a as usize] && m.route_feasible(&[a]));
-            if !ok {
-                return Err(SolveError::TaskAlone {
-                    link: inst.tasks()[t].link,
-                });
-            }
-        }
-        if let Some(k) = m.max_routes {
-            let total = inst.total_demand();
-            let needed = ((total + m.capacity - 1) / m.capacity) as usize;
-            if needed > k {
-                return Err(SolveError::FleetTooSmall {
-                    needed_at_least: needed,
-                    max_vehicles: k,
-                });
-            }
-        }
         let neigh = neighbour_lists(&m, DEFAULT_NEIGHBOURS);
-        let deadline = self.time_limit.map(|t| start + t);
-        let stop_at = self.target.unwrap_or(Cost::MIN).max(lb.value);
         let ctx = Ctx {
             m: &m,
             neigh: &neigh,
-            deadline,
+            deadline: self.time_limit.map(|t| start + t),
             stop: self.stop.clone(),
-            stop_at,
+            stop_at: self.target.unwrap_or(Cost::MIN).max(lb.value),
             start,
         };
+        let (cost, routes, found_at, iterations) = self.evolve(&ctx, lb.value)?;
+        let visits: Vec<Vec<crate::plan::Visit>> = routes
+            .iter()
+            .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
+            .collect();
+        let plan = Plan::from_visits(inst, dist, visits);
+        debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
+        debug_assert!(
+            crate::check::check_plan(inst, &plan).is_ok(),
+            "the solver's plan fails the checker: {:?}",
+            crate::check::check_plan(inst, &plan)
+        );
+        Ok(self.finish(plan, lb, stats0(iterations, found_at)))
+    }
+
+    /// The islands' search: initial populations, then epochs until a limit,
+    /// the target or the stop flag. Returns the best cost, its routes (task
+    /// arcs), when it was found and the number of offspring.
+    fn evolve(&self, ctx: &Ctx<'_>, lower_bound: Cost) -> Result<Best, SolveError> {
+        let m = ctx.m;
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(self.workers)
             .build()
@@ -318,10 +362,10 @@ impl<'a> Solver<'a> {
             .map(|k| {
                 let mut rng = ChaCha12Rng::seed_from_u64(self.seed);
                 rng.set_stream(k as u64 + 1);
-                Island::new(rng, &m)
+                Island::new(rng, m)
             })
             .collect();
-        pool.install(|| islands.par_iter_mut().for_each(|isl| isl.init(&ctx)));
+        pool.install(|| islands.par_iter_mut().for_each(|isl| isl.init(ctx)));
         let mut best: Option<(i64, Vec<Vec<u32>>, Duration)> = None;
         let mut fewest = usize::MAX;
         for isl in &islands {
@@ -350,8 +394,8 @@ impl<'a> Solver<'a> {
             if let Some(f) = &self.progress {
                 f(&Progress {
                     best_cost: best.0,
-                    lower_bound: lb.value,
-                    elapsed: start.elapsed(),
+                    lower_bound,
+                    elapsed: ctx.start.elapsed(),
                     iteration: iterations,
                 });
             }
@@ -361,14 +405,11 @@ impl<'a> Solver<'a> {
         // whose population cannot hold two distinct plans, as on a tiny
         // instance, makes none); without this guard the loop never ended.
         let mut idle = 0;
-        loop {
-            if best.0 <= stop_at
-                || ctx.should_stop()
-                || budget.iter().all(|&b| b == 0)
-                || idle >= IDLE_EPOCHS
-            {
-                break;
-            }
+        while best.0 > ctx.stop_at
+            && !ctx.should_stop()
+            && budget.iter().any(|&b| b > 0)
+            && idle < IDLE_EPOCHS
+        {
             let left = budget.clone();
             let epoch = self.epoch;
             pool.install(|| {
@@ -377,12 +418,11 @@ impl<'a> Solver<'a> {
                     .zip(budget.par_iter_mut())
                     .for_each(|(isl, b)| {
                         let n = epoch.min(*b);
-                        let done = isl.run(&ctx, n);
+                        let done = isl.run(ctx, n);
                         *b -= done;
                     })
             });
             idle = if budget == left { idle + 1 } else { 0 };
-            let mut improved = false;
             iterations = islands.iter().map(|i| i.iterations).sum();
             // Deterministic exchange: the best of all islands (lowest index on ties).
             let mut bi = usize::MAX;
@@ -398,28 +438,15 @@ impl<'a> Solver<'a> {
             if bi != usize::MAX {
                 let b = islands[bi].best.as_ref().expect("best");
                 best = (b.cost, b.routes.clone(), islands[bi].best_time);
-                improved = true;
             }
             for isl in islands.iter_mut() {
                 isl.receive(&best.1, best.0);
             }
-            if improved {
+            if bi != usize::MAX {
                 report(&best, iterations);
             }
         }
-        let visits: Vec<Vec<crate::plan::Visit>> = best
-            .1
-            .iter()
-            .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
-            .collect();
-        let plan = Plan::from_visits(inst, &dist, visits);
-        debug_assert_eq!(plan.cost, best.0, "matrix and plan costs disagree");
-        debug_assert!(
-            crate::check::check_plan(inst, &plan).is_ok(),
-            "the solver's plan fails the checker: {:?}",
-            crate::check::check_plan(inst, &plan)
-        );
-        Ok(self.finish(plan, lb, stats0(iterations, best.2)))
+        Ok((best.0, best.1, best.2, iterations))
     }
 
     fn finish(&self, plan: Plan, lb: LowerBound, stats: Stats) -> Solution {
@@ -436,6 +463,54 @@ impl<'a> Solver<'a> {
             stats,
         }
     }
+}
+
+/// Best cost, its routes (task arcs), when it was found, offspring made.
+type Best = (i64, Vec<Vec<u32>>, Duration, u64);
+
+/// The arc matrices, after the checks that make the search sound: entries
+/// fit, no route can reach [`BIG`], every street fits a route of its own and
+/// the fleet bound can carry the total demand.
+fn prepare(inst: &Instance, dist: &Distances) -> Result<ArcMatrix, SolveError> {
+    let m = ArcMatrix::new(inst, dist).map_err(|e| SolveError::MatrixOverflow {
+        value: e.value,
+        limit: MAX_LEG,
+    })?;
+    // A route serves each street at most once and drives at most one
+    // deadhead leg (each at most the longest) before each service and home.
+    let (longest_d, longest_t) = m.longest_legs();
+    let legs = m.n as i128 + 1;
+    let service: i128 = inst.tasks().iter().map(|t| t.cost as i128).sum();
+    let service_t: i128 = inst.tasks().iter().map(|t| t.time as i128).sum();
+    let bound = (service + legs * longest_d as i128).max(service_t + legs * longest_t as i128);
+    if bound >= BIG as i128 {
+        return Err(SolveError::RouteTooLong {
+            bound: bound.min(Cost::MAX as i128) as Cost,
+            limit: BIG,
+        });
+    }
+    for t in 0..m.n {
+        let ok = [2 * t as u32, 2 * t as u32 + 1]
+            .iter()
+            .any(|&a| m.allowed[a as usize] && m.route_feasible(&[a]));
+        if !ok {
+            let link = inst.tasks()[t].link;
+            return Err(SolveError::TaskAlone {
+                link,
+                street: inst.network().street_label(link),
+            });
+        }
+    }
+    if let Some(k) = m.max_routes {
+        let needed = ((inst.total_demand() + m.capacity - 1) / m.capacity) as usize;
+        if needed > k {
+            return Err(SolveError::FleetTooSmall {
+                needed_at_least: needed,
+                max_vehicles: k,
+            });
+        }
+    }
+    Ok(m)
 }
 
 struct Ctx<'c> {
@@ -485,7 +560,7 @@ impl Island {
         for a in (0..m.arcs as u32).step_by(7) {
             for b in (0..m.arcs as u32).step_by(5) {
                 let d = m.d(a, b);
-                if d < BIG as i64 {
+                if d < BIG {
                     max_d = max_d.max(d);
                 }
             }
@@ -521,29 +596,31 @@ impl Island {
         self.fewest = self.fewest.min(s.routes.len());
         let scaled = |w: f64| ((w * SCALE as f64).round() as i64).max(1);
         ls.set_penalties(scaled(self.pen_load), scaled(self.pen_time));
-        let (mut routes, mut cost, mut ok) = ls.run(&s.routes, &mut self.rng);
-        self.feasible_window.0 += u64::from(ok);
+        let mut found = ls.run(&s.routes, &mut self.rng);
+        self.feasible_window.0 += u64::from(found.feasible);
         self.feasible_window.1 += 1;
         let mut factor = 10.0;
-        while !ok && factor <= 10000.0 {
+        while !found.feasible && factor <= 10000.0 {
             ls.set_penalties(
                 scaled(self.pen_load * factor),
                 scaled(self.pen_time * factor),
             );
-            (routes, cost, ok) = ls.run(&routes, &mut self.rng);
+            found = ls.run(&found.routes, &mut self.rng);
             factor *= 10.0;
         }
-        if !ok {
+        if !found.feasible {
             return None;
         }
-        if self.rng.gen_bool(MS_RATE) {
-            let gain = merge_split(ctx.m, ctx.neigh, &mut routes, 3, &mut self.rng);
+        if self.rng.random_bool(MS_RATE) {
+            let gain = merge_split(ctx.m, ctx.neigh, &mut found.routes, 3, &mut self.rng);
             if gain > 0 {
                 ls.set_penalties(0, 0);
-                (routes, cost, _) = ls.run(&routes, &mut self.rng);
+                let again = ls.run(&found.routes, &mut self.rng);
+                found.routes = again.routes;
+                found.cost = again.cost;
             }
         }
-        Some(Individual::new(ctx.m.n, routes, cost))
+        Some(Individual::new(ctx.m.n, found.routes, found.cost))
     }
 
     /// Adapts the penalty weights towards the target share of feasible
