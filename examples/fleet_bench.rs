@@ -119,6 +119,8 @@ fn demo_with_landfill(root: &std::path::Path) -> Instance {
         service: None,
         name: Some("Landfill Road".into()),
         length: Some(6000),
+        geometry: Vec::new(),
+        class: None,
     });
     let inst =
         Instance::new("demo town with landfill", net, town.fleet().clone(), yard).expect("valid");

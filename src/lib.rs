@@ -11,10 +11,11 @@
 //! (single-tour routes and lower bounds), [`search`] (the fleet solver,
 //! [`Solver`]; its internals `construct` and `improve` are crate-private,
 //! public only with the non-default `internals` feature for the kernel
-//! benchmarks), [`fleet`] (dump sites, several yards, truck types and
-//! balanced shifts), [`demo`] and [`report`] (demo towns and outputs for people,
-//! rendered as text). The `planner` program that writes them into a folder
-//! is an example (`examples/planner/`), not library API.
+//! benchmarks), [`map`] (OpenStreetMap and GeoJSON street maps in),
+//! [`fleet`] (dump sites, several yards, truck types and balanced shifts), [`demo`]
+//! and [`report`] (demo towns and outputs for people, rendered as text). The
+//! `planner` program that writes them into a folder is an example
+//! (`examples/planner/`), not library API.
 //!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
@@ -57,6 +58,7 @@ pub mod fleet;
 // Solver internals: local search and Merge-Split.
 internal_mod!(improve);
 pub mod io;
+pub mod map;
 pub mod model;
 pub mod paths;
 pub mod plan;

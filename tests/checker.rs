@@ -24,7 +24,7 @@ fn link(from: usize, to: usize, oneway: bool, cost: i64, time: Option<i64>) -> L
         time,
         service: None,
         name: None,
-        length: None,
+        ..Link::default()
     }
 }
 

@@ -291,6 +291,8 @@ fn world(seed: u64, tasks: usize, variant: u64) -> World {
             service,
             name: None,
             length: None,
+            geometry: Vec::new(),
+            class: None,
         });
     }
     let inst = Instance::new("tiny world", net, Fleet::with_capacity(6), 0).unwrap();

@@ -276,7 +276,7 @@ fn one_way_traps_and_unreachable_streets_are_named() {
             direction: arcwright::model::ServeDirection::Forward,
         }),
         name: Some(name.to_string()),
-        length: None,
+        ..Link::default()
     };
     // Yard 0 <-> 1 two-way; 1 -> 2 one-way "Mill Lane" (a trap: 2 has no
     // way out); 3 -> 0 one-way "Quarry Road" (nothing leads to 3).

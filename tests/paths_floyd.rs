@@ -34,7 +34,7 @@ fn random_network(rng: &mut ChaCha8Rng) -> Network {
             time,
             service: None,
             name: None,
-            length: None,
+            ..Link::default()
         });
     }
     net

@@ -113,11 +113,11 @@ proptest! {
                 time: None,
                 direction: if mixed && (all_forward || r.random_bool(0.3)) { ServeDirection::Forward } else { ServeDirection::Either },
             });
-            net.add_link(Link { from: e.u, to: e.v, oneway, cost: e.cost, time: None, service, name: None, length: None });
+            net.add_link(Link { from: e.u, to: e.v, oneway, cost: e.cost, time: None, service, name: None, ..Link::default() });
         }
         if mixed {
             // Two-way backbone so most instances stay valid.
-            for v in 1..n { net.add_link(Link { from: v - 1, to: v, oneway: false, cost: r.random_range(1..60), time: None, service: None, name: None, length: None }); }
+            for v in 1..n { net.add_link(Link { from: v - 1, to: v, oneway: false, cost: r.random_range(1..60), time: None, service: None, name: None, ..Link::default() }); }
         }
         let cap = r.random_range(5..15);
         let mut fleet = Fleet::with_capacity(cap);
@@ -246,7 +246,7 @@ fn imbalance_flow_is_the_directed_postman_value_when_all_is_required() {
                     direction: ServeDirection::Forward,
                 }),
                 name: None,
-                length: None,
+                ..Link::default()
             });
         }
         let inst = Instance::new("directed", net, Fleet::with_capacity(10_000), 0).unwrap();

@@ -249,7 +249,7 @@ fn awkward_names_survive_csv_markdown_and_svg() {
                 direction: ServeDirection::Either,
             }),
             name: (a == 0).then(|| name.to_string()),
-            length: None,
+            ..Link::default()
         });
     }
     let inst = Instance::new("awkward", net, Fleet::with_capacity(10), 0).unwrap();

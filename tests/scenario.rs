@@ -85,7 +85,9 @@ fn public_instances_round_trip() {
 
 mod random {
     use arcwright::io::{read_scenario, write_scenario};
-    use arcwright::model::{Fleet, Instance, Junction, Link, Network, ServeDirection, ServiceSpec};
+    use arcwright::model::{
+        Fleet, Instance, Junction, Link, Network, ServeDirection, ServiceSpec, TurnRestriction,
+    };
     use proptest::prelude::*;
 
     fn opt<T: std::fmt::Debug + Clone>(
@@ -118,9 +120,11 @@ mod random {
             service,
             opt("[ -~]{0,12}|Straße [0-9]{1,3}|\"quoted\\\\\""),
             opt(0..=1_000_000i64),
+            prop::collection::vec([-1e7..1e7f64, -1e7..1e7f64], 0..4),
+            opt("residential|primary|service"),
         )
             .prop_map(
-                |(from, to, oneway, cost, time, service, name, length)| Link {
+                |(from, to, oneway, cost, time, service, name, length, geometry, class)| Link {
                     from,
                     to,
                     oneway,
@@ -129,6 +133,8 @@ mod random {
                     service,
                     name,
                     length,
+                    geometry,
+                    class,
                 },
             )
     }
@@ -152,10 +158,11 @@ mod random {
                 0..n,
                 (5..=20i64, opt(0..=10_000i64), opt(1..10usize)),
                 "[a-z ]{0,10}",
+                prop::collection::vec((0..n, 0..n), 0..3),
             )
                 .prop_filter_map(
                     "distinct ids, valid",
-                    move |(js, extra, depot, (capacity, shift, max), name)| {
+                    move |(js, extra, depot, (capacity, shift, max), name, turns)| {
                         let mut ids: Vec<u64> = js.iter().map(|j| j.0).collect();
                         ids.sort_unstable();
                         ids.dedup();
@@ -164,12 +171,27 @@ mod random {
                         }
                         let mut net = Network {
                             junctions: js.iter().map(|&(id, x, y)| Junction { id, x, y }).collect(),
-                            links: Vec::new(),
+                            ..Network::default()
                         };
                         for v in 0..n {
                             net.add_edge(v, (v + 1) % n, 1);
                         }
                         net.links.extend(extra);
+                        // Turn restrictions between the ring's links.
+                        for (k, &(a, b)) in turns.iter().enumerate() {
+                            let (from, to) = (a % n, b % n);
+                            net.turn_restrictions.push(TurnRestriction {
+                                rule: if k % 2 == 0 {
+                                    "no_left_turn"
+                                } else {
+                                    "only_straight_on"
+                                }
+                                .into(),
+                                from,
+                                via: (from + 1) % n,
+                                to,
+                            });
+                        }
                         let fleet = Fleet {
                             capacity,
                             shift_limit: shift,

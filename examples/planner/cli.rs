@@ -21,7 +21,9 @@ pub const DEFAULT_TIME_LIMIT: Duration = Duration::from_secs(10);
     version,
     args_conflicts_with_subcommands = true,
     allow_negative_numbers = true,
-    after_help = "SCENARIO is our JSON scenario file or a research-format .dat file \
+    after_help = "SCENARIO is our JSON scenario file, a research-format .dat file, \
+                  or a street map: an OpenStreetMap extract (.osm.pbf, .osm) or GeoJSON \
+                  street lines (.geojson), built with --profile and --yard \
                   (default: instances/demo-town.json).\n\
                   `planner check SCENARIO PLAN` re-verifies a plan file: it lists every \
                   problem found; exit code 0 when valid, 1 on problems, 2 when a file \
@@ -53,12 +55,27 @@ pub struct CheckArgs {
     /// The fleet options the plan was made with.
     #[command(flatten)]
     pub fleet: FleetArgs,
+    /// The map options the plan was made with (map scenarios only).
+    #[command(flatten)]
+    pub map: MapArgs,
+}
+
+/// How a map file (`.osm.pbf`, `.osm`, `.geojson`) becomes a scenario.
+#[derive(Clone, Debug, Default, PartialEq, Eq, Args)]
+pub struct MapArgs {
+    /// Service profile for a map: `refuse` (default), `gritting` or a TOML file.
+    #[arg(long, value_name = "NAME|FILE")]
+    pub profile: Option<String>,
+    /// Yard of a map scenario: `LON,LAT` (snapped to the nearest drivable
+    /// junction) or `node:ID`; default: the junction nearest the map's centre.
+    #[arg(long, value_name = "LON,LAT|node:ID")]
+    pub yard: Option<String>,
 }
 
 /// Options of a planning run.
 #[derive(Debug, Args)]
 pub struct PlanArgs {
-    /// Scenario file (JSON scenario or .dat); default: the demo town.
+    /// Scenario file (JSON scenario, .dat, or a map: .osm.pbf, .osm, .geojson); default: the demo town.
     pub scenario: Option<PathBuf>,
     /// Stop searching after SECS seconds (default 10 when no --iterations is given).
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
@@ -81,6 +98,13 @@ pub struct PlanArgs {
     /// Fleet overrides.
     #[command(flatten)]
     pub fleet: FleetArgs,
+    /// Map options.
+    #[command(flatten)]
+    pub map: MapArgs,
+    /// Also save the scenario as read (a map's built network, with fleet
+    /// overrides) as our JSON scenario, for editing or `planner check`.
+    #[arg(long, value_name = "FILE")]
+    pub save_scenario: Option<PathBuf>,
 }
 
 /// Fleet settings given on the command line; `None` keeps the scenario's.
@@ -239,6 +263,19 @@ mod tests {
         );
         assert_eq!(o.out, PathBuf::from("results"));
         assert!(o.quiet);
+        let c = parse(&[
+            "town.osm.pbf",
+            "--profile",
+            "gritting",
+            "--yard",
+            "24.94,60.17",
+            "--save-scenario",
+            "town.json",
+        ])
+        .unwrap();
+        assert_eq!(c.plan.map.profile.as_deref(), Some("gritting"));
+        assert_eq!(c.plan.map.yard.as_deref(), Some("24.94,60.17"));
+        assert_eq!(c.plan.save_scenario, Some(PathBuf::from("town.json")));
     }
 
     #[test]

@@ -37,6 +37,9 @@ pub enum AppError {
     /// The scenario or plan file could not be read.
     #[error("{0}")]
     Input(#[source] arcwright::Error),
+    /// A map file could not be turned into a scenario.
+    #[error("{0}")]
+    Map(#[source] arcwright::map::MapError),
     /// The command line names files in a way that cannot be right.
     #[error("{0}")]
     Usage(String),
@@ -78,7 +81,8 @@ pub enum AppError {
 }
 
 /// Options that only a planning run understands.
-const PLAN_ONLY: [&str; 6] = [
+const PLAN_ONLY: [&str; 7] = [
+    "--save-scenario",
     "--seed",
     "--time-limit",
     "--iterations",
@@ -130,7 +134,7 @@ fn main() -> ExitCode {
 }
 
 fn check(k: &cli::CheckArgs) -> ExitCode {
-    match run::run_check(&k.scenario, &k.plan, &k.fleet) {
+    match run::run_check(&k.scenario, &k.plan, &k.fleet, &k.map) {
         Ok(run) if run.problems.is_empty() => {
             println!(
                 "{}: valid for {} ({} trucks, cost {}).",
@@ -242,6 +246,12 @@ fn plan(opts: &PlanArgs) -> ExitCode {
     match result {
         Ok(run) => {
             println!("Scenario: {}", run.source);
+            if let Some(report) = &run.map_report {
+                println!("{report}");
+            }
+            if let Some(saved) = &run.saved_scenario {
+                println!("Scenario saved as {}", saved.display());
+            }
             if run.stopped_early {
                 println!("Stopped by Ctrl-C: writing the best plan found so far.");
             }

@@ -22,15 +22,54 @@ use arcwright::report::fleet::fleet_markdown;
 use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
 use arcwright::{Progress, Solver};
 
-use crate::cli::{FleetArgs, PlanArgs, DEFAULT_SCENARIO};
+use arcwright::map::{load_map, MapFormat, MapOptions};
+
+use crate::cli::{FleetArgs, MapArgs, PlanArgs, DEFAULT_SCENARIO};
 use crate::output::{prepare_folder, write_files};
 use crate::AppError;
 
-/// Reads a scenario: a research-format file when the name ends in `.dat`
-/// (any case), our JSON scenario format when it ends in `.json`, and for
-/// other names whichever the text looks like (JSON starts with `{`). Fleet
-/// overrides are applied and the result revalidated.
-pub fn load_scenario(path: &Path, fleet: &FleetArgs) -> Result<Instance, AppError> {
+/// A scenario read for a run, with the map's build report when it came
+/// from a map file.
+pub struct Loaded {
+    /// The validated instance, fleet overrides applied.
+    pub instance: Instance,
+    /// What the map builder made of a map file (printed before the plan).
+    pub map_report: Option<String>,
+    /// Built from OpenStreetMap data: outputs carry its attribution.
+    pub osm: bool,
+}
+
+/// Reads a scenario: a street map when the name says so
+/// ([`arcwright::map::map_format`]: `.osm.pbf`, `.pbf`, `.osm`, `.xml`,
+/// `.geojson`), built with the map options; a research-format file when the
+/// name ends in `.dat` (any case), our JSON scenario format when it ends in
+/// `.json`, and for other names whichever the text looks like (JSON starts
+/// with `{`). Fleet overrides are applied and the result revalidated.
+pub fn load_scenario(path: &Path, fleet: &FleetArgs, map: &MapArgs) -> Result<Loaded, AppError> {
+    if arcwright::map::map_format(path).is_some() {
+        let options = MapOptions::from_args(map.profile.as_deref(), map.yard.as_deref())
+            .map_err(AppError::Map)?;
+        let built = load_map(path, &options).map_err(AppError::Map)?;
+        return Ok(Loaded {
+            instance: fleet.apply(built.instance).map_err(AppError::Fleet)?,
+            map_report: Some(built.report.to_string()),
+            osm: built.report.format != MapFormat::GeoJson,
+        });
+    }
+    if *map != MapArgs::default() {
+        return Err(AppError::Usage(format!(
+            "--profile and --yard build a map file (.osm.pbf, .osm, .geojson); {} is a scenario",
+            path.display()
+        )));
+    }
+    Ok(Loaded {
+        instance: read_scenario_or_dat(path, fleet)?,
+        map_report: None,
+        osm: false,
+    })
+}
+
+fn read_scenario_or_dat(path: &Path, fleet: &FleetArgs) -> Result<Instance, AppError> {
     let ext = path
         .extension()
         .map(|e| e.to_string_lossy().to_ascii_lowercase());
@@ -57,22 +96,35 @@ pub fn load_scenario(path: &Path, fleet: &FleetArgs) -> Result<Instance, AppErro
 /// [`DEFAULT_SCENARIO`] when it exists, or else the demo town generated in
 /// memory (the same town; used when the program runs outside the project
 /// folder). Returns the instance and a description for the summary.
-pub fn resolve_scenario(opts: &PlanArgs) -> Result<(Instance, String), AppError> {
+pub fn resolve_scenario(opts: &PlanArgs) -> Result<(Loaded, String), AppError> {
     if let Some(p) = &opts.scenario {
-        return Ok((load_scenario(p, &opts.fleet)?, p.display().to_string()));
+        return Ok((
+            load_scenario(p, &opts.fleet, &opts.map)?,
+            p.display().to_string(),
+        ));
     }
     let default = Path::new(DEFAULT_SCENARIO);
     if default.exists() {
         return Ok((
-            load_scenario(default, &opts.fleet)?,
+            load_scenario(default, &opts.fleet, &opts.map)?,
             DEFAULT_SCENARIO.to_string(),
+        ));
+    }
+    if opts.map != MapArgs::default() {
+        return Err(AppError::Usage(
+            "--profile and --yard build a map file: name one (.osm.pbf, .osm, .geojson)".into(),
         ));
     }
     let inst = town(&TownSpec::demo()).map_err(AppError::Fleet)?;
     // Going through the scenario text keeps this path identical to reading the file.
     let inst = read_scenario(&write_scenario(&inst), "<demo town>").map_err(AppError::Input)?;
     let inst = opts.fleet.apply(inst).map_err(AppError::Fleet)?;
-    Ok((inst, "the demo town (generated)".to_string()))
+    let loaded = Loaded {
+        instance: inst,
+        map_report: None,
+        osm: false,
+    };
+    Ok((loaded, "the demo town (generated)".to_string()))
 }
 
 /// A progress callback.
@@ -91,6 +143,10 @@ pub struct Hooks<'a> {
 pub struct PlanRun {
     /// Where the scenario came from.
     pub source: String,
+    /// What the map builder made of a map file.
+    pub map_report: Option<String>,
+    /// Where the scenario was saved (`--save-scenario`).
+    pub saved_scenario: Option<PathBuf>,
     /// Whether the stop flag ended the search.
     pub stopped_early: bool,
     /// The summary table, with cautions.
@@ -157,14 +213,21 @@ pub fn render(
 /// Plans the scenario of `opts` and writes the plan and reports into
 /// `opts.out` (checked before the search).
 pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
-    let (inst, source) = resolve_scenario(opts)?;
+    let (loaded, source) = resolve_scenario(opts)?;
+    let inst = loaded.instance;
     prepare_folder(&opts.out)?;
+    if let Some(path) = &opts.save_scenario {
+        save_scenario(path, &inst)?;
+    }
     let stop = hooks
         .stop
         .clone()
         .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
     if !inst.operations().is_plain(&inst) {
-        return run_fleet_plan(opts, &inst, source);
+        let (map_report, osm) = (loaded.map_report, loaded.osm);
+        let mut run = run_fleet_plan(opts, &inst, source, osm)?;
+        run.map_report = map_report;
+        return Ok(run);
     }
     let mut solver = Solver::new(&inst)
         .seed(opts.seed)
@@ -202,11 +265,17 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         stopped_early,
         crate_version: env!("CARGO_PKG_VERSION").to_string(),
     };
-    let files = render(&inst, &dist, &solution.plan, &extras, Some(run))?;
-    let summary = summary_table(&inst, &solution.plan, &extras);
+    let mut files = render(&inst, &dist, &solution.plan, &extras, Some(run))?;
+    let mut summary = summary_table(&inst, &solution.plan, &extras);
+    if loaded.osm {
+        attribute_osm(&mut files);
+        summary.push_str(&format!("\n{OSM_ATTRIBUTION}\n"));
+    }
     let files = write_files(&opts.out, &files)?;
     Ok(PlanRun {
         source,
+        map_report: loaded.map_report,
+        saved_scenario: opts.save_scenario.clone(),
         stopped_early,
         summary,
         files,
@@ -218,7 +287,12 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
 /// time limit or stop flag: it runs to its limits), checks the plan
 /// independently and writes `plan.json` (every tip recorded) and
 /// `sheets.md` (with "tip at ..., unload ...").
-fn run_fleet_plan(opts: &PlanArgs, inst: &Instance, source: String) -> Result<PlanRun, AppError> {
+fn run_fleet_plan(
+    opts: &PlanArgs,
+    inst: &Instance,
+    source: String,
+    osm: bool,
+) -> Result<PlanRun, AppError> {
     let f = &opts.fleet;
     let overrides = f.capacity.is_some() || f.shift_limit.is_some() || f.max_trucks.is_some();
     if overrides && !inst.operations().truck_types.is_empty() {
@@ -262,7 +336,7 @@ fn run_fleet_plan(opts: &PlanArgs, inst: &Instance, source: String) -> Result<Pl
             .collect::<Vec<_>>()
             .join("\n")
     );
-    let files = vec![
+    let mut files = vec![
         OutputFile {
             name: "plan.json".into(),
             contents: json,
@@ -276,12 +350,79 @@ fn run_fleet_plan(opts: &PlanArgs, inst: &Instance, source: String) -> Result<Pl
             contents: summary.clone(),
         },
     ];
+    let mut summary = summary;
+    if osm {
+        attribute_osm(&mut files);
+        summary.push_str(&format!("\n{OSM_ATTRIBUTION}\n"));
+    }
     let files = write_files(&opts.out, &files)?;
     Ok(PlanRun {
         source,
+        map_report: None,
+        saved_scenario: opts.save_scenario.clone(),
         stopped_early: false,
         summary,
         files,
+    })
+}
+
+/// The attribution OpenStreetMap's licence asks of anything made from its data.
+pub const OSM_ATTRIBUTION: &str =
+    "Map data © OpenStreetMap contributors, ODbL 1.0 (https://www.openstreetmap.org/copyright)";
+
+/// Adds the OpenStreetMap attribution to the map picture (bottom right), the
+/// GeoJSON (a foreign member `attribution`), the summary and the sheets.
+fn attribute_osm(files: &mut [arcwright::report::OutputFile]) {
+    for f in files.iter_mut() {
+        match f.name.as_str() {
+            "plan.svg" => {
+                let height: f64 = f
+                    .contents
+                    .split("height=\"")
+                    .nth(1)
+                    .and_then(|r| r.split('"').next())
+                    .and_then(|h| h.parse().ok())
+                    .unwrap_or(0.0);
+                let text = format!(
+                    "<text id=\"attribution\" x=\"992\" y=\"{:.0}\" text-anchor=\"end\" font-size=\"10\" fill=\"#555555\">{}</text>\n</svg>\n",
+                    height - 8.0,
+                    arcwright::report::svg::xml_escape(OSM_ATTRIBUTION)
+                );
+                if let Some(end) = f.contents.rfind("</svg>") {
+                    f.contents.truncate(end);
+                    f.contents.push_str(&text);
+                }
+            }
+            "plan.geojson" => {
+                if let Ok(mut v) = serde_json::from_str::<serde_json::Value>(&f.contents) {
+                    v["attribution"] = serde_json::json!(OSM_ATTRIBUTION);
+                    if let Ok(t) = serde_json::to_string_pretty(&v) {
+                        f.contents = t;
+                    }
+                }
+            }
+            "summary.txt" | "sheets.md" => {
+                f.contents.push_str(&format!("\n{OSM_ATTRIBUTION}\n"));
+            }
+            _ => {}
+        }
+    }
+}
+
+/// Writes the scenario as JSON, through a temporary file renamed into place
+/// (never a half-written file).
+fn save_scenario(path: &Path, inst: &Instance) -> Result<(), AppError> {
+    let write = |source| AppError::Write {
+        path: path.to_path_buf(),
+        source,
+    };
+    let mut tmp = path.as_os_str().to_owned();
+    tmp.push(".partial");
+    let tmp = PathBuf::from(tmp);
+    std::fs::write(&tmp, write_scenario(inst)).map_err(write)?;
+    std::fs::rename(&tmp, path).map_err(|e| {
+        let _ = std::fs::remove_file(&tmp);
+        write(e)
     })
 }
 
@@ -314,9 +455,10 @@ pub fn run_check(
     scenario: &Path,
     plan_file: &Path,
     fleet: &FleetArgs,
+    map: &MapArgs,
 ) -> Result<CheckRun, AppError> {
     refuse_swapped(scenario, plan_file)?;
-    let inst = load_scenario(scenario, fleet)?;
+    let inst = load_scenario(scenario, fleet, map)?.instance;
     let (name, text) = arcwright::io::read_text(plan_file).map_err(AppError::Input)?;
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
@@ -380,7 +522,9 @@ mod tests {
 
     fn demo() -> Instance {
         let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(DEFAULT_SCENARIO);
-        load_scenario(&path, &FleetArgs::default()).unwrap()
+        load_scenario(&path, &FleetArgs::default(), &MapArgs::default())
+            .unwrap()
+            .instance
     }
 
     #[test]

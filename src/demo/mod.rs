@@ -200,7 +200,7 @@ impl Builder {
             time: Some((length / speed).round().max(1.0) as Cost),
             service,
             name: Some(name.to_string()),
-            length: None,
+            ..Link::default()
         })
     }
 }

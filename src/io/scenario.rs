@@ -33,11 +33,12 @@
 //! as many trucks as all types together. Files without these fields read as
 //! before, with every feature off.
 //!
+//! | `turn_restrictions` | array, optional | `{ "rule": string, "from_street": integer, "via": id, "to_street": integer }`, see below |
 //!
 //! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
-//! "length": integer?, "drive_time": integer?, "name": string?, "service":
-//! {...}? }` (`length`, in the `length` unit, is shown on the sheets and
-//! never decides the plan):
+//! "length": integer?, "drive_time": integer?, "name": string?, "class":
+//! string?, "geometry": [[x, y], ...]?, "service": {...}? }` (`length`, in
+//! the `length` unit, is shown on the sheets and never decides the plan):
 //! `one_way` (default `false`) means it may only be driven from `from` to
 //! `to`; `cost` is paid each time it is driven without serving
 //! (deadheading); `drive_time` defaults to `cost`. A street with a `service`
@@ -46,8 +47,18 @@
 //! service cost, `directions` to `"either"`). A street whose two sides are
 //! served separately is written as two streets with `"directions":
 //! "forward"`, one each way. Omitted `shift_limit` / `max_trucks` mean no
-//! limit. Unknown fields are rejected, so a misspelt field is an error, not
-//! silently ignored.
+//! limit. `class` is the road class (the OpenStreetMap `highway=*` value,
+//! such as `"residential"`); `geometry` is the street's shape for maps, the
+//! points from `from` to `to` (both included) in the junctions' coordinate
+//! system; without it maps draw a straight line. Unknown fields are rejected,
+//! so a misspelt field is an error, not silently ignored.
+//!
+//! A turn restriction (read from OpenStreetMap `type=restriction` relations
+//! and kept for turn-aware routing; the solver does not use them yet) says
+//! that a truck arriving at junction `via` along street number `from_street`
+//! (0-based position in `streets`) may not turn into street `to_street`
+//! (`rule` starting with `no_`, such as `"no_left_turn"`), or may only turn
+//! into it (`rule` starting with `only_`, such as `"only_straight_on"`).
 //!
 //! All costs, lengths, times and demands are exact integers in
 //! `0..=`[`MAX_NUMBER`]. Coordinates are decimal numbers, checked against the
@@ -68,19 +79,25 @@
 //!     { "id": 30 }
 //!   ],
 //!   "streets": [
-//!     { "from": 10, "to": 20, "cost": 4, "name": "Mill Lane",
+//!     { "from": 10, "to": 20, "cost": 4, "name": "Mill Lane", "class": "residential",
+//!       "geometry": [[0.0, 0.0], [50.0, 12.5], [100.0, 0.0]],
 //!       "service": { "demand": 2, "cost": 6, "time": 9, "directions": "either" } },
 //!     { "from": 20, "to": 30, "one_way": true, "cost": 5, "drive_time": 7,
 //!       "service": { "demand": 3, "cost": 5, "directions": "forward" } },
 //!     { "from": 30, "to": 10, "cost": 7 }
 //!   ],
 //!   "yard": 10,
-//!   "fleet": { "capacity": 10, "shift_limit": 480, "max_trucks": 2 }
+//!   "fleet": { "capacity": 10, "shift_limit": 480, "max_trucks": 2 },
+//!   "turn_restrictions": [
+//!     { "rule": "no_left_turn", "from_street": 0, "via": 20, "to_street": 1 }
+//!   ]
 //! }"#;
 //! let inst = read_scenario(text, "three.json").unwrap();
 //! assert_eq!(inst.tasks().len(), 2);
 //! assert_eq!(inst.depot(), 0);
 //! assert_eq!(inst.fleet().max_vehicles, Some(2));
+//! assert_eq!(inst.network().links[0].geometry.len(), 3);
+//! assert_eq!(inst.network().turn_restrictions[0].via, 1);
 //! // Writing and reading again gives the same instance.
 //! let again = read_scenario(&write_scenario(&inst), "again.json").unwrap();
 //! assert_eq!(again, inst);
@@ -103,7 +120,7 @@ use crate::error::{Error, ParseProblem, Problems, Result};
 use crate::model::{
     Balance, Coordinates, Cost, DumpSite, Element, Fleet, Hours, Instance, Junction, Link,
     ModelError, Network, Operations, OperationsError, ServeDirection, ServiceSpec, TruckType,
-    Units, Yard,
+    TurnRestriction, Units, Yard,
 };
 
 /// The value of the `format` field.
@@ -138,6 +155,17 @@ struct FileRec {
     truck_types: Vec<TruckTypeRec>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     balance: Option<BalanceRec>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    turn_restrictions: Vec<TurnRec>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TurnRec {
+    rule: String,
+    from_street: usize,
+    via: u64,
+    to_street: usize,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -260,6 +288,10 @@ struct StreetRec {
     drive_time: Option<i64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     name: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    class: Option<String>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    geometry: Vec<[f64; 2]>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     service: Option<ServiceRec>,
 }
@@ -546,6 +578,7 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     }
     let (junctions, index) = c.junctions(&rec.junctions);
     let links = c.streets(&rec.streets, &index);
+    let turn_restrictions = c.turns(&rec.turn_restrictions, &index, rec.streets.len());
     let fleet_ops = c.fleet_and_operations(&rec, &index);
     let (fleet, depot, ops) = match fleet_ops {
         Ok((fleet, depot, ops)) => (fleet, Some(depot), Some(ops)),
@@ -571,7 +604,11 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     else {
         return Err(c.problems.failed());
     };
-    let network = Network { junctions, links };
+    let network = Network {
+        junctions,
+        links,
+        turn_restrictions,
+    };
     let inst = match Instance::validate(rec.name, network, fleet, depot) {
         Ok(inst) => inst,
         Err(all) => {
@@ -748,9 +785,55 @@ impl Collect<'_> {
                 }),
                 name: s.name.clone(),
                 length: s.length,
+                geometry: s.geometry.clone(),
+                class: s.class.clone(),
             });
         }
         links
+    }
+
+    /// The turn restrictions; one with a bad rule, street number or via
+    /// junction is left out (its problem is recorded).
+    fn turns(
+        &mut self,
+        recs: &[TurnRec],
+        index: &HashMap<u64, usize>,
+        streets: usize,
+    ) -> Vec<TurnRestriction> {
+        let mut out = Vec::with_capacity(recs.len());
+        for (i, t) in recs.iter().enumerate() {
+            let p =
+                |k: &'static str| vec![Seg::Key("turn_restrictions"), Seg::Index(i), Seg::Key(k)];
+            let mut ok = true;
+            if !(t.rule.starts_with("no_") || t.rule.starts_with("only_")) {
+                let problem = ParseProblem::Unexpected {
+                    expected: "a rule starting with no_ or only_",
+                    found: t.rule.clone(),
+                };
+                self.at(p("rule"), problem);
+                ok = false;
+            }
+            for (k, street) in [("from_street", t.from_street), ("to_street", t.to_street)] {
+                if street >= streets {
+                    let problem = ParseProblem::Unexpected {
+                        expected: "the number of a street (0-based position in `streets`)",
+                        found: street.to_string(),
+                    };
+                    self.at(p(k), problem);
+                    ok = false;
+                }
+            }
+            let via = self.lookup(index, p("via"), t.via);
+            if let (Some(via), true) = (via, ok) {
+                out.push(TurnRestriction {
+                    rule: t.rule.clone(),
+                    from: t.from_street,
+                    via,
+                    to: t.to_street,
+                });
+            }
+        }
+        out
     }
 }
 
@@ -1128,6 +1211,13 @@ pub fn write_scenario(inst: &Instance) -> String {
                 length: l.length,
                 drive_time: l.time,
                 name: l.name.clone(),
+                class: l.class.clone(),
+                geometry: l
+                    .geometry
+                    .iter()
+                    .copied()
+                    .filter(|p| p[0].is_finite() && p[1].is_finite())
+                    .collect(),
                 service: l.service.as_ref().map(|s| ServiceRec {
                     demand: s.demand,
                     cost: s.cost,
@@ -1162,6 +1252,16 @@ pub fn write_scenario(inst: &Instance) -> String {
                 longest_shift_weight: weight,
             }),
         },
+        turn_restrictions: net
+            .turn_restrictions
+            .iter()
+            .map(|t| TurnRec {
+                rule: t.rule.clone(),
+                from_street: t.from,
+                via: id(t.via),
+                to_street: t.to,
+            })
+            .collect(),
     };
     // Plain structs of integers, strings, booleans and finite floats always
     // serialize; a failure here would be a bug in this function.

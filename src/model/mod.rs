@@ -23,7 +23,7 @@ mod units;
 pub use coords::{CoordError, Coordinates, Projection, EARTH_RADIUS_M};
 pub use fleet::Fleet;
 pub use instance::{Dir, Instance, ModelError, Reach, Task, MAX_PROBLEMS};
-pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec};
+pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec, TurnRestriction};
 pub use operations::{
     Balance, DumpSite, Element, Hours, Operations, OperationsError, TruckType, Yard,
 };

@@ -39,7 +39,11 @@ pub struct ServiceSpec {
 }
 
 /// A street segment between two junctions.
-#[derive(Clone, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+///
+/// `Link::default()` is a zero-cost two-way link from junction 0 to itself
+/// with no name, geometry or class: handy as `..Link::default()` in struct
+/// literals.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 pub struct Link {
     /// Index of the first junction in [`Network::junctions`].
     pub from: usize,
@@ -58,12 +62,46 @@ pub struct Link {
     /// Length of the street, in the scenario's length unit, when known
     /// (reports only; costs decide the plan).
     pub length: Option<Cost>,
+    /// The street's shape for maps: points `[x, y]` (lon/lat or planar, as
+    /// the junctions) from the `from` junction to the `to` junction, both
+    /// included. Empty: a straight line between the two junctions.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub geometry: Vec<[f64; 2]>,
+    /// Road class, such as the OpenStreetMap `highway=*` value
+    /// (`residential`, `primary`, ...), when known.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub class: Option<String>,
 }
 
 impl Link {
     /// Deadhead driving time (the cost when no time is given).
     pub fn drive_time(&self) -> Cost {
         self.time.unwrap_or(self.cost)
+    }
+}
+
+/// A turn that is forbidden, or the only one allowed, when arriving at a
+/// junction along a link (an OpenStreetMap `type=restriction` relation with a
+/// via node). Kept with the network for turn-aware routing; the solvers do not
+/// use them yet.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct TurnRestriction {
+    /// The OpenStreetMap value, such as `no_left_turn` or `only_straight_on`:
+    /// `no_*` forbids the turn from `from` into `to`; `only_*` forbids every
+    /// other turn out of `from` at `via`.
+    pub rule: String,
+    /// Index of the link arriving at `via`.
+    pub from: usize,
+    /// Index of the junction where the turn is made.
+    pub via: usize,
+    /// Index of the link leaving `via`.
+    pub to: usize,
+}
+
+impl TurnRestriction {
+    /// True for an `only_*` rule (the one turn allowed), false for `no_*`.
+    pub fn is_only(&self) -> bool {
+        self.rule.starts_with("only_")
     }
 }
 
@@ -74,6 +112,9 @@ pub struct Network {
     pub junctions: Vec<Junction>,
     /// The links.
     pub links: Vec<Link>,
+    /// Turn restrictions, for turn-aware routing (not used by the solvers yet).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub turn_restrictions: Vec<TurnRestriction>,
 }
 
 impl Network {
@@ -87,7 +128,7 @@ impl Network {
                     y: None,
                 })
                 .collect(),
-            links: Vec::new(),
+            ..Network::default()
         }
     }
 
@@ -113,7 +154,7 @@ impl Network {
                 direction: ServeDirection::Either,
             }),
             name: None,
-            length: None,
+            ..Link::default()
         })
     }
 
@@ -127,7 +168,7 @@ impl Network {
             time: None,
             service: None,
             name: None,
-            length: None,
+            ..Link::default()
         })
     }
 

@@ -293,7 +293,7 @@ mod tests {
             time: None,
             service: None,
             name: None,
-            length: None,
+            ..Link::default()
         });
         let inst = Instance::new("oneway", net, Fleet::with_capacity(5), 0).unwrap();
         assert!(matches!(

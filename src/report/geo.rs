@@ -22,7 +22,7 @@ pub(crate) fn points(inst: &Instance) -> Option<Vec<(f64, f64)>> {
 /// be placed on a world map (see [`crate::model::Coordinates::placeable`]: planar
 /// coordinates need an origin, undeclared ones are never guessed). Each
 /// feature is one step of a route's walk (a LineString from junction to
-/// junction) with properties `route` (1-based truck number), `step`,
+/// junction, along the street's shape when the scenario has one) with properties `route` (1-based truck number), `step`,
 /// `action` (`serve` or `deadhead`), `street`, `link` (0-based index in the
 /// scenario's street list, as in plan files), `from`/`to` (junction ids),
 /// `cost`, and `length` and `time` where the sheets show them; the yard is a
@@ -65,9 +65,24 @@ pub fn feature_collection_of_rows(inst: &Instance, all: &[Vec<SheetRow>]) -> Opt
             if times {
                 props["time"] = json!(row.step_time);
             }
+            let l = &net.links[row.link];
+            let line = if l.geometry.len() >= 2 {
+                // The street's shape, in the direction of travel.
+                let mut pts = l
+                    .geometry
+                    .iter()
+                    .map(|p| coords.lon_lat(p[0], p[1]))
+                    .collect::<Option<Vec<_>>>()?;
+                if a != l.from {
+                    pts.reverse();
+                }
+                pts
+            } else {
+                vec![at(a)?, at(b)?]
+            };
             features.push(json!({
                 "type": "Feature",
-                "geometry": { "type": "LineString", "coordinates": [at(a)?, at(b)?] },
+                "geometry": { "type": "LineString", "coordinates": line },
                 "properties": props,
             }));
         }

@@ -1,6 +1,7 @@
 //! SVG map of a plan, written by hand.
 //!
-//! - The street network in light grey; one-way streets darker, with grey
+//! - The street network in light grey, along the streets' shapes where the
+//!   scenario has them (maps); one-way streets darker, with grey
 //!   chevrons in their direction of travel. Every street carries a tooltip
 //!   with its name and junction numbers.
 //! - Each truck in its own colour ([`PALETTE`], 30 colours that stay apart):
@@ -85,6 +86,9 @@ struct Frame {
     map_right: f64,
     height: f64,
     legend_h: f64,
+    /// Pixel position of any point in the scenario's coordinates (for the
+    /// streets' polylines).
+    to_px: Box<dyn Fn(f64, f64) -> (f64, f64)>,
 }
 
 impl Frame {
@@ -93,12 +97,19 @@ impl Frame {
         let system = inst.coordinates();
         let lat0 = pts.iter().map(|p| p.1).sum::<f64>() / pts.len().max(1) as f64;
         let metres = system.metres(lat0);
-        let xy: Vec<(f64, f64)> = match &metres {
-            Some(f) => pts.iter().map(|&(x, y)| f(x, y)).collect(),
-            None => pts,
+        let project = |x: f64, y: f64| match &metres {
+            Some(f) => f(x, y),
+            None => (x, y),
         };
+        let xy: Vec<(f64, f64)> = pts.iter().map(|&(x, y)| project(x, y)).collect();
+        // Street shapes may bulge beyond their junctions: they count too.
+        let shape_xy = inst
+            .network()
+            .links
+            .iter()
+            .flat_map(|l| l.geometry.iter().map(|p| project(p[0], p[1])));
         let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
-        for &(x, y) in &xy {
+        for (x, y) in xy.iter().copied().chain(shape_xy) {
             lo_x = lo_x.min(x);
             hi_x = hi_x.max(x);
             lo_y = lo_y.min(y);
@@ -111,22 +122,28 @@ impl Frame {
         let map_h = span_y * scale;
         let legend_h = 150.0 + 18.0 * routes as f64;
         let height = (MARGIN + map_h + SCALE_H + MARGIN).max(legend_h + 2.0 * MARGIN);
-        let px = xy
-            .iter()
-            .map(|&(x, y)| {
-                (
-                    MARGIN + (x - lo_x) * scale,
-                    MARGIN + map_h - (y - lo_y) * scale,
-                )
+        let place = move |(x, y): (f64, f64)| {
+            (
+                MARGIN + (x - lo_x) * scale,
+                MARGIN + map_h - (y - lo_y) * scale,
+            )
+        };
+        let px = xy.iter().map(|&p| place(p)).collect();
+        let has_metres = metres.is_some();
+        let to_px = Box::new(move |x: f64, y: f64| {
+            place(match &metres {
+                Some(f) => f(x, y),
+                None => (x, y),
             })
-            .collect();
+        });
         Some(Frame {
             px,
-            px_per_m: metres.map(|_| scale),
+            px_per_m: has_metres.then_some(scale),
             map_bottom: MARGIN + map_h,
             map_right: MARGIN + draw_w,
             height,
             legend_h,
+            to_px,
         })
     }
 }
@@ -144,7 +161,7 @@ pub fn map_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> Optio
     let _ = writeln!(s, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##);
     defs(&mut s, plan.routes.len());
     network(&mut s, inst, &f);
-    routes(&mut s, &f, all);
+    routes(&mut s, inst, &f, all);
     junction_labels(&mut s, inst, &f, all);
     yard(&mut s, inst, &f);
     sites(&mut s, inst, &f);
@@ -178,7 +195,90 @@ fn mid(a: (f64, f64), b: (f64, f64)) -> (f64, f64) {
     ((a.0 + b.0) / 2.0, (a.1 + b.1) / 2.0)
 }
 
+/// The pixel polyline of a street's shape, driven from junction `start`
+/// (reversed when that is the street's `to` end); `None` without a shape.
+fn shape_px(inst: &Instance, f: &Frame, link: usize, start: usize) -> Option<Vec<(f64, f64)>> {
+    let l = &inst.network().links[link];
+    if l.geometry.len() < 2 {
+        return None;
+    }
+    let mut pts: Vec<(f64, f64)> = l.geometry.iter().map(|p| (f.to_px)(p[0], p[1])).collect();
+    if start != l.from {
+        pts.reverse();
+    }
+    Some(pts)
+}
+
+fn points_attr(pts: &[(f64, f64)]) -> String {
+    let mut out = String::new();
+    for (k, p) in pts.iter().enumerate() {
+        let sep = if k == 0 { "" } else { " " };
+        let _ = write!(out, "{sep}{:.1},{:.1}", p.0, p.1);
+    }
+    out
+}
+
+/// A polyline moved `off` pixels to the right of its direction of travel
+/// (each point along the mean of the normals of its segments).
+fn shifted_poly(pts: &[(f64, f64)], off: f64) -> Vec<(f64, f64)> {
+    let normal = |a: (f64, f64), b: (f64, f64)| {
+        let (dx, dy) = (b.0 - a.0, b.1 - a.1);
+        let len = (dx * dx + dy * dy).sqrt();
+        if len < 1e-9 {
+            (0.0, 0.0)
+        } else {
+            (-dy / len, dx / len)
+        }
+    };
+    (0..pts.len())
+        .map(|k| {
+            let before = if k > 0 {
+                normal(pts[k - 1], pts[k])
+            } else {
+                (0.0, 0.0)
+            };
+            let after = if k + 1 < pts.len() {
+                normal(pts[k], pts[k + 1])
+            } else {
+                (0.0, 0.0)
+            };
+            let (nx, ny) = (before.0 + after.0, before.1 + after.1);
+            let len = (nx * nx + ny * ny).sqrt();
+            if len < 1e-9 {
+                pts[k]
+            } else {
+                (pts[k].0 + nx / len * off, pts[k].1 + ny / len * off)
+            }
+        })
+        .collect()
+}
+
+/// Three points around the middle of a polyline (by length), for an arrow
+/// drawn with `marker-mid`.
+fn middle(pts: &[(f64, f64)]) -> [(f64, f64); 3] {
+    let seg = |k: usize| {
+        let (a, b) = (pts[k], pts[k + 1]);
+        ((b.0 - a.0).powi(2) + (b.1 - a.1).powi(2)).sqrt()
+    };
+    let total: f64 = (0..pts.len() - 1).map(seg).sum();
+    let mut run = 0.0;
+    for k in 0..pts.len() - 1 {
+        let l = seg(k);
+        if run + l >= total / 2.0 && l > 1e-9 {
+            let t = (total / 2.0 - run) / l;
+            let (a, b) = (pts[k], pts[k + 1]);
+            let m = (a.0 + t * (b.0 - a.0), a.1 + t * (b.1 - a.1));
+            let (ux, uy) = ((b.0 - a.0) / l * 0.5, (b.1 - a.1) / l * 0.5);
+            return [(m.0 - ux, m.1 - uy), m, (m.0 + ux, m.1 + uy)];
+        }
+        run += l;
+    }
+    let (a, b) = (pts[0], pts[pts.len() - 1]);
+    [a, mid(a, b), b]
+}
+
 /// Every street: two-way as a light line, one-way darker with a chevron.
+/// Streets with a shape (maps) are drawn along it.
 fn network(s: &mut String, inst: &Instance, f: &Frame) {
     let _ = writeln!(
         s,
@@ -187,7 +287,28 @@ fn network(s: &mut String, inst: &Instance, f: &Frame) {
     for (i, l) in inst.network().links.iter().enumerate() {
         let (a, b) = (f.px[l.from], f.px[l.to]);
         let title = format!("<title>{}</title>", xml_escape(&street_ref(inst, i)));
-        if l.oneway {
+        if let Some(pts) = shape_px(inst, f, i, l.from) {
+            let (class, stroke) = if l.oneway {
+                (
+                    r#" class="one-way""#,
+                    format!(r#" stroke="{ONE_WAY_GREY}""#),
+                )
+            } else {
+                ("", String::new())
+            };
+            let _ = writeln!(
+                s,
+                r#"<polyline{class} points="{}"{stroke}>{title}</polyline>"#,
+                points_attr(&pts)
+            );
+            if l.oneway {
+                let _ = writeln!(
+                    s,
+                    r#"<polyline points="{}" stroke="none" marker-mid="url(#one-way)"/>"#,
+                    points_attr(&middle(&pts))
+                );
+            }
+        } else if l.oneway {
             let m = mid(a, b);
             let _ = writeln!(
                 s,
@@ -203,15 +324,6 @@ fn network(s: &mut String, inst: &Instance, f: &Frame) {
         }
     }
     s.push_str("</g>\n");
-}
-
-/// `(a, b)` moved `off` pixels to the right of the direction of travel.
-fn shifted(a: (f64, f64), b: (f64, f64), off: f64) -> ((f64, f64), (f64, f64)) {
-    let (dx, dy) = (b.0 - a.0, b.1 - a.1);
-    let len = (dx * dx + dy * dy).sqrt().max(1e-9);
-    // Right of travel on screen (y grows downwards).
-    let (ox, oy) = (-dy / len * off, dx / len * off);
-    ((a.0 + ox, a.1 + oy), (b.0 + ox, b.1 + oy))
 }
 
 /// Lane of each (route, street, direction) deadhead: trucks that drive the
@@ -232,8 +344,9 @@ fn deadhead_lanes(all: &[Vec<SheetRow>]) -> HashMap<(usize, usize, (usize, usize
 }
 
 /// Deadhead legs of all trucks (dashed, in lanes), then their services
-/// (solid, with an arrow in the direction of service) on top.
-fn routes(s: &mut String, f: &Frame, all: &[Vec<SheetRow>]) {
+/// (solid, with an arrow in the direction of service) on top. Streets with a
+/// shape (maps) are drawn along it.
+fn routes(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetRow>]) {
     let lanes = deadhead_lanes(all);
     for serve in [false, true] {
         for (r, rows) in all.iter().enumerate() {
@@ -246,6 +359,7 @@ fn routes(s: &mut String, f: &Frame, all: &[Vec<SheetRow>]) {
             );
             for row in rows.iter().filter(|x| x.action.is_deadhead() != serve) {
                 let (a, b) = (f.px[row.ends.0], f.px[row.ends.1]);
+                let pts = shape_px(inst, f, row.link, row.ends.0).unwrap_or_else(|| vec![a, b]);
                 let title = format!(
                     "<title>Truck {} step {}: {} ({} → {}, {})</title>",
                     r + 1,
@@ -256,27 +370,45 @@ fn routes(s: &mut String, f: &Frame, all: &[Vec<SheetRow>]) {
                     if serve { "serve" } else { "deadhead" }
                 );
                 if serve {
-                    let (a, b) = shifted(a, b, 1.8);
-                    let m = mid(a, b);
-                    let _ = writeln!(
-                        s,
-                        r#"<polyline points="{:.1},{:.1} {:.1},{:.1} {:.1},{:.1}" stroke-width="2.6" marker-mid="url(#arrow-{})">{title}</polyline>"#,
-                        a.0,
-                        a.1,
-                        m.0,
-                        m.1,
-                        b.0,
-                        b.1,
-                        r + 1
-                    );
+                    let pts = shifted_poly(&pts, 1.8);
+                    if pts.len() == 2 {
+                        let m = mid(pts[0], pts[1]);
+                        let _ = writeln!(
+                            s,
+                            r#"<polyline points="{}" stroke-width="2.6" marker-mid="url(#arrow-{})">{title}</polyline>"#,
+                            points_attr(&[pts[0], m, pts[1]]),
+                            r + 1
+                        );
+                    } else {
+                        let _ = writeln!(
+                            s,
+                            r#"<polyline points="{}" stroke-width="2.6">{title}</polyline>"#,
+                            points_attr(&pts)
+                        );
+                        let _ = writeln!(
+                            s,
+                            r#"<polyline points="{}" stroke="none" marker-mid="url(#arrow-{})"/>"#,
+                            points_attr(&middle(&pts)),
+                            r + 1
+                        );
+                    }
                 } else {
                     let lane = lanes[&(r, row.link, row.ends)];
-                    let (a, b) = shifted(a, b, 2.0 + 2.2 * lane as f64);
-                    let _ = writeln!(
-                        s,
-                        r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke-width="1.6" stroke-dasharray="5 4">{title}</line>"#,
-                        a.0, a.1, b.0, b.1
-                    );
+                    let pts = shifted_poly(&pts, 2.0 + 2.2 * lane as f64);
+                    if pts.len() == 2 {
+                        let (a, b) = (pts[0], pts[1]);
+                        let _ = writeln!(
+                            s,
+                            r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke-width="1.6" stroke-dasharray="5 4">{title}</line>"#,
+                            a.0, a.1, b.0, b.1
+                        );
+                    } else {
+                        let _ = writeln!(
+                            s,
+                            r#"<polyline points="{}" stroke-width="1.6" stroke-dasharray="5 4">{title}</polyline>"#,
+                            points_attr(&pts)
+                        );
+                    }
                 }
             }
             s.push_str("</g>\n");
