@@ -3,6 +3,9 @@
 //! [`bound`] returns the best lower bound this crate knows how to compute
 //! for an instance; every feasible plan costs at least its value.
 //! [`all_bounds`] lists every bound computed, each with its method.
+//! The much stronger but slower cutting-plane LP bound is in [`lp`]
+//! ([`lp::LpBound`]); it is not part of [`all_bounds`] and runs with its own
+//! time budget.
 //!
 //! Every bound here is written as *service cost + a lower bound on the
 //! deadhead cost*. A plan's total cost is the service cost of every task
@@ -23,6 +26,7 @@
 //! [`crate::fleet::bound`].
 
 mod capacity;
+pub mod lp;
 mod single;
 
 pub(crate) use capacity::depot_cuts;
