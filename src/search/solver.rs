@@ -401,16 +401,7 @@ impl<'a> Solver<'a> {
             }
         };
         report(&best, 0);
-        // Epochs in a row in which no island made an offspring (an island
-        // whose population cannot hold two distinct plans, as on a tiny
-        // instance, makes none); without this guard the loop never ended.
-        let mut idle = 0;
-        while best.0 > ctx.stop_at
-            && !ctx.should_stop()
-            && budget.iter().any(|&b| b > 0)
-            && idle < IDLE_EPOCHS
-        {
-            let left = budget.clone();
+        while best.0 > ctx.stop_at && !ctx.should_stop() && budget.iter().any(|&b| b > 0) {
             let epoch = self.epoch;
             pool.install(|| {
                 islands
@@ -425,7 +416,6 @@ impl<'a> Solver<'a> {
                         *b = if done == 0 { 0 } else { *b - done };
                     })
             });
-            idle = if budget == left { idle + 1 } else { 0 };
             iterations = islands.iter().map(|i| i.iterations).sum();
             // Deterministic exchange: the best of all islands (lowest index on ties).
             let mut bi = usize::MAX;
@@ -534,9 +524,6 @@ impl Ctx<'_> {
                 .is_some_and(|f| f.load(Ordering::Relaxed))
     }
 }
-
-/// Epochs in a row without any offspring after which the search stops.
-const IDLE_EPOCHS: u32 = 100;
 
 /// Search parameters of one island.
 const RESTART_AFTER: u64 = 3000;
