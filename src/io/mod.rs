@@ -3,8 +3,6 @@
 
 pub mod dat;
 pub mod fleet_plan;
-// Owned by the planner branch (issue 8), which documents its errors.
-#[allow(clippy::missing_errors_doc)]
 pub mod plan_json;
 pub mod reference;
 pub mod scenario;
