@@ -194,6 +194,11 @@ pub enum SolveError {
         /// Fewest routes of any plan the constructions found.
         fewest_found: usize,
     },
+    /// The instance has dump sites, several yards, truck types or a balance
+    /// setting ([`crate::model::Operations`]), which this solver does not
+    /// know: use [`crate::fleet::FleetSolver`].
+    #[error("the scenario has dump sites, several yards, truck types or balancing: plan it with the fleet solver")]
+    NeedsFleetSolver,
     /// A task cannot be served on a route of its own within capacity and shift.
     #[error(
         "{street} cannot be served even on a route of its own within the capacity and shift limit"
@@ -367,6 +372,9 @@ impl<'a> Solver<'a> {
     pub fn solve(self) -> Result<Solution, SolveError> {
         let start = Instant::now();
         let inst = self.inst;
+        if !inst.operations().is_plain(inst) {
+            return Err(SolveError::NeedsFleetSolver);
+        }
         let owned;
         self.announce(Phase::Distances, None, 0, start, 0);
         let dist = match self.dist {
