@@ -65,7 +65,7 @@ pub mod report;
 pub mod search;
 
 pub use error::{Error, Result};
-pub use search::{Progress, Solution, SolveError, Solver, Stats};
+pub use search::{LpBudget, LpOutcome, Progress, Solution, SolveError, Solver, Stats};
 
 /// The README's Rust snippets, compiled (and run, unless marked `no_run`) as doctests.
 #[cfg(doctest)]

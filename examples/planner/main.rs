@@ -226,9 +226,14 @@ fn plan(opts: &PlanArgs) -> ExitCode {
             } else {
                 0.0
             };
+            let by = if p.bound_by == arcwright::bounds::lp::LP_CUTS {
+                "LP"
+            } else {
+                "quick"
+            };
             bar.set_message(format!(
-                "best {}  gap {gap:.2}%  iteration {}",
-                p.best_cost, p.iteration
+                "best {}  bound {} ({by})  gap {gap:.2}%  iteration {}",
+                p.best_cost, p.lower_bound, p.iteration
             ));
         }
     };

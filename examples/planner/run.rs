@@ -16,7 +16,7 @@ use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
 use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
-use arcwright::{Progress, Solver};
+use arcwright::{LpOutcome, Progress, Solver};
 
 use arcwright::map::{load_map, MapFormat, MapOptions};
 
@@ -178,6 +178,8 @@ pub fn render(
     verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
     let record = PlanRecord {
         lower_bound: extras.lower_bound.as_ref().map(|b| b.0),
+        lower_bound_method: extras.lower_bound.as_ref().map(|b| b.1.clone()),
+        gap_percent: extras.gap_percent,
         route_lengths: extras
             .route_lengths
             .clone()
@@ -232,14 +234,14 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
     if let Some(f) = hooks.on_progress {
         solver = solver.on_progress(f);
     }
+    if let Some(budget) = opts.lp_budget() {
+        solver = solver.lp_bound(budget);
+    }
     let solution = solver.solve().map_err(AppError::Solve)?;
     let stopped_early = stop.load(Ordering::SeqCst);
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let extras = SummaryExtras {
-        lower_bound: Some((
-            solution.lower_bound.value,
-            solution.lower_bound.by.to_string(),
-        )),
+        lower_bound: Some((solution.lower_bound.value, bound_method(&solution))),
         gap_percent: Some(solution.gap),
         run_time: Some(solution.stats.elapsed),
         iterations: Some(solution.stats.iterations),
@@ -270,6 +272,20 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         summary,
         files,
     })
+}
+
+/// Which bound the gap is against, for the summary and the plan file: the
+/// method's name, and why the LP bound was not used when it was asked for
+/// but did not apply (the run then goes on with the combinatorial bound).
+pub fn bound_method(solution: &arcwright::Solution) -> String {
+    let by = solution.lower_bound.by;
+    match &solution.lp {
+        Some(LpOutcome::DoesNotApply(why)) => format!("{by}; the LP bound does not apply: {why}"),
+        Some(LpOutcome::Ran(r)) if r.bound < solution.lower_bound.value => {
+            format!("{by}; the LP bound reached {}", r.bound)
+        }
+        _ => by.to_string(),
+    }
 }
 
 /// The attribution OpenStreetMap's licence asks of anything made from its data.

@@ -6,7 +6,9 @@
 //! `crossover` (order crossover on giant tours).
 
 mod crossover;
+mod lp_side;
 mod population;
 mod solver;
 
+pub use lp_side::{LpBudget, LpOutcome};
 pub use solver::{Progress, Solution, SolveError, Solver, Stats};

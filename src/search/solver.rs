@@ -38,6 +38,7 @@ use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha12Rng;
 use rayon::prelude::*;
 
+use crate::bounds::lp::LP_CUTS;
 use crate::bounds::{bound, LowerBound};
 use crate::construct::arcs::{ArcMatrix, BIG, MAX_LEG};
 use crate::construct::giant;
@@ -49,15 +50,21 @@ use crate::model::{Cost, Instance};
 use crate::paths::{DistanceError, Distances};
 use crate::plan::Plan;
 use crate::search::crossover::order_crossover;
+use crate::search::lp_side::{LpBudget, LpOutcome, LpSide};
 use crate::search::population::{Individual, Params, Population};
 
-/// Progress report, sent when the best plan improves.
+/// Progress report, sent when the best plan or the lower bound improves.
 #[derive(Clone, Debug)]
 pub struct Progress {
     /// Cost of the best plan so far.
     pub best_cost: Cost,
-    /// The lower bound in use.
+    /// The best lower bound known at this moment: the combinatorial
+    /// [`crate::bounds::bound`], raised by the LP bound as it improves when
+    /// [`Solver::lp_bound`] is set.
     pub lower_bound: Cost,
+    /// Which method gave `lower_bound` (a name from [`crate::bounds`] or
+    /// [`crate::bounds::lp::LP_CUTS`]).
+    pub bound_by: &'static str,
     /// Time since `solve` started.
     pub elapsed: Duration,
     /// Offspring generated so far (all workers).
@@ -86,10 +93,14 @@ pub struct Solution {
     pub plan: Plan,
     /// Its cost.
     pub cost: Cost,
-    /// The lower bound of [`crate::bounds::bound`].
+    /// The best lower bound available when the run ended: the combinatorial
+    /// [`crate::bounds::bound`], or the LP bound ([`Solver::lp_bound`]) when
+    /// that is higher (`by` says which). Never above `cost`.
     pub lower_bound: LowerBound,
     /// Percent above the lower bound: `100 (cost - bound) / bound` (0 when the bound is 0).
     pub gap: f64,
+    /// What the LP bound did (`None` when [`Solver::lp_bound`] was not set).
+    pub lp: Option<LpOutcome>,
     /// Statistics.
     pub stats: Stats,
 }
@@ -165,6 +176,7 @@ pub struct Solver<'a> {
     progress: Option<ProgressFn<'a>>,
     stop: Option<Arc<AtomicBool>>,
     epoch: u64,
+    lp: Option<LpBudget>,
 }
 
 impl<'a> Solver<'a> {
@@ -182,6 +194,7 @@ impl<'a> Solver<'a> {
             progress: None,
             stop: None,
             epoch: 500,
+            lp: None,
         }
     }
 
@@ -258,6 +271,44 @@ impl<'a> Solver<'a> {
         self
     }
 
+    /// Also runs the cutting-plane LP bound ([`crate::bounds::lp`]) in a
+    /// thread of its own beside the search, within `budget`, the solver's
+    /// time limit and its stop flag (whichever ends first). The solution
+    /// then reports the higher of the combinatorial and the LP bound, and
+    /// progress reports carry the bound as it improves. It never changes the
+    /// plan. When the search ends first, [`Solver::solve`] waits for the
+    /// bound to use its budget, except when the plan already reached the
+    /// combinatorial bound or the [`Solver::target`]. Where the LP bound
+    /// does not apply ([`crate::bounds::lp::applies`]) the combinatorial
+    /// bound is used alone and [`Solution::lp`] says why.
+    ///
+    /// Off by default: it takes one more thread than [`Solver::workers`]
+    /// and, without a solver time limit, time of its own (up to about 2 s
+    /// on the largest public instances; give `budget` a round limit for a
+    /// run whose reported bound is the same every time).
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// use arcwright::{LpBudget, Solver};
+    /// let mut net = Network::with_junctions(4);
+    /// net.add_required_edge(0, 1, 10, 3);
+    /// net.add_required_edge(1, 2, 12, 2);
+    /// net.add_required_edge(2, 3, 10, 3);
+    /// net.add_required_edge(3, 0, 12, 2);
+    /// let inst = Instance::new("block", net, Fleet::with_capacity(5), 0).unwrap();
+    /// let sol = Solver::new(&inst)
+    ///     .max_iterations(200)
+    ///     .lp_bound(LpBudget::rounds(20))
+    ///     .solve()
+    ///     .unwrap();
+    /// assert!(sol.lower_bound.value <= sol.cost);
+    /// assert!(sol.lp.is_some());
+    /// ```
+    pub fn lp_bound(mut self, budget: LpBudget) -> Self {
+        self.lp = Some(budget);
+        self
+    }
+
     /// Runs the search.
     ///
     /// # Errors
@@ -315,18 +366,34 @@ impl<'a> Solver<'a> {
                 routes: Vec::new(),
                 cost: 0,
             };
-            return Ok(self.finish(plan, lb, stats0(0, Duration::ZERO)));
+            let lp = self.lp.map(|_| LpOutcome::NotNeeded);
+            return Ok(self.finish(plan, lb, lp, stats0(0, Duration::ZERO)));
         }
+        let deadline = self.time_limit.map(|t| start + t);
+        let side = self.lp.map(|b| LpSide::start(inst, b, deadline));
         let neigh = neighbour_lists(&m, DEFAULT_NEIGHBOURS);
         let ctx = Ctx {
             m: &m,
             neigh: &neigh,
-            deadline: self.time_limit.map(|t| start + t),
+            deadline,
             stop: self.stop.clone(),
             stop_at: self.target.unwrap_or(Cost::MIN).max(lb.value),
             start,
         };
-        let (cost, routes, found_at, iterations) = self.evolve(&ctx, lb.value)?;
+        let running = side.as_ref().and_then(|s| s.as_ref().ok());
+        let bound_now = || match running.map(LpSide::current) {
+            Some(v) if v > lb.value => (v, LP_CUTS),
+            _ => (lb.value, lb.by),
+        };
+        let result = self.evolve(&ctx, &bound_now);
+        let stop_now = result.as_ref().map_or(true, |b| b.0 <= ctx.stop_at);
+        let lp = side.map(|s| match s {
+            Ok(s) => s
+                .finish(stop_now, self.stop.as_deref())
+                .map_or(LpOutcome::NotNeeded, LpOutcome::Ran),
+            Err(why) => LpOutcome::DoesNotApply(why),
+        });
+        let (cost, routes, found_at, iterations) = result?;
         let visits: Vec<Vec<crate::plan::Visit>> = routes
             .iter()
             .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
@@ -338,13 +405,17 @@ impl<'a> Solver<'a> {
             "the solver's plan fails the checker: {:?}",
             crate::check::check_plan(inst, &plan)
         );
-        Ok(self.finish(plan, lb, stats0(iterations, found_at)))
+        Ok(self.finish(plan, lb, lp, stats0(iterations, found_at)))
     }
 
     /// The islands' search: initial populations, then epochs until a limit,
     /// the target or the stop flag. Returns the best cost, its routes (task
     /// arcs), when it was found and the number of offspring.
-    fn evolve(&self, ctx: &Ctx<'_>, lower_bound: Cost) -> Result<Best, SolveError> {
+    fn evolve(
+        &self,
+        ctx: &Ctx<'_>,
+        bound_now: &dyn Fn() -> (Cost, &'static str),
+    ) -> Result<Best, SolveError> {
         let m = ctx.m;
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(self.workers)
@@ -382,11 +453,15 @@ impl<'a> Solver<'a> {
             })
             .collect();
         let mut iterations = 0u64;
+        let reported = std::cell::Cell::new(Cost::MIN);
         let report = |best: &(i64, Vec<Vec<u32>>, Duration), iterations| {
             if let Some(f) = &self.progress {
+                let (lower_bound, bound_by) = bound_now();
+                reported.set(lower_bound);
                 f(&Progress {
                     best_cost: best.0,
                     lower_bound,
+                    bound_by,
                     elapsed: ctx.start.elapsed(),
                     iteration: iterations,
                 });
@@ -424,14 +499,26 @@ impl<'a> Solver<'a> {
             for isl in islands.iter_mut() {
                 isl.receive(&best.1, best.0);
             }
-            if bi != usize::MAX {
+            if bi != usize::MAX || bound_now().0 > reported.get() {
                 report(&best, iterations);
             }
         }
         Ok((best.0, best.1, best.2, iterations))
     }
 
-    fn finish(&self, plan: Plan, lb: LowerBound, stats: Stats) -> Solution {
+    fn finish(
+        &self,
+        plan: Plan,
+        mut lb: LowerBound,
+        lp: Option<LpOutcome>,
+        stats: Stats,
+    ) -> Solution {
+        if let Some(LpOutcome::Ran(r)) = &lp {
+            if r.bound > lb.value {
+                lb = r.lower_bound();
+            }
+        }
+        debug_assert!(lb.value <= plan.cost, "bound {lb:?} above the plan's cost");
         let gap = if lb.value > 0 {
             100.0 * (plan.cost - lb.value) as f64 / lb.value as f64
         } else {
@@ -442,6 +529,7 @@ impl<'a> Solver<'a> {
             plan,
             lower_bound: lb,
             gap,
+            lp,
             stats,
         }
     }
