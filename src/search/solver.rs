@@ -278,7 +278,7 @@ impl<'a> Solver<'a> {
     /// progress reports carry the bound as it improves. It never changes the
     /// plan. When the search ends first, [`Solver::solve`] waits for the
     /// bound to use its budget, except when the plan already reached the
-    /// combinatorial bound or the [`Solver::target`]. Where the LP bound
+    /// combinatorial bound (it is then proven optimal). Where the LP bound
     /// does not apply ([`crate::bounds::lp::applies`]) the combinatorial
     /// bound is used alone and [`Solution::lp`] says why.
     ///
@@ -386,7 +386,8 @@ impl<'a> Solver<'a> {
             _ => (lb.value, lb.by),
         };
         let result = self.evolve(&ctx, &bound_now);
-        let stop_now = result.as_ref().map_or(true, |b| b.0 <= ctx.stop_at);
+        // A plan at the combinatorial bound is proven optimal: the LP has nothing to add.
+        let stop_now = result.as_ref().map_or(true, |b| b.0 <= lb.value);
         let lp = side.map(|s| match s {
             Ok(s) => s
                 .finish(stop_now, self.stop.as_deref())
