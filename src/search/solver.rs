@@ -478,7 +478,10 @@ impl<'a> Solver<'a> {
                     .for_each(|(isl, b)| {
                         let n = epoch.min(*b);
                         let done = isl.run(ctx, n);
-                        *b -= done;
+                        // An island that can do no iteration (its population
+                        // cannot reach two distinct plans: a tiny instance)
+                        // never will; without this the loop would spin.
+                        *b = if done == 0 { 0 } else { *b - done };
                     })
             });
             iterations = islands.iter().map(|i| i.iterations).sum();
