@@ -5,6 +5,7 @@ use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 
+use arcwright::bounds::lp::LP_CUTS;
 use arcwright::check::{check_plan, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
 use arcwright::io::plan_json::{
@@ -281,6 +282,9 @@ pub fn bound_method(solution: &arcwright::Solution) -> String {
     let by = solution.lower_bound.by;
     match &solution.lp {
         Some(LpOutcome::DoesNotApply(why)) => format!("{by}; the LP bound does not apply: {why}"),
+        Some(LpOutcome::Ran(r)) if r.bound == solution.lower_bound.value && by != LP_CUTS => {
+            format!("{by}; the LP bound reached the same")
+        }
         Some(LpOutcome::Ran(r)) if r.bound < solution.lower_bound.value => {
             format!("{by}; the LP bound reached {}", r.bound)
         }
