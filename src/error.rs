@@ -70,8 +70,8 @@ pub enum ParseProblem {
         /// The value found.
         value: i64,
     },
-    /// The depot was given twice.
-    #[error("depot given twice (first on line {first_line})")]
+    /// The yard (the research format's `DEPOSITO`) was given twice.
+    #[error("the yard (DEPOSITO) is given twice (first on line {first_line})")]
     DuplicateDepot {
         /// The line of the first one.
         first_line: usize,
@@ -157,8 +157,9 @@ pub enum ParseProblem {
         /// The largest value accepted.
         max: u64,
     },
-    /// A plan file serves a (from, to) pair that is not the required link it names.
-    #[error("route {route}, service {position}: ({from}, {to}) with link {link} is not a required link of the instance in an allowed direction")]
+    /// A plan file serves a (from, to) pair that is not the required street
+    /// (`link`) it names. Shown with trucks and services numbered from 1.
+    #[error("Truck {}, service {}: junctions {from} to {to} with `link` {link} is not a street to serve, in a direction it may be served", .route + 1, .position + 1)]
     NotARequiredLink {
         /// The route (0-based).
         route: usize,
@@ -171,8 +172,9 @@ pub enum ParseProblem {
         /// The link index the file gives (may be out of range).
         link: i64,
     },
-    /// A plan file serves the same required link twice.
-    #[error("route {route}, service {position}: link {link} is already served earlier")]
+    /// A plan file serves the same required street twice. Shown with trucks
+    /// and services numbered from 1.
+    #[error("Truck {}, service {}: street #{link} is already served earlier", .route + 1, .position + 1)]
     ServedTwice {
         /// The route (0-based).
         route: usize,

@@ -326,7 +326,7 @@ fn random_instance(seed: u64) -> Instance {
 fn cheapest_plan(inst: &Instance) -> Option<i64> {
     use arcwright::model::Dir;
     use arcwright::paths::{Distances, UNREACHABLE};
-    use arcwright::plan::{evaluate, Plan, Visit};
+    use arcwright::plan::{totals, Plan, Totals, Visit};
     let dist = Distances::new(inst).ok()?;
     let fleet = inst.fleet();
     let mut best: Option<i64> = None;
@@ -349,7 +349,7 @@ fn cheapest_plan(inst: &Instance) -> Option<i64> {
                         let v = Visit::new(t, dir);
                         let mut next = route.clone();
                         next.push(v);
-                        let (load, cost, time) = evaluate(inst, &dist, &next);
+                        let Totals { load, cost, time } = totals(inst, &dist, &next);
                         let fits = load <= fleet.capacity
                             && cost < UNREACHABLE
                             && fleet.shift_limit.is_none_or(|l| time <= l);

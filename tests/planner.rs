@@ -94,16 +94,6 @@ fn out_dir(name: &str) -> PathBuf {
     d
 }
 
-fn shared(rel: &str) -> Option<PathBuf> {
-    let p = Path::new(ROOT).join("../shared/instances").join(rel);
-    if p.exists() {
-        Some(p)
-    } else {
-        println!("SKIPPED: {} is absent", p.display());
-        None
-    }
-}
-
 fn demo() -> Instance {
     read_scenario_file(Path::new(ROOT).join(DEMO)).unwrap()
 }
@@ -257,7 +247,8 @@ fn the_demo_town_is_the_default() {
     ]);
     assert!(o.status.success(), "{:?}", text(&o));
     // A plan of another scenario fails the check with a non-zero exit code.
-    if let Some(gdb) = shared("gdb/gdb1.dat") {
+    if let Some(gdb) = common::shared_file("planner::the_demo_town_is_the_default", "gdb/gdb1.dat")
+    {
         let o = planner([
             "check".as_ref(),
             gdb.as_os_str(),
@@ -269,7 +260,10 @@ fn the_demo_town_is_the_default() {
 
 #[test]
 fn research_file_end_to_end_without_maps() {
-    let Some(gdb) = shared("gdb/gdb1.dat") else {
+    let Some(gdb) = common::shared_file(
+        "planner::research_file_end_to_end_without_maps",
+        "gdb/gdb1.dat",
+    ) else {
         return;
     };
     let dir = out_dir("planner-gdb1");
@@ -284,7 +278,14 @@ fn research_file_end_to_end_without_maps() {
     assert_eq!(csv_total(&dir, plan.routes.len()), plan.cost);
     // No valid plan is cheaper than the published lower bound listed in
     // ../shared/instances/reference.csv (its `source` column names the compilation).
-    let reference = arcwright::io::read_reference(shared("reference.csv").unwrap()).unwrap();
+    let reference = arcwright::io::read_reference(
+        common::shared_file(
+            "planner::research_file_end_to_end_without_maps",
+            "reference.csv",
+        )
+        .unwrap(),
+    )
+    .unwrap();
     let bound: i64 = reference
         .iter()
         .find(|r| r.set == "gdb" && r.instance == "gdb1")
@@ -303,7 +304,8 @@ fn research_file_end_to_end_without_maps() {
 
 #[test]
 fn fleet_overrides_reach_the_plan() {
-    let Some(gdb) = shared("gdb/gdb1.dat") else {
+    let Some(gdb) = common::shared_file("planner::fleet_overrides_reach_the_plan", "gdb/gdb1.dat")
+    else {
         return;
     };
     let dir = out_dir("planner-gdb1-cap");
@@ -420,6 +422,7 @@ fn tampered_plan_file(dir: &Path) -> (PathBuf, Vec<String>, Instance, Vec<Violat
         Violation::ServedTwice {
             task: 0,
             link: t[0].link,
+            street: inst.network().street_label(t[0].link),
             first: At { route: 0, pos: 0 },
             again: At {
                 route: 1,
@@ -429,6 +432,7 @@ fn tampered_plan_file(dir: &Path) -> (PathBuf, Vec<String>, Instance, Vec<Violat
         Violation::NotServed {
             task: n - 1,
             link: t[n - 1].link,
+            street: inst.network().street_label(t[n - 1].link),
         },
         Violation::WrongCost {
             route: 1,

@@ -12,7 +12,7 @@ use arcwright::io::plan_json::{
     read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
     RunSettings,
 };
-use arcwright::io::{read_dat_file, read_scenario, read_scenario_file, write_scenario};
+use arcwright::io::{detect_format, read_dat, read_scenario, read_text, write_scenario, Format};
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
@@ -41,7 +41,8 @@ pub struct Loaded {
 /// `.geojson`), built with the map options; a research-format file when the
 /// name ends in `.dat` (any case), our JSON scenario format when it ends in
 /// `.json`, and for other names whichever the text looks like (JSON starts
-/// with `{`). Fleet overrides are applied and the result revalidated.
+/// with `{`, after any byte-order mark; [`detect_format`]). Fleet overrides
+/// are applied and the result revalidated.
 pub fn load_scenario(path: &Path, fleet: &FleetArgs, map: &MapArgs) -> Result<Loaded, AppError> {
     if arcwright::map::map_format(path).is_some() {
         let options = MapOptions::from_args(map.profile.as_deref(), map.yard.as_deref())
@@ -66,25 +67,15 @@ pub fn load_scenario(path: &Path, fleet: &FleetArgs, map: &MapArgs) -> Result<Lo
     })
 }
 
+/// Reads a scenario file with the reader [`detect_format`] picks: the
+/// research format when the name ends in `.dat` (any case), our JSON
+/// scenario format when it ends in `.json`, and for other names whichever the
+/// text looks like (JSON starts with `{`, after any byte-order mark).
 fn read_scenario_or_dat(path: &Path, fleet: &FleetArgs) -> Result<Instance, AppError> {
-    let ext = path
-        .extension()
-        .map(|e| e.to_string_lossy().to_ascii_lowercase());
-    let is_dat = match ext.as_deref() {
-        Some("dat") => true,
-        Some("json") => false,
-        // Unreadable files fall through to the JSON reader, which names them.
-        _ => std::fs::read(path).is_ok_and(|b| {
-            let b = b.strip_prefix("\u{feff}".as_bytes()).unwrap_or(&b);
-            b.iter()
-                .find(|c| !c.is_ascii_whitespace())
-                .is_some_and(|&c| c != b'{')
-        }),
-    };
-    let inst = if is_dat {
-        read_dat_file(path).map_err(AppError::Input)?.instance
-    } else {
-        read_scenario_file(path).map_err(AppError::Input)?
+    let (name, text) = read_text(path).map_err(AppError::Input)?;
+    let inst = match detect_format(&text, &name) {
+        Format::Dat => read_dat(&text, &name).map_err(AppError::Input)?.instance,
+        Format::Scenario => read_scenario(&text, &name).map_err(AppError::Input)?,
     };
     fleet.apply(inst).map_err(AppError::Fleet)
 }
@@ -222,7 +213,9 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         .stop
         .clone()
         .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
+    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let mut solver = Solver::new(&inst)
+        .distances(&dist)
         .seed(opts.seed)
         .workers(opts.effective_workers())
         .stop_flag(stop.clone());
@@ -240,7 +233,6 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
     }
     let solution = solver.solve().map_err(AppError::Solve)?;
     let stopped_early = stop.load(Ordering::SeqCst);
-    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let extras = SummaryExtras {
         lower_bound: Some((solution.lower_bound.value, bound_method(&solution))),
         gap_percent: Some(solution.gap),

@@ -2,8 +2,6 @@
 //! format, plan files, and the table of published benchmark values.
 
 pub mod dat;
-// Owned by the planner branch (issue 8), which documents its errors.
-#[allow(clippy::missing_errors_doc)]
 pub mod plan_json;
 pub mod reference;
 pub mod scenario;

@@ -233,7 +233,7 @@ struct FleetRec {
 
 /// One step of a JSON path.
 #[derive(Clone, Debug)]
-enum Seg {
+pub(crate) enum Seg {
     Key(&'static str),
     Index(usize),
 }
@@ -262,7 +262,7 @@ pub(crate) fn line_of_key(text: &str, key: &'static str) -> Option<usize> {
 
 /// Finds the line where the value at `path` starts, in text that serde_json
 /// has already accepted. `None` when it cannot be found.
-fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
+pub(crate) fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
     let mut sc = Scan {
         b: text.as_bytes(),
         i: 0,
@@ -435,7 +435,9 @@ pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
 /// its line, with the column), a wrong `format` or `version`, and then each
 /// problem of the content at its JSON path and line: a junction id given
 /// twice or unknown, a number above [`MAX_NUMBER`], a negative shift limit,
-/// or an invalid instance ([`ParseProblem::Model`]).
+/// a junction's coordinates outside the declared system
+/// ([`ParseProblem::Coordinate`], every such junction), or an invalid
+/// instance ([`ParseProblem::Model`]).
 ///
 /// # Complexity
 /// `O(L + V + E)` for `L` bytes of text, `V` junctions and `E` streets
@@ -499,6 +501,9 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             (None, None)
         }
     };
+    if let Some(system) = system {
+        c.coordinates(&junctions, system);
+    }
     let (Some(depot), Some(units), Some(system), true) =
         (depot, units, system, c.problems.is_empty())
     else {
@@ -518,19 +523,10 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             return Err(c.problems.failed());
         }
     };
+    // The coordinates were checked above; this cannot fail.
     inst.with_units(units)
         .with_coordinates(system)
-        .map_err(|(j, e)| {
-            let axis = if matches!(e.axis, "x" | "longitude") {
-                "x"
-            } else {
-                "y"
-            };
-            c.error_at(
-                vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
-                ParseProblem::Coordinate(e),
-            )
-        })
+        .map_err(|(j, e)| c.coordinate_error(j, e))
 }
 
 /// The problems of one scenario text, each at its JSON path and line.
@@ -551,6 +547,33 @@ impl Collect<'_> {
                 problem: Box::new(problem),
             },
         )
+    }
+
+    /// The problem of junction `j`'s coordinates, at `junctions[j].x` or
+    /// `junctions[j].y`.
+    fn coordinate_error(&self, j: usize, e: crate::model::CoordError) -> Error {
+        let axis = if matches!(e.axis, "x" | "longitude") {
+            "x"
+        } else {
+            "y"
+        };
+        self.error_at(
+            vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
+            ParseProblem::Coordinate(e),
+        )
+    }
+
+    /// Checks every junction's coordinates against the declared `system`
+    /// and records a problem for each junction that cannot be in it.
+    fn coordinates(&mut self, junctions: &[Junction], system: Coordinates) {
+        for (i, j) in junctions.iter().enumerate() {
+            if let (Some(x), Some(y)) = (j.x, j.y) {
+                if let Err(e) = system.check_point(x, y) {
+                    let e = self.coordinate_error(i, e);
+                    self.problems.push(e);
+                }
+            }
+        }
     }
 
     /// Records `problem` at `path`.

@@ -61,6 +61,9 @@ pub enum LpOutcome {
     DoesNotApply(Why),
     /// There was nothing to bound (no street to serve).
     NotNeeded,
+    /// The bound's thread failed (a defect): the combinatorial bound was
+    /// used alone.
+    Failed,
 }
 
 /// The running bound thread.

@@ -309,7 +309,10 @@ impl<'a> Solver<'a> {
         self
     }
 
-    /// Runs the search.
+    /// Runs the search. The plan returned passes [`crate::check::check_plan`],
+    /// serves every self-loop (a street whose two ends are one junction)
+    /// [`crate::model::Dir::Forward`] ([`Plan::self_loops_forward`]), and
+    /// reads back equal after [`crate::io::write_plan`].
     ///
     /// # Errors
     /// [`SolveError`] when no plan can be made: the shortest paths or the
@@ -391,7 +394,7 @@ impl<'a> Solver<'a> {
         let lp = side.map(|s| match s {
             Ok(s) => s
                 .finish(stop_now, self.stop.as_deref())
-                .map_or(LpOutcome::NotNeeded, LpOutcome::Ran),
+                .map_or(LpOutcome::Failed, LpOutcome::Ran),
             Err(why) => LpOutcome::DoesNotApply(why),
         });
         let (cost, routes, found_at, iterations) = result?;
@@ -399,7 +402,10 @@ impl<'a> Solver<'a> {
             .iter()
             .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
             .collect();
-        let plan = Plan::from_visits(inst, dist, visits);
+        // A self-loop served either way is the same drive, but a plan file
+        // can state only one direction for it: return the one it reads back
+        // as, so every plan returned writes and reads back identically.
+        let plan = Plan::from_visits(inst, dist, visits).self_loops_forward(inst);
         debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
         debug_assert!(
             crate::check::check_plan(inst, &plan).is_ok(),
