@@ -276,7 +276,8 @@ impl<'a> Solver<'a> {
     /// time limit and its stop flag (whichever ends first). The solution
     /// then reports the higher of the combinatorial and the LP bound, and
     /// progress reports carry the bound as it improves. It never changes the
-    /// plan. When the search ends first, [`Solver::solve`] waits for the
+    /// plan; without an iteration limit, a plan that reaches the LP bound
+    /// ends the search early (it is proven optimal). When the search ends first, [`Solver::solve`] waits for the
     /// bound to use its budget, except when the plan already reached the
     /// combinatorial bound (it is then proven optimal). Where the LP bound
     /// does not apply ([`crate::bounds::lp::applies`]) the combinatorial
@@ -475,7 +476,15 @@ impl<'a> Solver<'a> {
             }
         };
         report(&best, 0);
-        while best.0 > ctx.stop_at && !ctx.should_stop() && budget.iter().any(|&b| b > 0) {
+        // Without an iteration limit, a plan at the LP bound is proven
+        // optimal and ends the search (with one, the run's iteration count
+        // stays independent of the bound thread's timing).
+        let proven = |cost: Cost| self.max_iterations.is_none() && cost <= bound_now().0;
+        while best.0 > ctx.stop_at
+            && !proven(best.0)
+            && !ctx.should_stop()
+            && budget.iter().any(|&b| b > 0)
+        {
             let epoch = self.epoch;
             pool.install(|| {
                 islands
