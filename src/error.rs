@@ -191,6 +191,22 @@ pub enum ParseProblem {
         /// What the input has instead.
         found: String,
     },
+    /// Two fields that exclude each other are both given.
+    #[error("`{given}` and `{other}` are both given; give one of them")]
+    Conflict {
+        /// The field found.
+        given: &'static str,
+        /// The field it excludes.
+        other: &'static str,
+    },
+    /// A name that refers to nothing (a truck type's yard, say).
+    #[error("no {what} is named `{name}`")]
+    UnknownName {
+        /// What kind of thing was named ("yard", "truck type", "dump site").
+        what: &'static str,
+        /// The name given.
+        name: String,
+    },
     /// A junction coordinate that cannot be in the scenario's declared
     /// coordinate system (not finite, a latitude beyond ±90°, ...).
     #[error("{0}")]

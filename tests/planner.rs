@@ -818,3 +818,46 @@ fn the_plan_reports_the_lp_bound_and_which_bound_it_is() {
     assert!(stdout.contains(method), "{stdout}");
     assert!(j["lower_bound"].as_i64().unwrap() <= j["cost"].as_i64().unwrap());
 }
+
+/// A scenario with two yards, a landfill and two truck types is planned by
+/// the fleet solver: the plan file records every tip and reads back as a
+/// checked fleet plan, the sheets say where to tip; fleet overrides that
+/// would not reach the truck types are refused.
+#[test]
+fn plans_a_scenario_with_dump_sites_and_truck_types() {
+    use arcwright::check::fleet::check_fleet_plan;
+    use arcwright::io::{read_fleet_plan, read_scenario_file};
+    let scenario = "tests/fixtures/fleet/two_yards.json";
+    let dir = out_dir("planner-fleet");
+    let out = dir.join("out");
+    let stdout = plan_ok(&[scenario, "--iterations", "20"], &out);
+    assert!(stdout.contains("tips"), "{stdout}");
+    let inst = read_scenario_file(Path::new(ROOT).join(scenario)).unwrap();
+    let json = std::fs::read_to_string(out.join("plan.json")).unwrap();
+    let plan = read_fleet_plan(&json, "plan.json", &inst).unwrap();
+    assert!(check_fleet_plan(&inst, &plan).is_ok());
+    assert!(
+        plan.tips() >= plan.routes.len(),
+        "every truck returns empty"
+    );
+    let sheets = std::fs::read_to_string(out.join("sheets.md")).unwrap();
+    assert_eq!(sheets.matches("tip at Landfill").count(), plan.tips());
+    let o = planner(
+        [
+            scenario,
+            "--iterations",
+            "20",
+            "--capacity",
+            "5",
+            "--quiet",
+            "--out",
+        ]
+        .iter()
+        .map(std::ffi::OsString::from)
+        .chain([dir.join("other").into_os_string()]),
+    );
+    assert!(!o.status.success());
+    assert!(text(&o)
+        .1
+        .contains("do not apply to a scenario with truck_types"));
+}

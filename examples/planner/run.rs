@@ -6,16 +6,20 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 
 use arcwright::bounds::lp::LP_CUTS;
+use arcwright::check::fleet::check_fleet_plan;
 use arcwright::check::{check_plan, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
+use arcwright::fleet::FleetSolver;
 use arcwright::io::plan_json::{
     read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
     RunSettings,
 };
 use arcwright::io::{detect_format, read_dat, read_scenario, read_text, write_scenario, Format};
+use arcwright::io::{read_fleet_plan, write_fleet_plan};
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
+use arcwright::report::fleet::fleet_markdown;
 use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
 use arcwright::{LpOutcome, Progress, Solver};
 
@@ -213,6 +217,12 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         .stop
         .clone()
         .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
+    if !inst.operations().is_plain(&inst) {
+        let (map_report, osm) = (loaded.map_report, loaded.osm);
+        let mut run = run_fleet_plan(opts, &inst, source, osm)?;
+        run.map_report = map_report;
+        return Ok(run);
+    }
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let mut solver = Solver::new(&inst)
         .distances(&dist)
@@ -282,6 +292,90 @@ pub fn bound_method(solution: &arcwright::Solution) -> String {
         }
         _ => by.to_string(),
     }
+}
+
+/// Plans a scenario with dump sites, several yards, truck types or
+/// balancing with the fleet solver (iteration limit and seed as given; no
+/// time limit or stop flag: it runs to its limits), checks the plan
+/// independently and writes `plan.json` (every tip recorded) and
+/// `sheets.md` (with "tip at ..., unload ...").
+fn run_fleet_plan(
+    opts: &PlanArgs,
+    inst: &Instance,
+    source: String,
+    osm: bool,
+) -> Result<PlanRun, AppError> {
+    let f = &opts.fleet;
+    let overrides = f.capacity.is_some() || f.shift_limit.is_some() || f.max_trucks.is_some();
+    if overrides && !inst.operations().truck_types.is_empty() {
+        return Err(AppError::Usage(
+            "--capacity, --shift-limit and --max-trucks do not apply to a scenario with truck_types: change the truck types in the scenario".into(),
+        ));
+    }
+    let mut solver = FleetSolver::new(inst)
+        .seed(opts.seed)
+        .workers(opts.effective_workers());
+    if let Some(n) = opts.iterations {
+        solver = solver.max_iterations(n);
+    }
+    let sol = solver.solve().map_err(AppError::FleetSolve)?;
+    if let Err(v) = check_fleet_plan(inst, &sol.plan) {
+        return Err(AppError::Refused(v.iter().map(|x| x.to_string()).collect()));
+    }
+    let json = write_fleet_plan(inst, &sol.plan);
+    if read_fleet_plan(&json, "plan.json", inst).ok().as_ref() != Some(&sol.plan) {
+        return Err(AppError::Internal(
+            "the fleet plan file does not read back".into(),
+        ));
+    }
+    let sheets = fleet_markdown(inst, &sol.plan);
+    let u = inst.units();
+    let (long, short) = sol.shift_spread;
+    let summary = format!(
+        "{}: cost {} (lower bound {}, {}), {} trucks, {} trips, {} tips, shifts {} to {}\n\nCautions:\n{}\n",
+        inst.name,
+        u.cost_text(sol.cost),
+        u.cost_text(sol.lower_bound.value),
+        sol.lower_bound.by,
+        sol.plan.routes.len(),
+        sol.plan.trips(),
+        sol.plan.tips(),
+        u.time_text(short),
+        u.time_text(long),
+        arcwright::report::CAUTIONS
+            .iter()
+            .map(|c| format!("- {c}"))
+            .collect::<Vec<_>>()
+            .join("\n")
+    );
+    let mut files = vec![
+        OutputFile {
+            name: "plan.json".into(),
+            contents: json,
+        },
+        OutputFile {
+            name: "sheets.md".into(),
+            contents: sheets,
+        },
+        OutputFile {
+            name: "summary.txt".into(),
+            contents: summary.clone(),
+        },
+    ];
+    let mut summary = summary;
+    if osm {
+        attribute_osm(&mut files);
+        summary.push_str(&format!("\n{OSM_ATTRIBUTION}\n"));
+    }
+    let files = write_files(&opts.out, &files)?;
+    Ok(PlanRun {
+        source,
+        map_report: None,
+        saved_scenario: opts.save_scenario.clone(),
+        stopped_early: false,
+        summary,
+        files,
+    })
 }
 
 /// The attribution OpenStreetMap's licence asks of anything made from its data.

@@ -19,6 +19,11 @@
 //! paths: they stay valid for mixed networks, one-way links and Forward-only
 //! tasks. [`imbalance_flow_bound`] uses directions and is applied only when
 //! every task has a fixed service direction.
+//!
+//! These bounds assume the plain model (one yard, trucks that never tip).
+//! Which of them stay valid with dump sites, several yards and truck types,
+//! and the bound the fleet solver reports then, is in
+//! [`crate::fleet::bound`].
 
 mod capacity;
 pub mod lp;

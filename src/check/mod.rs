@@ -50,6 +50,8 @@
 //! assert_eq!(v[0].to_string(), "Truck 1: the plan states cost 15, but the route costs 16");
 //! ```
 
+pub mod fleet;
+
 use std::cmp::Reverse;
 use std::collections::{BTreeMap, BinaryHeap};
 use std::fmt;

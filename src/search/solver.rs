@@ -150,6 +150,11 @@ pub enum SolveError {
         /// Fewest routes of any plan the constructions found.
         fewest_found: usize,
     },
+    /// The instance has dump sites, several yards, truck types or a balance
+    /// setting ([`crate::model::Operations`]), which this solver does not
+    /// know: use [`crate::fleet::FleetSolver`].
+    #[error("the scenario has dump sites, several yards, truck types or balancing: plan it with the fleet solver")]
+    NeedsFleetSolver,
     /// A task cannot be served on a route of its own within capacity and shift.
     #[error(
         "{street} cannot be served even on a route of its own within the capacity and shift limit"
@@ -343,6 +348,9 @@ impl<'a> Solver<'a> {
     pub fn solve(self) -> Result<Solution, SolveError> {
         let start = Instant::now();
         let inst = self.inst;
+        if !inst.operations().is_plain(inst) {
+            return Err(SolveError::NeedsFleetSolver);
+        }
         let owned;
         let dist = match self.dist {
             Some(d) if d.serves(inst) => d,
