@@ -1,6 +1,6 @@
 //! Route sheets of fleet plans (routes with tips, truck types and yards), in
 //! Markdown: one section per truck listing its stops in order, each tip as
-//! "tip at <site>, unload <time>".
+//! "tip at `SITE`, unload `TIME`".
 
 use std::fmt::Write as _;
 

@@ -482,18 +482,7 @@ impl<'a> Solver<'a> {
                 let lp = self.lp.map(|_| LpOutcome::NotNeeded);
                 return Ok(self.finish(plan, lb, lp, stats0(0, Duration::ZERO)));
             }
-            let cand = if m.n > LISTED_FROM {
-                candidate_lists(inst, &m, CANDIDATES)
-            } else {
-                Vec::new()
-            };
-            let neigh = if cand.is_empty() {
-                neighbour_lists(&m, DEFAULT_NEIGHBOURS)
-            } else {
-                cand.iter()
-                    .map(|c| c[..c.len().min(DEFAULT_NEIGHBOURS)].to_vec())
-                    .collect()
-            };
+            let (cand, neigh) = candidates_and_neighbours(inst, &m);
             let deadline = self.time_limit.map(|t| start + t);
             let side = self.lp.map(|b| LpSide::start(inst, b, deadline));
             let ctx = Ctx {
@@ -527,20 +516,7 @@ impl<'a> Solver<'a> {
                 Err(why) => LpOutcome::DoesNotApply(why),
             });
             let (cost, routes, found_at, iterations) = result?;
-            let visits: Vec<Vec<crate::plan::Visit>> = routes
-                .iter()
-                .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
-                .collect();
-            // A self-loop served either way is the same drive, but a plan file
-            // can state only one direction for it: return the one it reads back
-            // as, so every plan returned writes and reads back identically.
-            let plan = Plan::from_visits(inst, dist, visits).self_loops_forward(inst);
-            debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
-            debug_assert!(
-                crate::check::check_plan(inst, &plan).is_ok(),
-                "the solver's plan fails the checker: {:?}",
-                crate::check::check_plan(inst, &plan)
-            );
+            let plan = plan_of(inst, dist, &routes, cost);
             Ok(self.finish(plan, lb, lp, stats0(iterations, found_at)))
         })
     }
@@ -804,6 +780,44 @@ impl<'a> Solver<'a> {
 
 /// Routes as task arcs.
 type Routes = Vec<Vec<u32>>;
+
+/// Candidate lists for the listed construction (empty below
+/// [`LISTED_FROM`] streets) and the local search's neighbour lists (the
+/// first candidates when there are candidate lists).
+fn candidates_and_neighbours(inst: &Instance, m: &ArcMatrix) -> (Routes, Routes) {
+    let cand = if m.n > LISTED_FROM {
+        candidate_lists(inst, m, CANDIDATES)
+    } else {
+        Vec::new()
+    };
+    let neigh = if cand.is_empty() {
+        neighbour_lists(m, DEFAULT_NEIGHBOURS)
+    } else {
+        cand.iter()
+            .map(|c| c[..c.len().min(DEFAULT_NEIGHBOURS)].to_vec())
+            .collect()
+    };
+    (cand, neigh)
+}
+
+/// The plan of the search's routes (task arcs) of matrix cost `cost`.
+fn plan_of(inst: &Instance, dist: &Distances, routes: &Routes, cost: i64) -> Plan {
+    let visits: Vec<Vec<crate::plan::Visit>> = routes
+        .iter()
+        .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
+        .collect();
+    // A self-loop served either way is the same drive, but a plan file can
+    // state only one direction for it: return the one it reads back as, so
+    // every plan returned writes and reads back identically.
+    let plan = Plan::from_visits(inst, dist, visits).self_loops_forward(inst);
+    debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
+    debug_assert!(
+        crate::check::check_plan(inst, &plan).is_ok(),
+        "the solver's plan fails the checker: {:?}",
+        crate::check::check_plan(inst, &plan)
+    );
+    plan
+}
 
 /// Best cost, its routes (task arcs), when it was found, offspring made.
 type Best = (i64, Vec<Vec<u32>>, Duration, u64);
