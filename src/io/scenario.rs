@@ -14,6 +14,7 @@
 //! | `yard` | integer | id of the junction the trucks leave from and return to (the depot) |
 //! | `fleet` | object | `{ "capacity": integer, "shift_limit": integer?, "max_trucks": integer? }` |
 //! | `turn_restrictions` | array, optional | `{ "rule": string, "from_street": integer, "via": id, "to_street": integer }`, see below |
+//! | `turn_rules` | object, optional | `{ "driving_side": "right" \| "left", "u_turns": "dead_ends_only" \| "allowed", "penalties": { "straight": integer, "right": integer, "left": integer, "u_turn": integer }, "obey_restrictions": bool }`, every field optional (defaults `"right"`, `"dead_ends_only"`, all penalties 0, `true`); see [`crate::turns`]. Absent: trucks turn freely and pay nothing (the plan is exactly that of a file without it) |
 //!
 //! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
 //! "length": integer?, "drive_time": integer?, "name": string?, "class":
@@ -33,8 +34,8 @@
 //! system; without it maps draw a straight line. Unknown fields are rejected,
 //! so a misspelt field is an error, not silently ignored.
 //!
-//! A turn restriction (read from OpenStreetMap `type=restriction` relations
-//! and kept for turn-aware routing; the solver does not use them yet) says
+//! A turn restriction (read from OpenStreetMap `type=restriction` relations,
+//! or written by the planner; obeyed when the scenario has `turn_rules`) says
 //! that a truck arriving at junction `via` along street number `from_street`
 //! (0-based position in `streets`) may not turn into street `to_street`
 //! (`rule` starting with `no_`, such as `"no_left_turn"`), or may only turn
@@ -124,6 +125,8 @@ struct FileRec {
     fleet: FleetRec,
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     turn_restrictions: Vec<TurnRec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    turn_rules: Option<crate::turns::TurnRules>,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -518,7 +521,9 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             return Err(c.problems.failed());
         }
     };
-    inst.with_units(units)
+    let rules = rec.turn_rules;
+    let inst = inst
+        .with_units(units)
         .with_coordinates(system)
         .map_err(|(j, e)| {
             let axis = if matches!(e.axis, "x" | "longitude") {
@@ -530,7 +535,32 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
                 vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
                 ParseProblem::Coordinate(e),
             )
-        })
+        })?;
+    inst.with_turn_rules(rules).map_err(|all| {
+        for e in all {
+            let path = turn_error_path(&e);
+            c.at(path, ParseProblem::Turn(e));
+        }
+        c.problems.failed()
+    })
+}
+
+/// Where in the scenario a turn-rule problem is.
+fn turn_error_path(e: &crate::turns::TurnError) -> Vec<Seg> {
+    use crate::turns::TurnError;
+    match e {
+        TurnError::NotMeeting { index, .. } => {
+            vec![Seg::Key("turn_restrictions"), Seg::Index(*index)]
+        }
+        TurnError::NegativePenalty { which, .. } => {
+            vec![
+                Seg::Key("turn_rules"),
+                Seg::Key("penalties"),
+                Seg::Key(which),
+            ]
+        }
+        TurnError::NoWayOut { link, .. } => vec![Seg::Key("streets"), Seg::Index(*link)],
+    }
 }
 
 /// The problems of one scenario text, each at its JSON path and line.
@@ -895,6 +925,7 @@ pub fn write_scenario(inst: &Instance) -> String {
                 to_street: t.to,
             })
             .collect(),
+        turn_rules: inst.turn_rules().copied(),
     };
     // Plain structs of integers, strings, booleans and finite floats always
     // serialize; a failure here would be a bug in this function.

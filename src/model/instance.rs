@@ -169,6 +169,7 @@ pub struct Instance {
     fleet: Fleet,
     depot: usize,
     tasks: Vec<Task>,
+    turns: Option<crate::turns::TurnRules>,
 }
 
 impl Instance {
@@ -249,6 +250,7 @@ impl Instance {
             fleet,
             depot,
             tasks,
+            turns: None,
         };
         if problems.is_empty() {
             inst.check_reachable(&mut problems);
@@ -364,6 +366,7 @@ impl Instance {
         Ok(Instance {
             units: self.units.clone(),
             coordinates: self.coordinates,
+            turns: self.turns,
             ..inst
         })
     }
@@ -376,6 +379,30 @@ impl Instance {
     /// The instance with these units declared.
     pub fn with_units(self, units: Units) -> Instance {
         Instance { units, ..self }
+    }
+
+    /// The turn rules, when the scenario sets them (`None`: trucks turn
+    /// freely and pay nothing for turns, as in the public research sets).
+    pub fn turn_rules(&self) -> Option<&crate::turns::TurnRules> {
+        self.turns.as_ref()
+    }
+
+    /// The instance with these turn rules, after checking that they can be
+    /// used (see [`crate::turns::TurnTable::new`]).
+    ///
+    /// # Errors
+    /// Every [`crate::turns::TurnError`] found.
+    pub fn with_turn_rules(
+        self,
+        rules: Option<crate::turns::TurnRules>,
+    ) -> Result<Instance, Vec<crate::turns::TurnError>> {
+        if let Some(r) = &rules {
+            crate::turns::TurnTable::new(&self, r)?;
+        }
+        Ok(Instance {
+            turns: rules,
+            ..self
+        })
     }
 
     /// The coordinate system of the junctions' `x` and `y`.

@@ -50,6 +50,7 @@ use crate::paths::{DistanceError, Distances};
 use crate::plan::Plan;
 use crate::search::crossover::order_crossover;
 use crate::search::population::{Individual, Params, Population};
+use crate::turns::{TurnDistances, TurnTable};
 
 /// Progress report, sent when the best plan improves.
 #[derive(Clone, Debug)]
@@ -98,6 +99,9 @@ pub struct Solution {
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum SolveError {
+    /// The scenario's turn rules cannot be used.
+    #[error("turn rules: {}", .0.iter().map(|e| e.to_string()).collect::<Vec<_>>().join("; "))]
+    TurnRules(Vec<crate::turns::TurnError>),
     /// The shortest paths could not be computed or stored.
     #[error("shortest paths: {0}")]
     Distances(#[from] DistanceError),
@@ -301,8 +305,17 @@ impl<'a> Solver<'a> {
                 &owned
             }
         };
+        // Turn costs dropped is a relaxation (penalties are not negative and
+        // bans only remove ways), so the bound without turns stays valid.
         let lb = bound(inst, dist);
-        let m = prepare(inst, dist)?;
+        let turned = match inst.turn_rules() {
+            Some(rules) => {
+                let table = TurnTable::new(inst, rules).map_err(SolveError::TurnRules)?;
+                Some(TurnDistances::new(inst, &table))
+            }
+            None => None,
+        };
+        let m = prepare(inst, dist, turned.as_ref())?;
         let stats0 = |iterations, ttb| Stats {
             iterations,
             elapsed: start.elapsed(),
@@ -331,7 +344,10 @@ impl<'a> Solver<'a> {
             .iter()
             .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
             .collect();
-        let plan = Plan::from_visits(inst, dist, visits);
+        let plan = match &turned {
+            Some(td) => crate::turns::plan_from_visits(inst, td, visits),
+            None => Plan::from_visits(inst, dist, visits),
+        };
         debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
         debug_assert!(
             crate::check::check_plan(inst, &plan).is_ok(),
@@ -453,8 +469,16 @@ type Best = (i64, Vec<Vec<u32>>, Duration, u64);
 /// The arc matrices, after the checks that make the search sound: entries
 /// fit, no route can reach [`BIG`], every street fits a route of its own and
 /// the fleet bound can carry the total demand.
-fn prepare(inst: &Instance, dist: &Distances) -> Result<ArcMatrix, SolveError> {
-    let m = ArcMatrix::new(inst, dist).map_err(|e| SolveError::MatrixOverflow {
+fn prepare(
+    inst: &Instance,
+    dist: &Distances,
+    turned: Option<&TurnDistances>,
+) -> Result<ArcMatrix, SolveError> {
+    let m = match turned {
+        Some(td) => ArcMatrix::with_turns(inst, td),
+        None => ArcMatrix::new(inst, dist),
+    }
+    .map_err(|e| SolveError::MatrixOverflow {
         value: e.value,
         limit: MAX_LEG,
     })?;
