@@ -51,6 +51,8 @@ struct Row {
     iterations: u64,
 }
 
+const USAGE: &str = "usage: bench_sets [--time SECS] [--seed N] [--workers W] [--out DIR] [--reference FILE] [--iterations N] DIR...";
+
 fn main() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
     let mut time = 2.0f64;
@@ -70,11 +72,19 @@ fn main() {
             "--iterations" => iterations = Some(val().parse().expect("--iterations N")),
             "--out" => out = PathBuf::from(val()),
             "--reference" => reference = PathBuf::from(val()),
+            "-h" | "--help" => {
+                println!("{USAGE}");
+                return;
+            }
+            s if s.starts_with('-') => {
+                eprintln!("bench_sets: unknown option {s}\n{USAGE}");
+                std::process::exit(2);
+            }
             _ => dirs.push(PathBuf::from(a)),
         }
     }
     if dirs.is_empty() {
-        eprintln!("usage: bench_sets [--time SECS] [--seed N] [--workers W] [--out DIR] [--reference FILE] [--iterations N] DIR...");
+        eprintln!("{USAGE}");
         std::process::exit(2);
     }
     let refs = read_reference(&reference);

@@ -70,8 +70,8 @@ pub enum ParseProblem {
         /// The value found.
         value: i64,
     },
-    /// The depot was given twice.
-    #[error("depot given twice (first on line {first_line})")]
+    /// The yard (the research format's `DEPOSITO`) was given twice.
+    #[error("the yard (DEPOSITO) is given twice (first on line {first_line})")]
     DuplicateDepot {
         /// The line of the first one.
         first_line: usize,
@@ -160,8 +160,9 @@ pub enum ParseProblem {
         /// The largest value accepted.
         max: u64,
     },
-    /// A plan file serves a (from, to) pair that is not the required link it names.
-    #[error("route {route}, service {position}: ({from}, {to}) with link {link} is not a required link of the instance in an allowed direction")]
+    /// A plan file serves a (from, to) pair that is not the required street
+    /// (`link`) it names. Shown with trucks and services numbered from 1.
+    #[error("Truck {}, service {}: junctions {from} to {to} with `link` {link} is not a street to serve, in a direction it may be served", .route + 1, .position + 1)]
     NotARequiredLink {
         /// The route (0-based).
         route: usize,
@@ -174,8 +175,9 @@ pub enum ParseProblem {
         /// The link index the file gives (may be out of range).
         link: i64,
     },
-    /// A plan file serves the same required link twice.
-    #[error("route {route}, service {position}: link {link} is already served earlier")]
+    /// A plan file serves the same required street twice. Shown with trucks
+    /// and services numbered from 1.
+    #[error("Truck {}, service {}: street #{link} is already served earlier", .route + 1, .position + 1)]
     ServedTwice {
         /// The route (0-based).
         route: usize,
@@ -191,6 +193,22 @@ pub enum ParseProblem {
         expected: String,
         /// What the input has instead.
         found: String,
+    },
+    /// Two fields that exclude each other are both given.
+    #[error("`{given}` and `{other}` are both given; give one of them")]
+    Conflict {
+        /// The field found.
+        given: &'static str,
+        /// The field it excludes.
+        other: &'static str,
+    },
+    /// A name that refers to nothing (a truck type's yard, say).
+    #[error("no {what} is named `{name}`")]
+    UnknownName {
+        /// What kind of thing was named ("yard", "truck type", "dump site").
+        what: &'static str,
+        /// The name given.
+        name: String,
     },
     /// A junction coordinate that cannot be in the scenario's declared
     /// coordinate system (not finite, a latitude beyond ±90°, ...).

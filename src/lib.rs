@@ -11,7 +11,8 @@
 //! (single-tour routes and lower bounds), [`search`] (the fleet solver,
 //! [`Solver`]; its internals `construct` and `improve` are crate-private,
 //! public only with the non-default `internals` feature for the kernel
-//! benchmarks), [`map`] (OpenStreetMap and GeoJSON street maps in), [`demo`]
+//! benchmarks), [`map`] (OpenStreetMap and GeoJSON street maps in),
+//! [`fleet`] (dump sites, several yards, truck types and balanced shifts), [`demo`]
 //! and [`report`] (demo towns and outputs for people, rendered as text). The
 //! `planner` program that writes them into a folder is an example
 //! (`examples/planner/`), not library API.
@@ -53,6 +54,7 @@ pub mod check;
 internal_mod!(construct);
 pub mod demo;
 pub mod error;
+pub mod fleet;
 // Solver internals: local search and Merge-Split.
 internal_mod!(improve);
 pub mod io;

@@ -191,6 +191,7 @@ fn rejects_each_plan_violation() {
             at: at(0, 2),
             task: 2,
             link: 3,
+            street: inst.network().street_label(3),
         }],
     );
 
@@ -205,6 +206,7 @@ fn rejects_each_plan_violation() {
         vec![Violation::ServedTwice {
             task: 0,
             link: 0,
+            street: inst.network().street_label(0),
             first: at(0, 0),
             again: at(0, 1),
         }],
@@ -213,7 +215,15 @@ fn rejects_each_plan_violation() {
     let mut p = three_trucks();
     p.routes.pop();
     p.cost = 13;
-    rejects(&inst, &p, vec![Violation::NotServed { task: 2, link: 3 }]);
+    rejects(
+        &inst,
+        &p,
+        vec![Violation::NotServed {
+            task: 2,
+            link: 3,
+            street: inst.network().street_label(3),
+        }],
+    );
 
     let small = town(Fleet {
         capacity: 8,
@@ -346,6 +356,7 @@ fn rejects_each_walk_violation() {
         vec![Violation::NotOnLink {
             at: at(0, 3),
             link: 4,
+            street: inst.network().street_label(4),
             from: 3,
             to: 2,
         }],
@@ -365,6 +376,7 @@ fn rejects_each_walk_violation() {
         vec![Violation::AgainstOneWay {
             at: at(0, 4),
             link: 1,
+            street: inst.network().street_label(1),
         }],
     );
 
@@ -410,6 +422,7 @@ fn rejects_each_walk_violation() {
         vec![Violation::ServesNonRequired {
             at: at(0, 5),
             link: 5,
+            street: inst.network().street_label(5),
         }],
     );
 
@@ -428,6 +441,7 @@ fn rejects_each_walk_violation() {
             at: at(0, 3),
             task: 2,
             link: 3,
+            street: inst.network().street_label(3),
         }],
     );
 
@@ -438,6 +452,7 @@ fn rejects_each_walk_violation() {
         vec![Violation::ServedTwice {
             task: 0,
             link: 0,
+            street: inst.network().street_label(0),
             first: at(0, 0),
             again: at(1, 0),
         }],
@@ -447,8 +462,16 @@ fn rejects_each_walk_violation() {
         &inst,
         &[extra],
         vec![
-            Violation::NotServed { task: 1, link: 1 },
-            Violation::NotServed { task: 2, link: 3 },
+            Violation::NotServed {
+                task: 1,
+                link: 1,
+                street: inst.network().street_label(1),
+            },
+            Violation::NotServed {
+                task: 2,
+                link: 3,
+                street: inst.network().street_label(3),
+            },
         ],
     );
 
@@ -500,7 +523,7 @@ fn rejects_each_walk_violation() {
 }
 
 #[test]
-fn messages_name_route_task_link_and_numbers() {
+fn messages_name_truck_street_and_numbers_in_the_sheets_words() {
     let v = Violation::OverCapacity {
         route: 2,
         load: 12,
@@ -508,18 +531,73 @@ fn messages_name_route_task_link_and_numbers() {
     };
     assert_eq!(
         v.to_string(),
-        "route 2: load 12 exceeds the capacity 10 by 2"
+        "Truck 3: load 12 exceeds the capacity 10 by 2"
     );
     let v = Violation::ServedTwice {
         task: 4,
         link: 9,
+        street: "street 3-4".into(),
         first: at(0, 1),
         again: at(3, 0),
     };
     assert_eq!(
         v.to_string(),
-        "task 4 (link 9) is served twice: at route 0 position 1 and again at route 3 position 0"
+        "street 3-4 is served twice: by Truck 1, service 2 and again by Truck 4, service 1"
     );
+    // Walks: steps numbered from 1, the yard by its name, no "link" or "depot".
+    let v = Violation::NotToDepot {
+        route: 1,
+        junction: 4,
+    };
+    assert_eq!(
+        v.to_string(),
+        "Truck 2 ends at junction #4, not at the yard"
+    );
+    // The checker names a street by its name where it has one: a triangle
+    // with a named required street that no truck serves, and a walk that
+    // drives a one-way street backward.
+    let mut net = Network::with_junctions(3);
+    net.add_required_edge(0, 1, 4, 2);
+    net.add_required_edge(1, 2, 5, 3);
+    net.add_edge(2, 0, 7);
+    net.links[1].name = Some("Mill Lane".into());
+    net.links[2].oneway = true;
+    let tri = Instance::new("triangle", net, Fleet::with_capacity(10), 0).unwrap();
+    let dist = Distances::new(&tri).unwrap();
+    let only_first = Plan::from_visits(&tri, &dist, vec![vec![Visit::new(0, F)]]);
+    let found = check_plan(&tri, &only_first).unwrap_err();
+    let label = tri.network().street_label(1);
+    assert!(label.contains("Mill Lane"), "{label}");
+    assert_eq!(found[0].to_string(), format!("{label} is not served"));
+    let backward = vec![Step {
+        link: 2,
+        from: 0,
+        to: 2,
+        serve: false,
+    }];
+    let found = check_walks(&tri, &[backward]).unwrap_err();
+    assert!(
+        found.iter().any(|v| v.to_string()
+            == "Truck 1, step 1: one-way street 3-1 is driven against its direction"),
+        "{found:?}"
+    );
+    for v in found.iter().chain([
+        &Violation::NotFromDepot {
+            route: 0,
+            junction: 1,
+        },
+        &Violation::UnknownLink {
+            at: at(0, 0),
+            link: 9,
+            links: 3,
+        },
+        &Violation::TooManyRoutes { routes: 3, max: 2 },
+    ]) {
+        let s = v.to_string();
+        for word in ["link", "depot", "route", "vehicle"] {
+            assert!(!s.contains(word), "{s:?} says {word:?}");
+        }
+    }
 }
 
 /// Lower bounds from ../shared/instances/reference.csv (CARPData.jl compilation).

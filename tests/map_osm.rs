@@ -6,12 +6,15 @@
 //! `tests/fixtures/osm/helsinki_reference.json` and the GeoJSON export
 //! `tests/fixtures/osm/helsinki_streets.geojson`.
 
-use std::path::Path;
+mod common;
 
 use arcwright::map::{load_map, MapOptions, MapScenario, YardChoice};
 use serde_json::Value;
 
-const PBF: &str = "../shared/osm/helsinki.osm.pbf";
+/// The extract, after [`pbf`] found it (`common::shared_osm`).
+fn pbf_path() -> std::path::PathBuf {
+    common::shared_osm("map_osm").expect("checked by pbf()")
+}
 
 fn reference() -> Value {
     let text = std::fs::read_to_string("tests/fixtures/osm/helsinki_reference.json").unwrap();
@@ -19,11 +22,8 @@ fn reference() -> Value {
 }
 
 fn pbf() -> Option<MapScenario> {
-    if !Path::new(PBF).exists() {
-        println!("SKIPPED: {PBF} is absent");
-        return None;
-    }
-    Some(load_map(PBF, &MapOptions::default()).expect("the Helsinki extract builds"))
+    let path = common::shared_osm("map_osm")?;
+    Some(load_map(path, &MapOptions::default()).expect("the Helsinki extract builds"))
 }
 
 /// Counts equal, total length within 0.1 % of the reference.
@@ -138,7 +138,7 @@ fn yard_point_snaps_to_the_nearest_junction() {
         }),
         ..MapOptions::default()
     };
-    let y = load_map(PBF, &opts).unwrap();
+    let y = load_map(pbf_path(), &opts).unwrap();
     let yard = y.report.yard;
     match yard.how {
         arcwright::map::YardHow::Snapped { distance_m, .. } => {

@@ -161,6 +161,86 @@ fn reading_as_written_leaves_direction_and_figures_to_the_checker() {
             },
             task: one_side,
             link: inst.tasks()[one_side].link,
+            street: inst.network().street_label(inst.tasks()[one_side].link),
         }])
     );
+}
+
+/// Defect (issue 8, §3.1) at the library level: a required two-way
+/// self-loop served backward is written as from = to and reads back
+/// forward, so a plan straight from `Solver::solve` did not read back equal.
+/// The solver now returns self-loops served forward; every plan it returns
+/// writes and reads back identically (six such loops, several seeds).
+#[test]
+fn solver_plans_with_two_way_self_loops_read_back_equal() {
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/self_loops.json");
+    let inst = arcwright::io::read_scenario_file(path).unwrap();
+    let loops = inst.tasks().iter().filter(|t| t.tail == t.head && t.either);
+    assert!(loops.count() >= 6);
+    for seed in 1..=6 {
+        let sol = Solver::new(&inst)
+            .seed(seed)
+            .workers(1)
+            .max_iterations(30)
+            .solve()
+            .unwrap();
+        arcwright::check::check_plan(&inst, &sol.plan).unwrap();
+        let text = write_plan(&inst, &sol.plan, Some(sol.lower_bound.value));
+        let back = read_plan(&text, "self_loops.plan.json", &inst).unwrap();
+        assert_eq!(back, sol.plan, "seed {seed}");
+    }
+}
+
+/// Frictions 2.5/2.6 on plan files: positions given once, a line for every
+/// error of a file that reads as JSON, trucks and services numbered from 1
+/// as on the sheets, and a byte-order mark skipped.
+#[test]
+fn plan_file_errors_have_a_line_and_speak_of_trucks() {
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/self_loops.json");
+    let inst = arcwright::io::read_scenario_file(path).unwrap();
+    let sol = Solver::new(&inst).max_iterations(10).solve().unwrap();
+    let text = write_plan(&inst, &sol.plan, None);
+    let line_of = |needle: &str| text.lines().position(|l| l.contains(needle)).unwrap() + 1;
+
+    // A byte-order mark, as some editors write, is skipped.
+    let bom = format!("\u{feff}{text}");
+    assert_eq!(read_plan(&bom, "bom.json", &inst).unwrap(), sol.plan);
+
+    // Syntax error: the line in the location, the column once in the message.
+    let broken = text.replacen("\"routes\": [", "\"routes\": [[", 1);
+    let e = read_plan(&broken, "bad.json", &inst).unwrap_err();
+    let msg = e.to_string();
+    assert!(e.location().unwrap().line.is_some(), "{msg}");
+    assert_eq!(msg.matches("column").count(), 1, "{msg}");
+    assert!(!msg.contains(" at line "), "{msg}");
+
+    // Another format, another instance, a wrong total: each at its line.
+    for (from, to, key) in [
+        ("\"arcwright-plan\"", "\"a-spreadsheet\"", "\"format\""),
+        ("\"instance\": \"", "\"instance\": \"x", "\"instance\""),
+    ] {
+        let e = read_plan(&text.replacen(from, to, 1), "f.json", &inst).unwrap_err();
+        assert_eq!(e.location().unwrap().line, Some(line_of(key)), "{e}");
+    }
+    let cost = format!("\"cost\": {},", sol.cost);
+    let lied = text.replacen(&cost, &format!("\"cost\": {},", sol.cost + 1), 1);
+    let e = read_plan(&lied, "lied.json", &inst).unwrap_err();
+    assert_eq!(e.location().unwrap().line, Some(line_of(&cost)), "{e}");
+
+    // A wrong figure of the first route names Truck 1 at that route's line.
+    let load = format!("\"load\": {},", sol.plan.routes[0].load);
+    let lied = text.replacen(&load, "\"load\": 999,", 1);
+    let e = read_plan(&lied, "lied.json", &inst).unwrap_err();
+    assert_eq!(e.location().unwrap().line, Some(line_of(&load)), "{e}");
+    assert!(e.to_string().contains("Truck 1 load"), "{e}");
+
+    // A service naming a street that is not to be served: Truck 1, service 1.
+    let wrong = text.replacen("{\"from\": ", "{\"from\": 99, \"was\": ", 1);
+    let e = read_plan(&wrong, "wrong.json", &inst).unwrap_err();
+    let msg = e.to_string();
+    assert!(
+        msg.contains(": Truck 1, service 1: junctions 99 to"),
+        "{msg}"
+    );
+    assert!(!msg.contains("route"), "{msg}");
 }

@@ -5,6 +5,8 @@
 //! `roxmltree`, the CSV sheets with the `csv` crate, and the sheets add up
 //! to the plan's total.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
@@ -90,16 +92,6 @@ fn out_dir(name: &str) -> PathBuf {
     let d = Path::new(env!("CARGO_TARGET_TMPDIR")).join(name);
     let _ = std::fs::remove_dir_all(&d);
     d
-}
-
-fn shared(rel: &str) -> Option<PathBuf> {
-    let p = Path::new(ROOT).join("../shared/instances").join(rel);
-    if p.exists() {
-        Some(p)
-    } else {
-        println!("SKIPPED: {} is absent", p.display());
-        None
-    }
 }
 
 fn demo() -> Instance {
@@ -255,7 +247,8 @@ fn the_demo_town_is_the_default() {
     ]);
     assert!(o.status.success(), "{:?}", text(&o));
     // A plan of another scenario fails the check with a non-zero exit code.
-    if let Some(gdb) = shared("gdb/gdb1.dat") {
+    if let Some(gdb) = common::shared_file("planner::the_demo_town_is_the_default", "gdb/gdb1.dat")
+    {
         let o = planner([
             "check".as_ref(),
             gdb.as_os_str(),
@@ -267,7 +260,10 @@ fn the_demo_town_is_the_default() {
 
 #[test]
 fn research_file_end_to_end_without_maps() {
-    let Some(gdb) = shared("gdb/gdb1.dat") else {
+    let Some(gdb) = common::shared_file(
+        "planner::research_file_end_to_end_without_maps",
+        "gdb/gdb1.dat",
+    ) else {
         return;
     };
     let dir = out_dir("planner-gdb1");
@@ -282,7 +278,14 @@ fn research_file_end_to_end_without_maps() {
     assert_eq!(csv_total(&dir, plan.routes.len()), plan.cost);
     // No valid plan is cheaper than the published lower bound listed in
     // ../shared/instances/reference.csv (its `source` column names the compilation).
-    let reference = arcwright::io::read_reference(shared("reference.csv").unwrap()).unwrap();
+    let reference = arcwright::io::read_reference(
+        common::shared_file(
+            "planner::research_file_end_to_end_without_maps",
+            "reference.csv",
+        )
+        .unwrap(),
+    )
+    .unwrap();
     let bound: i64 = reference
         .iter()
         .find(|r| r.set == "gdb" && r.instance == "gdb1")
@@ -301,7 +304,8 @@ fn research_file_end_to_end_without_maps() {
 
 #[test]
 fn fleet_overrides_reach_the_plan() {
-    let Some(gdb) = shared("gdb/gdb1.dat") else {
+    let Some(gdb) = common::shared_file("planner::fleet_overrides_reach_the_plan", "gdb/gdb1.dat")
+    else {
         return;
     };
     let dir = out_dir("planner-gdb1-cap");
@@ -418,6 +422,7 @@ fn tampered_plan_file(dir: &Path) -> (PathBuf, Vec<String>, Instance, Vec<Violat
         Violation::ServedTwice {
             task: 0,
             link: t[0].link,
+            street: inst.network().street_label(t[0].link),
             first: At { route: 0, pos: 0 },
             again: At {
                 route: 1,
@@ -427,6 +432,7 @@ fn tampered_plan_file(dir: &Path) -> (PathBuf, Vec<String>, Instance, Vec<Violat
         Violation::NotServed {
             task: n - 1,
             link: t[n - 1].link,
+            street: inst.network().street_label(t[n - 1].link),
         },
         Violation::WrongCost {
             route: 1,
@@ -766,4 +772,47 @@ fn a_bad_output_folder_is_refused_before_the_search() {
         assert!(stderr.contains("nothing was searched"), "{stderr}");
     }
     assert_eq!(std::fs::read_to_string(&file).unwrap(), "not a folder");
+}
+
+/// A scenario with two yards, a landfill and two truck types is planned by
+/// the fleet solver: the plan file records every tip and reads back as a
+/// checked fleet plan, the sheets say where to tip; fleet overrides that
+/// would not reach the truck types are refused.
+#[test]
+fn plans_a_scenario_with_dump_sites_and_truck_types() {
+    use arcwright::check::fleet::check_fleet_plan;
+    use arcwright::io::{read_fleet_plan, read_scenario_file};
+    let scenario = "tests/fixtures/fleet/two_yards.json";
+    let dir = out_dir("planner-fleet");
+    let out = dir.join("out");
+    let stdout = plan_ok(&[scenario, "--iterations", "20"], &out);
+    assert!(stdout.contains("tips"), "{stdout}");
+    let inst = read_scenario_file(Path::new(ROOT).join(scenario)).unwrap();
+    let json = std::fs::read_to_string(out.join("plan.json")).unwrap();
+    let plan = read_fleet_plan(&json, "plan.json", &inst).unwrap();
+    assert!(check_fleet_plan(&inst, &plan).is_ok());
+    assert!(
+        plan.tips() >= plan.routes.len(),
+        "every truck returns empty"
+    );
+    let sheets = std::fs::read_to_string(out.join("sheets.md")).unwrap();
+    assert_eq!(sheets.matches("tip at Landfill").count(), plan.tips());
+    let o = planner(
+        [
+            scenario,
+            "--iterations",
+            "20",
+            "--capacity",
+            "5",
+            "--quiet",
+            "--out",
+        ]
+        .iter()
+        .map(std::ffi::OsString::from)
+        .chain([dir.join("other").into_os_string()]),
+    );
+    assert!(!o.status.success());
+    assert!(text(&o)
+        .1
+        .contains("do not apply to a scenario with truck_types"));
 }

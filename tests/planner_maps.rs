@@ -6,6 +6,8 @@
 //! `geojson` crate, SVG with `roxmltree`), and bad maps refused with nothing
 //! written.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
@@ -16,7 +18,6 @@ use arcwright::io::read_scenario_file;
 
 const ROOT: &str = env!("CARGO_MANIFEST_DIR");
 const GEOJSON: &str = "tests/fixtures/osm/helsinki_streets.geojson";
-const PBF: &str = "../shared/osm/helsinki.osm.pbf";
 
 /// The planner binary of this test's profile (see `tests/planner.rs`).
 fn exe() -> &'static Path {
@@ -139,11 +140,11 @@ fn geojson_map_is_planned_directly() {
 
 #[test]
 fn osm_extract_is_planned_with_profile_and_yard_and_checked() {
-    let pbf = Path::new(ROOT).join(PBF);
-    if !pbf.exists() {
-        println!("SKIPPED: {PBF} is absent");
+    let Some(pbf) = common::shared_osm(
+        "planner_maps::osm_extract_is_planned_with_profile_and_yard_and_checked",
+    ) else {
         return;
-    }
+    };
     let dir = out_dir("map-pbf");
     let stdout = plan_map(
         &pbf,

@@ -1,7 +1,7 @@
 //! Route sheets, GeoJSON and SVG checked with outside parsers (the `geojson`
 //! and `roxmltree` crates) and against the plan's own figures.
 
-use std::path::PathBuf;
+mod common;
 
 use arcwright::check::{check_plan, check_walks};
 use arcwright::demo::{town, TownSpec};
@@ -9,7 +9,7 @@ use arcwright::model::{
     Coordinates, Dir, Fleet, Instance, Link, Network, ServeDirection, ServiceSpec,
 };
 use arcwright::paths::Distances;
-use arcwright::plan::{evaluate, walk, Plan, Visit};
+use arcwright::plan::{totals, walk, Plan, Totals, Visit};
 use arcwright::report::{self, geo, sheets, svg};
 
 /// A simple feasible plan independent of the solver: tasks in link order,
@@ -25,7 +25,7 @@ fn greedy(inst: &Instance, dist: &Distances) -> Plan {
         let fits = |r: &Vec<Visit>, d: Dir| {
             let mut r = r.clone();
             r.push(Visit::new(i, d));
-            let (load, cost, time) = evaluate(inst, dist, &r);
+            let Totals { load, cost, time } = totals(inst, dist, &r);
             let ok =
                 load <= inst.fleet().capacity && inst.fleet().shift_limit.is_none_or(|s| time <= s);
             ok.then_some(cost)
@@ -48,18 +48,6 @@ fn greedy(inst: &Instance, dist: &Distances) -> Plan {
         }
     }
     Plan::from_visits(inst, dist, routes)
-}
-
-fn shared(rel: &str) -> Option<PathBuf> {
-    let p = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-        .join("../shared/instances")
-        .join(rel);
-    if p.exists() {
-        Some(p)
-    } else {
-        println!("SKIPPED: {} is absent", p.display());
-        None
-    }
 }
 
 /// Reads CSV with the `csv` crate (RFC 4180), header row included.
@@ -272,7 +260,10 @@ fn awkward_names_survive_csv_markdown_and_svg() {
 
 #[test]
 fn research_files_without_coordinates_get_sheets_but_no_maps() {
-    let Some(p) = shared("gdb/gdb1.dat") else {
+    let Some(p) = common::shared_file(
+        "reports::research_files_without_coordinates_get_sheets_but_no_maps",
+        "gdb/gdb1.dat",
+    ) else {
         return;
     };
     let inst = arcwright::io::read_dat_file(p).unwrap().instance;

@@ -334,3 +334,50 @@ fn impossible_coordinates_are_refused_when_read() {
     .unwrap_err();
     assert!(err.to_string().contains("mercator"), "{err}");
 }
+
+/// Friction 2.6/2.7: coordinate problems join the scenario's list of all
+/// problems (up to `model::MAX_PROBLEMS`), one per bad junction, beside the
+/// other problems of the file, instead of stopping at the first junction.
+#[test]
+fn every_bad_junction_coordinate_is_reported_with_the_other_problems() {
+    use arcwright::error::{Error, ParseProblem};
+    use arcwright::model::MAX_PROBLEMS;
+    let wgs = r#", "coordinates": { "system": "wgs84" }"#;
+    // Junctions 3 and 5 lie beyond the poles; junction id 2 is given twice.
+    let junctions = r#"[ { "id": 1, "x": 24.9, "y": 60.1 }, { "id": 2, "x": 24.9, "y": 60.2 },
+  { "id": 3, "x": 24.9, "y": 95.0 }, { "id": 2, "x": 24.9, "y": 60.3 },
+  { "id": 5, "x": 24.9, "y": -91.0 } ]"#;
+    let err = read_scenario(&small(wgs, junctions), "poles.json").unwrap_err();
+    let paths: Vec<_> = err.problems().iter().map(|(_, p)| p.path()).collect();
+    assert_eq!(
+        paths,
+        [
+            Some("junctions[3].id"),
+            Some("junctions[2].y"),
+            Some("junctions[4].y"),
+        ],
+        "{err}"
+    );
+    for (at, p) in err.problems().into_iter().skip(1) {
+        assert!(
+            matches!(p.innermost(), ParseProblem::Coordinate(_)),
+            "{err}"
+        );
+        assert!(at.line.is_some(), "{err}");
+    }
+    // Many bad junctions: the list stops at MAX_PROBLEMS and counts the rest.
+    let extra = 5;
+    let many: Vec<String> = (1..=MAX_PROBLEMS + extra + 2)
+        .map(|id| {
+            let y = if id <= 2 { 60.0 } else { 200.0 };
+            format!(r#"{{ "id": {id}, "x": 24.9, "y": {y} }}"#)
+        })
+        .collect();
+    let err =
+        read_scenario(&small(wgs, &format!("[{}]", many.join(",\n"))), "many.json").unwrap_err();
+    let Error::Several { problems, more, .. } = &err else {
+        panic!("{err}")
+    };
+    assert_eq!(problems.len(), MAX_PROBLEMS);
+    assert_eq!(*more, extra);
+}

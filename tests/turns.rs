@@ -571,7 +571,12 @@ fn left_turn_penalties_change_the_enumerated_optimum() {
         .solve()
         .unwrap();
     assert_eq!(sol_free.cost, best_free);
-    let routes: Vec<Vec<Visit>> = sol_free.plan.routes.iter().map(|r| r.visits.clone()).collect();
+    let routes: Vec<Vec<Visit>> = sol_free
+        .plan
+        .routes
+        .iter()
+        .map(|r| r.visits.clone())
+        .collect();
     let repriced = checker_cost(&turned, &routes);
     assert!(
         repriced > best_turned,

@@ -52,6 +52,9 @@ pub enum AppError {
     /// The solver found no plan.
     #[error("no plan: {0}")]
     Solve(#[source] arcwright::SolveError),
+    /// The fleet solver found no plan (dump sites, yards, truck types).
+    #[error("no plan: {0}")]
+    FleetSolve(#[source] arcwright::fleet::FleetSolveError),
     /// The plan failed the independent checker and was not written.
     #[error("the plan failed the independent checker ({} problem(s)); nothing was written", .0.len())]
     Refused(Vec<String>),

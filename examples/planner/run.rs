@@ -5,16 +5,20 @@ use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 
+use arcwright::check::fleet::check_fleet_plan;
 use arcwright::check::{check_plan, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
+use arcwright::fleet::FleetSolver;
 use arcwright::io::plan_json::{
     read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
     RunSettings,
 };
-use arcwright::io::{read_dat_file, read_scenario, read_scenario_file, write_scenario};
+use arcwright::io::{detect_format, read_dat, read_scenario, read_text, write_scenario, Format};
+use arcwright::io::{read_fleet_plan, write_fleet_plan};
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
+use arcwright::report::fleet::fleet_markdown;
 use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
 use arcwright::{Progress, Solver};
 
@@ -40,7 +44,8 @@ pub struct Loaded {
 /// `.geojson`), built with the map options; a research-format file when the
 /// name ends in `.dat` (any case), our JSON scenario format when it ends in
 /// `.json`, and for other names whichever the text looks like (JSON starts
-/// with `{`). Fleet overrides are applied and the result revalidated.
+/// with `{`, after any byte-order mark; [`detect_format`]). Fleet overrides
+/// are applied and the result revalidated.
 pub fn load_scenario(path: &Path, fleet: &FleetArgs, map: &MapArgs) -> Result<Loaded, AppError> {
     if arcwright::map::map_format(path).is_some() {
         let options = MapOptions::from_args(map.profile.as_deref(), map.yard.as_deref())
@@ -65,25 +70,15 @@ pub fn load_scenario(path: &Path, fleet: &FleetArgs, map: &MapArgs) -> Result<Lo
     })
 }
 
+/// Reads a scenario file with the reader [`detect_format`] picks: the
+/// research format when the name ends in `.dat` (any case), our JSON
+/// scenario format when it ends in `.json`, and for other names whichever the
+/// text looks like (JSON starts with `{`, after any byte-order mark).
 fn read_scenario_or_dat(path: &Path, fleet: &FleetArgs) -> Result<Instance, AppError> {
-    let ext = path
-        .extension()
-        .map(|e| e.to_string_lossy().to_ascii_lowercase());
-    let is_dat = match ext.as_deref() {
-        Some("dat") => true,
-        Some("json") => false,
-        // Unreadable files fall through to the JSON reader, which names them.
-        _ => std::fs::read(path).is_ok_and(|b| {
-            let b = b.strip_prefix("\u{feff}".as_bytes()).unwrap_or(&b);
-            b.iter()
-                .find(|c| !c.is_ascii_whitespace())
-                .is_some_and(|&c| c != b'{')
-        }),
-    };
-    let inst = if is_dat {
-        read_dat_file(path).map_err(AppError::Input)?.instance
-    } else {
-        read_scenario_file(path).map_err(AppError::Input)?
+    let (name, text) = read_text(path).map_err(AppError::Input)?;
+    let inst = match detect_format(&text, &name) {
+        Format::Dat => read_dat(&text, &name).map_err(AppError::Input)?.instance,
+        Format::Scenario => read_scenario(&text, &name).map_err(AppError::Input)?,
     };
     fleet.apply(inst).map_err(AppError::Fleet)
 }
@@ -219,7 +214,15 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         .stop
         .clone()
         .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
+    if !inst.operations().is_plain(&inst) {
+        let (map_report, osm) = (loaded.map_report, loaded.osm);
+        let mut run = run_fleet_plan(opts, &inst, source, osm)?;
+        run.map_report = map_report;
+        return Ok(run);
+    }
+    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let mut solver = Solver::new(&inst)
+        .distances(&dist)
         .seed(opts.seed)
         .workers(opts.effective_workers())
         .stop_flag(stop.clone());
@@ -234,7 +237,6 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
     }
     let solution = solver.solve().map_err(AppError::Solve)?;
     let stopped_early = stop.load(Ordering::SeqCst);
-    let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let extras = SummaryExtras {
         lower_bound: Some((
             solution.lower_bound.value,
@@ -267,6 +269,90 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         map_report: loaded.map_report,
         saved_scenario: opts.save_scenario.clone(),
         stopped_early,
+        summary,
+        files,
+    })
+}
+
+/// Plans a scenario with dump sites, several yards, truck types or
+/// balancing with the fleet solver (iteration limit and seed as given; no
+/// time limit or stop flag: it runs to its limits), checks the plan
+/// independently and writes `plan.json` (every tip recorded) and
+/// `sheets.md` (with "tip at ..., unload ...").
+fn run_fleet_plan(
+    opts: &PlanArgs,
+    inst: &Instance,
+    source: String,
+    osm: bool,
+) -> Result<PlanRun, AppError> {
+    let f = &opts.fleet;
+    let overrides = f.capacity.is_some() || f.shift_limit.is_some() || f.max_trucks.is_some();
+    if overrides && !inst.operations().truck_types.is_empty() {
+        return Err(AppError::Usage(
+            "--capacity, --shift-limit and --max-trucks do not apply to a scenario with truck_types: change the truck types in the scenario".into(),
+        ));
+    }
+    let mut solver = FleetSolver::new(inst)
+        .seed(opts.seed)
+        .workers(opts.effective_workers());
+    if let Some(n) = opts.iterations {
+        solver = solver.max_iterations(n);
+    }
+    let sol = solver.solve().map_err(AppError::FleetSolve)?;
+    if let Err(v) = check_fleet_plan(inst, &sol.plan) {
+        return Err(AppError::Refused(v.iter().map(|x| x.to_string()).collect()));
+    }
+    let json = write_fleet_plan(inst, &sol.plan);
+    if read_fleet_plan(&json, "plan.json", inst).ok().as_ref() != Some(&sol.plan) {
+        return Err(AppError::Internal(
+            "the fleet plan file does not read back".into(),
+        ));
+    }
+    let sheets = fleet_markdown(inst, &sol.plan);
+    let u = inst.units();
+    let (long, short) = sol.shift_spread;
+    let summary = format!(
+        "{}: cost {} (lower bound {}, {}), {} trucks, {} trips, {} tips, shifts {} to {}\n\nCautions:\n{}\n",
+        inst.name,
+        u.cost_text(sol.cost),
+        u.cost_text(sol.lower_bound.value),
+        sol.lower_bound.by,
+        sol.plan.routes.len(),
+        sol.plan.trips(),
+        sol.plan.tips(),
+        u.time_text(short),
+        u.time_text(long),
+        arcwright::report::CAUTIONS
+            .iter()
+            .map(|c| format!("- {c}"))
+            .collect::<Vec<_>>()
+            .join("\n")
+    );
+    let mut files = vec![
+        OutputFile {
+            name: "plan.json".into(),
+            contents: json,
+        },
+        OutputFile {
+            name: "sheets.md".into(),
+            contents: sheets,
+        },
+        OutputFile {
+            name: "summary.txt".into(),
+            contents: summary.clone(),
+        },
+    ];
+    let mut summary = summary;
+    if osm {
+        attribute_osm(&mut files);
+        summary.push_str(&format!("\n{OSM_ATTRIBUTION}\n"));
+    }
+    let files = write_files(&opts.out, &files)?;
+    Ok(PlanRun {
+        source,
+        map_report: None,
+        saved_scenario: opts.save_scenario.clone(),
+        stopped_early: false,
         summary,
         files,
     })

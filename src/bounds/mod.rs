@@ -3,6 +3,9 @@
 //! [`bound`] returns the best lower bound this crate knows how to compute
 //! for an instance; every feasible plan costs at least its value.
 //! [`all_bounds`] lists every bound computed, each with its method.
+//! The much stronger but slower cutting-plane LP bound is in [`lp`]
+//! ([`lp::LpBound`]); it is not part of [`all_bounds`] and runs with its own
+//! time budget.
 //!
 //! Every bound here is written as *service cost + a lower bound on the
 //! deadhead cost*. A plan's total cost is the service cost of every task
@@ -16,8 +19,14 @@
 //! paths: they stay valid for mixed networks, one-way links and Forward-only
 //! tasks. [`imbalance_flow_bound`] uses directions and is applied only when
 //! every task has a fixed service direction.
+//!
+//! These bounds assume the plain model (one yard, trucks that never tip).
+//! Which of them stay valid with dump sites, several yards and truck types,
+//! and the bound the fleet solver reports then, is in
+//! [`crate::fleet::bound`].
 
 mod capacity;
+pub mod lp;
 mod single;
 
 pub(crate) use capacity::depot_cuts;

@@ -8,11 +8,17 @@
 //! checks explicit street-by-street walks ([`Step`]s) against the network.
 //!
 //! All problems found are returned, not only the first, as typed
-//! [`Violation`]s whose `Display` names the route, task, link and numbers.
-//! Indices are 0-based, as in [`Plan::routes`], [`Instance::tasks`] and
-//! [`crate::model::Network::links`]; junctions are given by index into
+//! [`Violation`]s. Their fields are 0-based indices, as in [`Plan::routes`],
+//! [`Instance::tasks`], [`crate::model::Network::links`] and
 //! [`crate::model::Network::junctions`] ([`Violation::NoPath`] also gives
-//! their external ids).
+//! the junctions' ids), plus the street's label where one is concerned.
+//! Their `Display` speaks the words of the route sheets: trucks, services
+//! and steps numbered from 1, the yard, and a street by its name and
+//! junction ids ([`crate::model::Network::street_label`]; `street #N`, its
+//! 0-based place in the street list, only for a step naming no street).
+//! Junctions are given by their ids where the violation holds them,
+//! otherwise as `junction #N` (0-based place in the junction list);
+//! [`crate::report::describe`] words every finding with the instance at hand.
 //!
 //! For an instance built by [`Instance::new`] every task can be reached from
 //! the depot and back, so [`Violation::NoPath`] cannot occur with allowed
@@ -41,8 +47,10 @@
 //! bad.cost = 15;
 //! let v = check_plan(&inst, &bad).unwrap_err();
 //! assert!(v.contains(&Violation::WrongCost { route: 0, reported: 15, actual: 16 }));
-//! assert_eq!(v[0].to_string(), "route 0: reported cost 15, but it recomputes to 16");
+//! assert_eq!(v[0].to_string(), "Truck 1: the plan states cost 15, but the route costs 16");
 //! ```
+
+pub mod fleet;
 
 use std::cmp::Reverse;
 use std::collections::{BTreeMap, BinaryHeap};
@@ -65,7 +73,7 @@ pub struct At {
 
 impl fmt::Display for At {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "route {} position {}", self.route, self.pos)
+        write!(f, "Truck {}, position {}", self.route + 1, self.pos + 1)
     }
 }
 
@@ -74,7 +82,7 @@ impl fmt::Display for At {
 #[non_exhaustive]
 pub enum Violation {
     /// A visit names a task index that does not exist.
-    #[error("{at}: task {task} does not exist (the instance has {tasks} tasks)")]
+    #[error("Truck {}, service {}: no task #{task} (the instance has {tasks} streets to serve)", .at.route + 1, .at.pos + 1)]
     UnknownTask {
         /// Where.
         at: At,
@@ -86,7 +94,8 @@ pub enum Violation {
     /// A task is served backward although only forward service is allowed
     /// (a one-way street, or one side of a street).
     #[error(
-        "{at}: task {task} (link {link}) is served backward, but only forward service is allowed"
+        "Truck {}, service {}: {street} is served backward, but it may only be served forward (from its first junction to its second)",
+        .at.route + 1, .at.pos + 1
     )]
     DirectionNotAllowed {
         /// Where.
@@ -95,26 +104,38 @@ pub enum Violation {
         task: usize,
         /// Link index of the task.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
     /// A task is served more than once.
-    #[error("task {task} (link {link}) is served twice: at {first} and again at {again}")]
+    #[error(
+        "{street} is served twice: by Truck {}, service {} and again by Truck {}, service {}",
+        .first.route + 1, .first.pos + 1, .again.route + 1, .again.pos + 1
+    )]
     ServedTwice {
         /// Task index.
         task: usize,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
         /// The first service.
         first: At,
         /// A later service.
         again: At,
     },
     /// A task is not served at all.
-    #[error("task {task} (link {link}) is not served")]
+    #[error("{street} is not served")]
     NotServed {
         /// Task index.
         task: usize,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
     /// A walk makes a turn the scenario's turn rules ban.
     #[error(
@@ -133,9 +154,7 @@ pub enum Violation {
         via: u64,
     },
     /// No path leads from one junction to the next in a route.
-    #[error(
-        "route {route}: no path from junction {from} (id {from_id}) to junction {to} (id {to_id})"
-    )]
+    #[error("Truck {}: no way to drive from junction {from_id} to junction {to_id}", .route + 1)]
     NoPath {
         /// Route index.
         route: usize,
@@ -149,7 +168,7 @@ pub enum Violation {
         to_id: u64,
     },
     /// A route carries more than a truck holds.
-    #[error("route {route}: load {load} exceeds the capacity {capacity} by {}", .load - .capacity)]
+    #[error("Truck {}: load {load} exceeds the capacity {capacity} by {}", .route + 1, .load - .capacity)]
     OverCapacity {
         /// Route index.
         route: usize,
@@ -159,7 +178,7 @@ pub enum Violation {
         capacity: Cost,
     },
     /// A route takes longer than the shift limit.
-    #[error("route {route}: time {time} exceeds the shift limit {limit} by {}", .time - .limit)]
+    #[error("Truck {}: time {time} exceeds the shift limit {limit} by {}", .route + 1, .time - .limit)]
     OverShift {
         /// Route index.
         route: usize,
@@ -169,7 +188,7 @@ pub enum Violation {
         limit: Cost,
     },
     /// The plan uses more trucks than the fleet has.
-    #[error("the plan uses {routes} routes, but the fleet has only {max} trucks")]
+    #[error("the plan uses {routes} trucks, but the fleet has only {max}")]
     TooManyRoutes {
         /// Number of routes.
         routes: usize,
@@ -177,13 +196,13 @@ pub enum Violation {
         max: usize,
     },
     /// A route serves nothing.
-    #[error("route {route} serves nothing")]
+    #[error("Truck {} serves nothing", .route + 1)]
     EmptyRoute {
         /// Route index.
         route: usize,
     },
     /// A route's reported load differs from the recomputed one.
-    #[error("route {route}: reported load {reported}, but it recomputes to {actual}")]
+    #[error("Truck {}: the plan states load {reported}, but its streets add up to {actual}", .route + 1)]
     WrongLoad {
         /// Route index.
         route: usize,
@@ -193,7 +212,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported cost differs from the recomputed one.
-    #[error("route {route}: reported cost {reported}, but it recomputes to {actual}")]
+    #[error("Truck {}: the plan states cost {reported}, but the route costs {actual}", .route + 1)]
     WrongCost {
         /// Route index.
         route: usize,
@@ -203,7 +222,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A route's reported time differs from the recomputed one.
-    #[error("route {route}: reported time {reported}, but it recomputes to {actual}")]
+    #[error("Truck {}: the plan states time {reported}, but the route takes {actual}", .route + 1)]
     WrongTime {
         /// Route index.
         route: usize,
@@ -214,7 +233,7 @@ pub enum Violation {
     },
     /// The plan's reported total cost differs from the sum of the
     /// recomputed route costs.
-    #[error("plan: reported total cost {reported}, but the routes add up to {actual}")]
+    #[error("the plan states a total cost of {reported}, but its trucks add up to {actual}")]
     WrongTotal {
         /// Value in the plan.
         reported: Cost,
@@ -222,7 +241,7 @@ pub enum Violation {
         actual: Cost,
     },
     /// A walk step names a link index that does not exist.
-    #[error("{at}: link {link} does not exist (the network has {links} links)")]
+    #[error("Truck {}, step {}: no street #{link} (the network has {links} streets)", .at.route + 1, .at.pos + 1)]
     UnknownLink {
         /// Where.
         at: At,
@@ -232,27 +251,33 @@ pub enum Violation {
         links: usize,
     },
     /// A walk step's junctions are not the two ends of its link.
-    #[error("{at}: a step from junction {from} to junction {to} does not follow link {link}")]
+    #[error("Truck {}, step {}: a step from junction #{from} to junction #{to} does not follow {street}", .at.route + 1, .at.pos + 1)]
     NotOnLink {
         /// Where.
         at: At,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
         /// Junction index the step starts at.
         from: usize,
         /// Junction index it ends at.
         to: usize,
     },
     /// A walk step drives a one-way link against its direction.
-    #[error("{at}: one-way link {link} is driven against its direction")]
+    #[error("Truck {}, step {}: one-way {street} is driven against its direction", .at.route + 1, .at.pos + 1)]
     AgainstOneWay {
         /// Where.
         at: At,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
     /// A walk step does not start where the previous one ended.
-    #[error("{at}: the step starts at junction {found}, but the previous one ended at junction {expected}")]
+    #[error("Truck {}, step {}: the step starts at junction #{found}, but the previous one ended at junction #{expected}", .at.route + 1, .at.pos + 1)]
     Disconnected {
         /// Where (the step that does not connect).
         at: At,
@@ -262,7 +287,7 @@ pub enum Violation {
         found: usize,
     },
     /// A walk does not start at the depot.
-    #[error("route {route}: starts at junction {junction}, not at the depot")]
+    #[error("Truck {} starts at junction #{junction}, not at the yard", .route + 1)]
     NotFromDepot {
         /// Walk index.
         route: usize,
@@ -270,7 +295,7 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk does not end at the depot.
-    #[error("route {route}: ends at junction {junction}, not at the depot")]
+    #[error("Truck {} ends at junction #{junction}, not at the yard", .route + 1)]
     NotToDepot {
         /// Walk index.
         route: usize,
@@ -278,12 +303,15 @@ pub enum Violation {
         junction: usize,
     },
     /// A walk serves a link that is not required.
-    #[error("{at}: link {link} is served but it is not required")]
+    #[error("Truck {}, step {}: {street} is served but it is not to be served", .at.route + 1, .at.pos + 1)]
     ServesNonRequired {
         /// Where.
         at: At,
         /// Link index.
         link: usize,
+        /// The street as messages name it ([`crate::model::Network::street_label`]:
+        /// its name and junction ids, or its junction ids).
+        street: String,
     },
 }
 
@@ -361,7 +389,11 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
 /// let there_and_back = Route { visits: vec![Visit::new(0, Dir::Forward)], load: 1, cost: 10, time: 10 };
 /// assert!(check_plan(&inst, &Plan { routes: vec![there_and_back], cost: 10 }).is_ok());
 /// let nothing = Plan { routes: vec![], cost: 0 };
-/// assert_eq!(check_plan(&inst, &nothing), Err(vec![Violation::NotServed { task: 0, link: 0 }]));
+/// assert_eq!(check_plan(&inst, &nothing), Err(vec![Violation::NotServed {
+///     task: 0,
+///     link: 0,
+///     street: "street 1-2".into(),
+/// }]));
 /// ```
 pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     let mut out = Vec::new();
@@ -489,12 +521,14 @@ impl Coverage {
                 at,
                 task,
                 link: t.link,
+                street: inst.network().street_label(t.link),
             });
         }
         match self.seen[task] {
             Some(first) => out.push(Violation::ServedTwice {
                 task,
                 link: t.link,
+                street: inst.network().street_label(t.link),
                 first,
                 again: at,
             }),
@@ -505,9 +539,11 @@ impl Coverage {
     fn finish(self, inst: &Instance, out: &mut Vec<Violation>) {
         for (i, s) in self.seen.iter().enumerate() {
             if s.is_none() {
+                let link = inst.tasks()[i].link;
                 out.push(Violation::NotServed {
                     task: i,
-                    link: inst.tasks()[i].link,
+                    link,
+                    street: inst.network().street_label(link),
                 });
             }
         }
@@ -677,7 +713,11 @@ pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Viola
                 continue;
             }
             let Some(ti) = task_of[s.link] else {
-                out.push(Violation::ServesNonRequired { at, link: s.link });
+                out.push(Violation::ServesNonRequired {
+                    at,
+                    link: s.link,
+                    street: net.street_label(s.link),
+                });
                 continue;
             };
             let t = &inst.tasks()[ti];
@@ -739,13 +779,18 @@ fn step_on_link(inst: &Instance, at: At, s: &Step, out: &mut Vec<Violation>) -> 
         out.push(Violation::NotOnLink {
             at,
             link: s.link,
+            street: inst.network().street_label(s.link),
             from: s.from,
             to: s.to,
         });
         return None;
     }
     if !forward && l.oneway {
-        out.push(Violation::AgainstOneWay { at, link: s.link });
+        out.push(Violation::AgainstOneWay {
+            at,
+            link: s.link,
+            street: inst.network().street_label(s.link),
+        });
     }
     Some(forward)
 }

@@ -2,13 +2,13 @@
 //! format, plan files, and the table of published benchmark values.
 
 pub mod dat;
-// Owned by the planner branch (issue 8), which documents its errors.
-#[allow(clippy::missing_errors_doc)]
+pub mod fleet_plan;
 pub mod plan_json;
 pub mod reference;
 pub mod scenario;
 
 pub use dat::{read_dat, read_dat_file};
+pub use fleet_plan::{read_fleet_plan, write_fleet_plan};
 pub use plan_json::{read_plan, read_plan_as_written, write_plan};
 pub use reference::{parse_reference, read_reference, Reference};
 pub use scenario::{read_scenario, read_scenario_file, write_scenario};

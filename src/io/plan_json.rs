@@ -63,10 +63,11 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::scenario::{line_of, Seg};
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
-use crate::plan::{evaluate, Plan, Route, Visit};
+use crate::plan::{totals, Plan, Route, Totals, Visit};
 
 /// How a plan was made, recorded in the plan file (`run`). No clock
 /// readings: a run with an iteration limit writes the same file every time.
@@ -220,16 +221,11 @@ pub fn read_plan_claims(text: &str, file: &str) -> Result<PlanClaims> {
     })
 }
 
+/// The plan file's JSON, after any byte-order mark; syntax and schema errors
+/// give their line in the location and their column in the message, once.
 fn parse_json(text: &str, file: &str) -> Result<FilePlan> {
-    serde_json::from_str(text).map_err(|e| {
-        Error::parse(
-            file,
-            Some(e.line()),
-            ParseProblem::Json {
-                message: format!("column {}: {e}", e.column()),
-            },
-        )
-    })
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    serde_json::from_str(text).map_err(|e| Error::json(file, &e))
 }
 
 /// Line of the `k`-th (0-based) `"link"` key in the text: the line of the
@@ -241,6 +237,18 @@ fn service_line(text: &str, k: usize) -> Option<usize> {
 
 /// Reads a plan file written by [`write_plan`] (or by any tool following the
 /// schema) for `inst`; `file` names the source in errors.
+///
+/// # Errors
+///
+/// [`Error::Parse`] naming `file` (and the line where it is known) for:
+/// JSON syntax or schema errors ([`ParseProblem::Json`]); a `version` other
+/// than [`PLAN_VERSION`] or a `lower_bound` outside 0 and the plan's cost
+/// ([`ParseProblem::Unexpected`]); a plan for another instance
+/// ([`ParseProblem::WrongInstance`]); a service that is not a required
+/// street in an allowed direction ([`ParseProblem::NotARequiredLink`]) or a
+/// street served twice ([`ParseProblem::ServedTwice`]); a stated load, cost
+/// or time that differs from the recomputed one ([`ParseProblem::Mismatch`]);
+/// and an instance whose shortest paths cannot be computed.
 pub fn read_plan(text: &str, file: &str, inst: &Instance) -> Result<Plan> {
     let dist = Distances::new(inst).map_err(|e| {
         Error::parse(
@@ -266,37 +274,56 @@ fn parse(
     strict: bool,
 ) -> Result<(FilePlan, Vec<Vec<Visit>>)> {
     let fp = parse_json(text, file)?;
+    check_header(&fp, text, file, inst)?;
+    let routes = services(&fp, text, file, inst, strict)?;
+    Ok((fp, routes))
+}
+
+/// The file's `version`, `format` and `instance` against what this reader
+/// reads and `inst`.
+fn check_header(fp: &FilePlan, text: &str, file: &str, inst: &Instance) -> Result<()> {
+    let line = |key| super::scenario::line_of_key(text, key);
     if let Some(v) = fp.version.filter(|&v| v != PLAN_VERSION) {
         return Err(Error::parse(
             file,
-            super::scenario::line_of_key(text, "version"),
+            line("version"),
             ParseProblem::Unexpected {
                 expected: "plan format version 1 (the version this program reads)",
                 found: format!("version {v}"),
             },
         ));
     }
-    if let Some(f) = &fp.format {
-        if f != "arcwright-plan" {
-            return Err(Error::parse(
-                file,
-                None,
-                ParseProblem::Json {
-                    message: format!("format is `{f}`, expected `arcwright-plan`"),
-                },
-            ));
-        }
+    if let Some(f) = fp.format.as_ref().filter(|&f| f != "arcwright-plan") {
+        return Err(Error::parse(
+            file,
+            line("format"),
+            ParseProblem::Json {
+                message: format!("format is `{f}`, expected `arcwright-plan`"),
+            },
+        ));
     }
     if fp.instance != inst.name {
         return Err(Error::parse(
             file,
-            None,
+            line("instance"),
             ParseProblem::WrongInstance {
                 expected: inst.name.clone(),
-                found: fp.instance,
+                found: fp.instance.clone(),
             },
         ));
     }
+    Ok(())
+}
+
+/// The visits of each route of the file (empty routes kept); see [`parse`]
+/// for `strict`.
+fn services(
+    fp: &FilePlan,
+    text: &str,
+    file: &str,
+    inst: &Instance,
+    strict: bool,
+) -> Result<Vec<Vec<Visit>>> {
     let net = inst.network();
     let mut task_of = vec![usize::MAX; net.links.len()];
     for (i, t) in inst.tasks().iter().enumerate() {
@@ -355,10 +382,14 @@ fn parse(
         }
         routes.push(visits);
     }
-    Ok((fp, routes))
+    Ok(routes)
 }
 
 /// [`read_plan`] with precomputed distances.
+///
+/// # Errors
+///
+/// As [`read_plan`] (apart from computing the distances).
 pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances) -> Result<Plan> {
     let (fp, routes) = parse(text, file, inst, true)?;
     let plan = Plan::from_visits(inst, dist, routes.clone());
@@ -377,11 +408,12 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         ] {
             if let Some(st) = stated {
                 if st != computed {
+                    let path = [Seg::Key("routes"), Seg::Index(ri), Seg::Key(what)];
                     return Err(Error::parse(
                         file,
-                        None,
+                        line_of(text, &path),
                         ParseProblem::Mismatch {
-                            what: format!("route {ri} {what}"),
+                            what: format!("Truck {} {what}", ri + 1),
                             stated: st,
                             computed,
                         },
@@ -394,7 +426,7 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
         if c != plan.cost {
             return Err(Error::parse(
                 file,
-                None,
+                super::scenario::line_of_key(text, "cost"),
                 ParseProblem::Mismatch {
                     what: "plan cost".into(),
                     stated: c,
@@ -437,6 +469,13 @@ pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances)
 /// - a route's `time` is the stated one; a file without route times gets
 ///   [`Route::time`] recomputed with `dist` (service time plus driving time
 ///   along the least-cost legs).
+///
+/// # Errors
+///
+/// [`Error::Parse`] naming `file` for JSON syntax or schema errors, another
+/// `format` or `version`, a plan for another instance, and a service that
+/// names no required street or not its two ends (see above); the line is
+/// given where it is known.
 pub fn read_plan_as_written(
     text: &str,
     file: &str,
@@ -450,7 +489,7 @@ pub fn read_plan_as_written(
         .iter()
         .zip(visits)
         .map(|(r, visits)| {
-            let (load, cost, time) = evaluate(inst, dist, &visits);
+            let Totals { load, cost, time } = totals(inst, dist, &visits);
             computed_total = computed_total.saturating_add(cost);
             Route {
                 visits,

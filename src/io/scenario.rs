@@ -11,8 +11,28 @@
 //! | `coordinates` | object, optional | `{ "system": "wgs84" }` (`x` longitude, `y` latitude, degrees) or `{ "system": "planar", "origin": { "lon": number, "lat": number }? }` (metres east and north; the origin places the point (0, 0) on the Earth); see [`crate::model::Coordinates`]. Absent: undeclared, never guessed |
 //! | `junctions` | array | `{ "id": integer, "x": number?, "y": number? }`; ids are any distinct non-negative integers (OSM node ids, say) |
 //! | `streets` | array | see below |
-//! | `yard` | integer | id of the junction the trucks leave from and return to (the depot) |
-//! | `fleet` | object | `{ "capacity": integer, "shift_limit": integer?, "max_trucks": integer? }` |
+//! | `yard` | integer | id of the junction the trucks leave from and return to (the depot); give `yard` or `yards` |
+//! | `fleet` | object | `{ "capacity": integer, "shift_limit": integer?, "max_trucks": integer? }`; give `fleet` or `truck_types` |
+//! | `yards` | array, optional | several yards: `{ "name": string, "junction": id }`; the first is the depot of the plain model |
+//! | `dump_sites` | array, optional | `{ "name": string?, "junction": id, "unload_time": integer, "unload_cost": integer?, "opens": integer?, "closes": integer? }` (unload cost default 0; opening hours in time units since the start of the shift, default always open) |
+//! | `return_empty` | bool, optional | with dump sites: whether a truck must tip before returning to its yard (default `true`) |
+//! | `truck_types` | array, optional | `{ "name": string, "count": integer?, "capacity": integer, "shift_limit": integer?, "yard": string?, "fixed_cost": integer?, "cost_per_mille": integer?, "no_entry": [street index]?, "no_service": [street index]? }` |
+//! | `balance` | object, optional | `{ "longest_shift_weight": integer }`: minimise total cost + weight × longest shift time (default: least total cost) |
+//!
+//! The dump sites, yards, truck types and balance setting are described in
+//! [`crate::model::Operations`]: a truck tips whenever it chooses, the load
+//! limit (`capacity`) holds for each trip between tips, the shift limit for
+//! the whole route; `count` omitted means as many trucks as needed; a truck
+//! type's `yard` names one of `yards` (it may be omitted when there is at
+//! most one); `fixed_cost` (default 0) is paid per truck used,
+//! `cost_per_mille` (default 1000) scales the cost of every street the truck
+//! drives, in thousandths; `no_entry` and `no_service` list streets by their
+//! position in `streets` (0-based) that the type must not drive on, or must
+//! not serve. With `truck_types`, the plain model's fleet (what
+//! [`Instance::fleet`] returns) has the largest capacity, no shift limit and
+//! as many trucks as all types together. Files without these fields read as
+//! before, with every feature off.
+//!
 //! | `turn_restrictions` | array, optional | `{ "rule": string, "from_street": integer, "via": id, "to_street": integer }`, see below |
 //! | `turn_rules` | object, optional | `{ "driving_side": "right" \| "left", "u_turns": "dead_ends_only" \| "allowed", "penalties": { "straight": integer, "right": integer, "left": integer, "u_turn": integer }, "obey_restrictions": bool }`, every field optional (defaults `"right"`, `"dead_ends_only"`, all penalties 0, `true`); see [`crate::turns`]. Absent: trucks turn freely and pay nothing (the plan is exactly that of a file without it) |
 //!
@@ -99,8 +119,9 @@ use serde::{Deserialize, Serialize};
 use super::MAX_NUMBER;
 use crate::error::{Error, ParseProblem, Problems, Result};
 use crate::model::{
-    Coordinates, Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection,
-    ServiceSpec, TurnRestriction, Units,
+    Balance, Coordinates, Cost, DumpSite, Element, Fleet, Hours, Instance, Junction, Link,
+    ModelError, Network, Operations, OperationsError, ServeDirection, ServiceSpec, TruckType,
+    TurnRestriction, Units, Yard,
 };
 
 /// The value of the `format` field.
@@ -121,8 +142,20 @@ struct FileRec {
     coordinates: Option<CoordinatesRec>,
     junctions: Vec<JunctionRec>,
     streets: Vec<StreetRec>,
-    yard: u64,
-    fleet: FleetRec,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    yard: Option<u64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    fleet: Option<FleetRec>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    yards: Vec<YardRec>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    dump_sites: Vec<DumpSiteRec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    return_empty: Option<bool>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    truck_types: Vec<TruckTypeRec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    balance: Option<BalanceRec>,
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     turn_restrictions: Vec<TurnRec>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -136,6 +169,67 @@ struct TurnRec {
     from_street: usize,
     via: u64,
     to_street: usize,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct YardRec {
+    name: String,
+    junction: u64,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct DumpSiteRec {
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    name: Option<String>,
+    junction: u64,
+    unload_time: i64,
+    #[serde(default, skip_serializing_if = "is_zero")]
+    unload_cost: i64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    opens: Option<i64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    closes: Option<i64>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TruckTypeRec {
+    name: String,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    count: Option<usize>,
+    capacity: i64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    shift_limit: Option<i64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    yard: Option<String>,
+    #[serde(default, skip_serializing_if = "is_zero")]
+    fixed_cost: i64,
+    #[serde(default = "per_mille_one", skip_serializing_if = "is_per_mille_one")]
+    cost_per_mille: i64,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    no_entry: Vec<usize>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    no_service: Vec<usize>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct BalanceRec {
+    longest_shift_weight: i64,
+}
+
+fn is_zero(v: &i64) -> bool {
+    *v == 0
+}
+
+fn per_mille_one() -> i64 {
+    1000
+}
+
+fn is_per_mille_one(v: &i64) -> bool {
+    *v == 1000
 }
 
 #[derive(Serialize, Deserialize, Default)]
@@ -236,7 +330,7 @@ struct FleetRec {
 
 /// One step of a JSON path.
 #[derive(Clone, Debug)]
-enum Seg {
+pub(crate) enum Seg {
     Key(&'static str),
     Index(usize),
 }
@@ -265,7 +359,7 @@ pub(crate) fn line_of_key(text: &str, key: &'static str) -> Option<usize> {
 
 /// Finds the line where the value at `path` starts, in text that serde_json
 /// has already accepted. `None` when it cannot be found.
-fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
+pub(crate) fn line_of(text: &str, path: &[Seg]) -> Option<usize> {
     let mut sc = Scan {
         b: text.as_bytes(),
         i: 0,
@@ -438,7 +532,9 @@ pub fn read_scenario_file(path: impl AsRef<Path>) -> Result<Instance> {
 /// its line, with the column), a wrong `format` or `version`, and then each
 /// problem of the content at its JSON path and line: a junction id given
 /// twice or unknown, a number above [`MAX_NUMBER`], a negative shift limit,
-/// or an invalid instance ([`ParseProblem::Model`]).
+/// a junction's coordinates outside the declared system
+/// ([`ParseProblem::Coordinate`], every such junction), or an invalid
+/// instance ([`ParseProblem::Model`]).
 ///
 /// # Complexity
 /// `O(L + V + E)` for `L` bytes of text, `V` junctions and `E` streets
@@ -488,8 +584,14 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
     let (junctions, index) = c.junctions(&rec.junctions);
     let links = c.streets(&rec.streets, &index);
     let turn_restrictions = c.turns(&rec.turn_restrictions, &index, rec.streets.len());
-    let depot = c.lookup(&index, vec![Seg::Key("yard")], rec.yard);
-    let fleet = c.fleet(&rec.fleet);
+    let fleet_ops = c.fleet_and_operations(&rec, &index);
+    let (fleet, depot, ops) = match fleet_ops {
+        Ok((fleet, depot, ops)) => (fleet, Some(depot), Some(ops)),
+        Err(e) => {
+            c.problems.push(e);
+            (Fleet::with_capacity(1), None, None)
+        }
+    };
     let at = |path: Vec<Seg>, problem: ParseProblem| c.error_at(path, problem);
     let units = read_units(rec.units.as_ref(), &at);
     let system = read_system(rec.coordinates.as_ref(), &at);
@@ -502,8 +604,11 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             (None, None)
         }
     };
-    let (Some(depot), Some(units), Some(system), true) =
-        (depot, units, system, c.problems.is_empty())
+    if let Some(system) = system {
+        c.coordinates(&junctions, system);
+    }
+    let (Some(depot), Some(ops), Some(units), Some(system), true) =
+        (depot, ops, units, system, c.problems.is_empty())
     else {
         return Err(c.problems.failed());
     };
@@ -522,20 +627,15 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
         }
     };
     let rules = rec.turn_rules;
+    // The coordinates were checked above; this cannot fail.
     let inst = inst
         .with_units(units)
         .with_coordinates(system)
-        .map_err(|(j, e)| {
-            let axis = if matches!(e.axis, "x" | "longitude") {
-                "x"
-            } else {
-                "y"
-            };
-            c.error_at(
-                vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
-                ParseProblem::Coordinate(e),
-            )
-        })?;
+        .map_err(|(j, e)| c.coordinate_error(j, e))?;
+    let inst = inst.with_operations(ops).map_err(|e| {
+        let path = operations_error_path(&rec.yards, &rec.truck_types, &e);
+        c.error_at(path, ParseProblem::Model(ModelError::Operations(e)))
+    })?;
     inst.with_turn_rules(rules).map_err(|all| {
         for e in all {
             let path = turn_error_path(&e);
@@ -581,6 +681,64 @@ impl Collect<'_> {
                 problem: Box::new(problem),
             },
         )
+    }
+
+    /// The fleet, depot and operations (see [`fleet_and_operations`]), the
+    /// junctions looked up in `index`.
+    fn fleet_and_operations(
+        &self,
+        rec: &FileRec,
+        index: &HashMap<u64, usize>,
+    ) -> Result<(Fleet, usize, Operations)> {
+        let at = |path: Vec<Seg>, problem: ParseProblem| self.error_at(path, problem);
+        let lookup = |path: Vec<Seg>, id: u64| -> Result<usize> {
+            index
+                .get(&id)
+                .copied()
+                .ok_or_else(|| at(path, ParseProblem::UnknownJunction { id }))
+        };
+        let limit = |path: Vec<Seg>, what: &'static str, v: i64| -> Result<()> {
+            if v > MAX_NUMBER {
+                let max = MAX_NUMBER as u64;
+                return Err(at(
+                    path,
+                    ParseProblem::TooLarge {
+                        what,
+                        value: v as u64,
+                        max,
+                    },
+                ));
+            }
+            Ok(())
+        };
+        fleet_and_operations(rec, &lookup, &at, &limit)
+    }
+
+    /// The problem of junction `j`'s coordinates, at `junctions[j].x` or
+    /// `junctions[j].y`.
+    fn coordinate_error(&self, j: usize, e: crate::model::CoordError) -> Error {
+        let axis = if matches!(e.axis, "x" | "longitude") {
+            "x"
+        } else {
+            "y"
+        };
+        self.error_at(
+            vec![Seg::Key("junctions"), Seg::Index(j), Seg::Key(axis)],
+            ParseProblem::Coordinate(e),
+        )
+    }
+
+    /// Checks every junction's coordinates against the declared `system`
+    /// and records a problem for each junction that cannot be in it.
+    fn coordinates(&mut self, junctions: &[Junction], system: Coordinates) {
+        for (i, j) in junctions.iter().enumerate() {
+            if let (Some(x), Some(y)) = (j.x, j.y) {
+                if let Err(e) = system.check_point(x, y) {
+                    let e = self.coordinate_error(i, e);
+                    self.problems.push(e);
+                }
+            }
+        }
     }
 
     /// Records `problem` at `path`.
@@ -729,26 +887,239 @@ impl Collect<'_> {
         }
         out
     }
+}
 
-    fn fleet(&mut self, rec: &FleetRec) -> Fleet {
-        let p = |k: &'static str| vec![Seg::Key("fleet"), Seg::Key(k)];
-        self.limit(p("capacity"), "capacity", rec.capacity);
-        if let Some(t) = rec.shift_limit {
-            self.limit(p("shift_limit"), "shift limit", t);
-            if t < 0 {
-                let problem = ParseProblem::Negative {
-                    what: "shift limit",
-                    value: t,
-                };
-                self.at(p("shift_limit"), problem);
+type Lookup<'a> = dyn Fn(Vec<Seg>, u64) -> Result<usize> + 'a;
+type At<'a> = dyn Fn(Vec<Seg>, ParseProblem) -> Error + 'a;
+type Limit<'a> = dyn Fn(Vec<Seg>, &'static str, i64) -> Result<()> + 'a;
+
+/// A number that must be at most [`MAX_NUMBER`] and not negative.
+fn number(at: &At, limit: &Limit, path: Vec<Seg>, what: &'static str, v: i64) -> Result<()> {
+    limit(path.clone(), what, v)?;
+    if v < 0 {
+        return Err(at(path, ParseProblem::Negative { what, value: v }));
+    }
+    Ok(())
+}
+
+/// The fleet, depot and operations of a scenario: `yard` + `fleet` (the
+/// plain model) or `yards` / `truck_types`, plus dump sites and balance.
+fn fleet_and_operations(
+    rec: &FileRec,
+    lookup: &Lookup,
+    at: &At,
+    limit: &Limit,
+) -> Result<(Fleet, usize, Operations)> {
+    let key = |k: &'static str| vec![Seg::Key(k)];
+    let both = |k: &'static str, other: &'static str| {
+        at(key(k), ParseProblem::Conflict { given: k, other })
+    };
+    let mut yards = Vec::with_capacity(rec.yards.len());
+    for (i, y) in rec.yards.iter().enumerate() {
+        let p = vec![Seg::Key("yards"), Seg::Index(i), Seg::Key("junction")];
+        yards.push(Yard {
+            name: y.name.clone(),
+            junction: lookup(p, y.junction)?,
+        });
+    }
+    let depot = match (rec.yard, yards.first()) {
+        (Some(_), Some(_)) => return Err(both("yard", "yards")),
+        (Some(id), None) => lookup(key("yard"), id)?,
+        (None, Some(y)) => y.junction,
+        (None, None) => {
+            return Err(at(
+                Vec::new(),
+                ParseProblem::MissingKey {
+                    key: "yard (or yards)",
+                },
+            ))
+        }
+    };
+    let dump_sites = read_dump_sites(rec, lookup, at, limit)?;
+    let truck_types = read_truck_types(rec, at, limit)?;
+    let fleet = match (&rec.fleet, truck_types.is_empty()) {
+        (Some(_), false) => return Err(both("fleet", "truck_types")),
+        (None, true) => {
+            return Err(at(
+                Vec::new(),
+                ParseProblem::MissingKey {
+                    key: "fleet (or truck_types)",
+                },
+            ))
+        }
+        (Some(f), true) => {
+            limit(key_in("fleet", "capacity"), "capacity", f.capacity)?;
+            if let Some(t) = f.shift_limit {
+                number(at, limit, key_in("fleet", "shift_limit"), "shift limit", t)?;
+            }
+            Fleet {
+                capacity: f.capacity,
+                shift_limit: f.shift_limit,
+                max_vehicles: f.max_trucks,
             }
         }
-        Fleet {
-            capacity: rec.capacity,
-            shift_limit: rec.shift_limit,
-            max_vehicles: rec.max_trucks,
+        // The plain model's view of a mixed fleet: the largest load limit,
+        // no shift limit, as many trucks as all types together.
+        (None, false) => Fleet {
+            capacity: truck_types.iter().map(|t| t.capacity).max().unwrap_or(1),
+            shift_limit: None,
+            max_vehicles: truck_types
+                .iter()
+                .map(|t| t.count)
+                .try_fold(0usize, |a, c| c.map(|c| a.saturating_add(c))),
+        },
+    };
+    let balance = match &rec.balance {
+        None => Balance::LeastCost,
+        Some(b) => {
+            let p = key_in("balance", "longest_shift_weight");
+            number(at, limit, p, "longest-shift weight", b.longest_shift_weight)?;
+            Balance::LongestShift {
+                weight: b.longest_shift_weight,
+            }
         }
+    };
+    let ops = Operations {
+        dump_sites,
+        return_empty: rec.return_empty.unwrap_or(true),
+        yards,
+        truck_types,
+        balance,
+    };
+    Ok((fleet, depot, ops))
+}
+
+/// The `dump_sites` of a scenario.
+fn read_dump_sites(
+    rec: &FileRec,
+    lookup: &Lookup,
+    at: &At,
+    limit: &Limit,
+) -> Result<Vec<DumpSite>> {
+    let mut dump_sites = Vec::with_capacity(rec.dump_sites.len());
+    for (i, d) in rec.dump_sites.iter().enumerate() {
+        let p = |k: &'static str| vec![Seg::Key("dump_sites"), Seg::Index(i), Seg::Key(k)];
+        number(at, limit, p("unload_time"), "unload time", d.unload_time)?;
+        number(at, limit, p("unload_cost"), "unload cost", d.unload_cost)?;
+        let hours = match (d.opens, d.closes) {
+            (None, None) => None,
+            (o, c) => {
+                let opens = o.unwrap_or(0);
+                let closes = c.unwrap_or(MAX_NUMBER);
+                number(at, limit, p("opens"), "opening time", opens)?;
+                number(at, limit, p("closes"), "closing time", closes)?;
+                Some(Hours { opens, closes })
+            }
+        };
+        dump_sites.push(DumpSite {
+            name: d.name.clone(),
+            junction: lookup(p("junction"), d.junction)?,
+            unload_time: d.unload_time,
+            unload_cost: d.unload_cost,
+            hours,
+        });
     }
+    Ok(dump_sites)
+}
+
+/// The `truck_types` of a scenario, their yards by index into `yards`.
+fn read_truck_types(rec: &FileRec, at: &At, limit: &Limit) -> Result<Vec<TruckType>> {
+    let mut truck_types = Vec::with_capacity(rec.truck_types.len());
+    for (i, t) in rec.truck_types.iter().enumerate() {
+        let p = |k: &'static str| vec![Seg::Key("truck_types"), Seg::Index(i), Seg::Key(k)];
+        limit(p("capacity"), "capacity", t.capacity)?;
+        if t.capacity <= 0 {
+            return Err(at(
+                p("capacity"),
+                ParseProblem::Model(ModelError::BadCapacity {
+                    capacity: t.capacity,
+                }),
+            ));
+        }
+        if let Some(v) = t.shift_limit {
+            number(at, limit, p("shift_limit"), "shift limit", v)?;
+        }
+        number(at, limit, p("fixed_cost"), "fixed cost", t.fixed_cost)?;
+        number(
+            at,
+            limit,
+            p("cost_per_mille"),
+            "cost factor",
+            t.cost_per_mille,
+        )?;
+        let yard = match (&t.yard, rec.yards.len()) {
+            (None, 0 | 1) => 0,
+            (None, _) => return Err(at(p("name"), ParseProblem::MissingKey { key: "yard" })),
+            (Some(name), _) => rec
+                .yards
+                .iter()
+                .position(|y| &y.name == name)
+                .ok_or_else(|| {
+                    at(
+                        p("yard"),
+                        ParseProblem::UnknownName {
+                            what: "yard",
+                            name: name.clone(),
+                        },
+                    )
+                })?,
+        };
+        truck_types.push(TruckType {
+            name: t.name.clone(),
+            count: t.count,
+            capacity: t.capacity,
+            shift_limit: t.shift_limit,
+            yard,
+            fixed_cost: t.fixed_cost,
+            cost_per_mille: t.cost_per_mille,
+            no_entry: t.no_entry.clone(),
+            no_service: t.no_service.clone(),
+        });
+    }
+    Ok(truck_types)
+}
+
+fn key_in(a: &'static str, b: &'static str) -> Vec<Seg> {
+    vec![Seg::Key(a), Seg::Key(b)]
+}
+
+/// Where in the file an error of the operations points.
+fn operations_error_path(
+    yards: &[YardRec],
+    types: &[TruckTypeRec],
+    e: &OperationsError,
+) -> Vec<Seg> {
+    let field = match e {
+        OperationsError::Negative { what, .. } => match *what {
+            "unload time" => Some("unload_time"),
+            "unload cost" => Some("unload_cost"),
+            "opening time" => Some("opens"),
+            "shift limit" => Some("shift_limit"),
+            "fixed cost" => Some("fixed_cost"),
+            "cost factor" => Some("cost_per_mille"),
+            _ => None,
+        },
+        OperationsError::BadHours { .. } => Some("closes"),
+        OperationsError::NoSuchStreet { list, .. } => Some(*list),
+        _ => None,
+    };
+    let mut p = match e.element() {
+        Some(Element::DumpSite(i)) => vec![Seg::Key("dump_sites"), Seg::Index(i)],
+        Some(Element::Street(i)) => vec![Seg::Key("streets"), Seg::Index(i)],
+        Some(Element::Yard(name)) => match yards.iter().position(|y| y.name == name) {
+            Some(i) => vec![Seg::Key("yards"), Seg::Index(i)],
+            None => vec![Seg::Key("yard")],
+        },
+        Some(Element::TruckType(name)) => match types.iter().position(|t| t.name == name) {
+            Some(i) => vec![Seg::Key("truck_types"), Seg::Index(i)],
+            None => vec![Seg::Key("fleet")],
+        },
+        None => Vec::new(),
+    };
+    if let (Some(f), false) = (field, p.is_empty()) {
+        p.push(Seg::Key(f));
+    }
+    p
 }
 
 /// The declared units, each checked ([`Units::valid_unit`]).
@@ -853,6 +1224,7 @@ fn model_error_path(m: &ModelError) -> Vec<Seg> {
 /// ids are distinct and the coordinates finite).
 pub fn write_scenario(inst: &Instance) -> String {
     let net = inst.network();
+    let ops = inst.operations();
     let id = |j: usize| net.junctions[j].id;
     let finite = |v: Option<f64>| v.filter(|x| x.is_finite());
     let rec = FileRec {
@@ -909,11 +1281,28 @@ pub fn write_scenario(inst: &Instance) -> String {
                 }),
             })
             .collect(),
-        yard: id(inst.depot()),
-        fleet: FleetRec {
+        yard: ops.yards.is_empty().then(|| id(inst.depot())),
+        fleet: ops.truck_types.is_empty().then(|| FleetRec {
             capacity: inst.fleet().capacity as Cost,
             shift_limit: inst.fleet().shift_limit,
             max_trucks: inst.fleet().max_vehicles,
+        }),
+        yards: ops
+            .yards
+            .iter()
+            .map(|y| YardRec {
+                name: y.name.clone(),
+                junction: id(y.junction),
+            })
+            .collect(),
+        dump_sites: dump_site_recs(inst),
+        return_empty: (!ops.return_empty).then_some(false),
+        truck_types: truck_type_recs(inst),
+        balance: match ops.balance {
+            Balance::LeastCost => None,
+            Balance::LongestShift { weight } => Some(BalanceRec {
+                longest_shift_weight: weight,
+            }),
         },
         turn_restrictions: net
             .turn_restrictions
@@ -932,6 +1321,42 @@ pub fn write_scenario(inst: &Instance) -> String {
     let mut s = serde_json::to_string_pretty(&rec).expect("scenario records always serialize");
     s.push('\n');
     s
+}
+
+/// The dump sites of `inst` as scenario records.
+fn dump_site_recs(inst: &Instance) -> Vec<DumpSiteRec> {
+    let ops = inst.operations();
+    let id = |j: usize| inst.network().junctions[j].id;
+    ops.dump_sites
+        .iter()
+        .map(|d| DumpSiteRec {
+            name: d.name.clone(),
+            junction: id(d.junction),
+            unload_time: d.unload_time,
+            unload_cost: d.unload_cost,
+            opens: d.hours.map(|h| h.opens),
+            closes: d.hours.map(|h| h.closes),
+        })
+        .collect()
+}
+
+/// The truck types of `inst` as scenario records (yards by name).
+fn truck_type_recs(inst: &Instance) -> Vec<TruckTypeRec> {
+    let ops = inst.operations();
+    ops.truck_types
+        .iter()
+        .map(|t| TruckTypeRec {
+            name: t.name.clone(),
+            count: t.count,
+            capacity: t.capacity,
+            shift_limit: t.shift_limit,
+            yard: ops.yards.get(t.yard).map(|y| y.name.clone()),
+            fixed_cost: t.fixed_cost,
+            cost_per_mille: t.cost_per_mille,
+            no_entry: t.no_entry.clone(),
+            no_service: t.no_service.clone(),
+        })
+        .collect()
 }
 
 fn units_rec(u: &Units) -> Option<UnitsRec> {

@@ -1,6 +1,9 @@
 use serde::{Deserialize, Serialize};
 
-use super::{CoordError, Coordinates, Cost, Fleet, Network, ServeDirection, Units};
+use super::{
+    CoordError, Coordinates, Cost, Fleet, Network, Operations, OperationsError, ServeDirection,
+    Units,
+};
 
 /// Why a network, fleet and yard do not make a valid instance.
 ///
@@ -74,6 +77,9 @@ pub enum ModelError {
         /// The number of streets to serve.
         tasks: usize,
     },
+    /// Dump sites, yards or truck types that do not fit the network.
+    #[error("{0}")]
+    Operations(OperationsError),
 }
 
 /// Why a street to serve is out of reach of a round trip from the yard.
@@ -170,6 +176,7 @@ pub struct Instance {
     depot: usize,
     tasks: Vec<Task>,
     turns: Option<crate::turns::TurnRules>,
+    ops: Operations,
 }
 
 impl Instance {
@@ -251,6 +258,7 @@ impl Instance {
             depot,
             tasks,
             turns: None,
+            ops: Operations::default(),
         };
         if problems.is_empty() {
             inst.check_reachable(&mut problems);
@@ -356,19 +364,61 @@ impl Instance {
         self.network.has_times()
     }
 
-    /// Returns a copy with another fleet, revalidated.
+    /// Returns a copy with another fleet, revalidated (its operations are
+    /// kept and revalidated too).
     ///
     /// # Errors
     /// The first [`ModelError`] with the new fleet (a capacity that is not positive, a street
-    /// heavier than a truck, no truck for the work).
+    /// heavier than a truck, no truck for the work); operations that no longer fit give
+    /// [`ModelError::Operations`].
     pub fn with_fleet(&self, fleet: Fleet) -> Result<Instance, ModelError> {
         let inst = Instance::new(self.name.clone(), self.network.clone(), fleet, self.depot)?;
-        Ok(Instance {
+        let inst = Instance {
             units: self.units.clone(),
             coordinates: self.coordinates,
             turns: self.turns,
             ..inst
-        })
+        };
+        inst.with_operations(self.ops.clone())
+            .map_err(ModelError::Operations)
+    }
+
+    /// The dump sites, yards, truck types and balance setting
+    /// ([`Operations::default`], every feature off, unless set with
+    /// [`Instance::with_operations`]).
+    pub fn operations(&self) -> &Operations {
+        &self.ops
+    }
+
+    /// Attaches dump sites, yards, truck types and a balance setting,
+    /// validated against the network.
+    ///
+    /// ```
+    /// use arcwright::model::{DumpSite, Fleet, Instance, Network, Operations};
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(0, 1, 4, 2);
+    /// net.add_edge(1, 2, 5);
+    /// let inst = Instance::new("lane", net, Fleet::with_capacity(10), 0).unwrap();
+    /// let ops = Operations {
+    ///     dump_sites: vec![DumpSite { name: None, junction: 2, unload_time: 20,
+    ///                                 unload_cost: 0, hours: None }],
+    ///     ..Operations::default()
+    /// };
+    /// let inst = inst.with_operations(ops).unwrap();
+    /// assert_eq!(inst.operations().dump_sites.len(), 1);
+    /// ```
+    ///
+    /// # Errors
+    ///
+    /// An [`OperationsError`] naming the dump site, yard, truck type or
+    /// street at fault: a junction or street out of range, a negative
+    /// number, a dump site that a street to serve cannot reach, a yard with
+    /// no trucks, a truck type that can serve no street, a street no truck
+    /// type can serve.
+    pub fn with_operations(mut self, ops: Operations) -> Result<Instance, OperationsError> {
+        ops.validate(&self)?;
+        self.ops = ops;
+        Ok(self)
     }
 
     /// The units the scenario declares for its numbers.

@@ -17,12 +17,16 @@ mod coords;
 mod fleet;
 mod instance;
 mod network;
+mod operations;
 mod units;
 
 pub use coords::{CoordError, Coordinates, Projection, EARTH_RADIUS_M};
 pub use fleet::Fleet;
 pub use instance::{Dir, Instance, ModelError, Reach, Task, MAX_PROBLEMS};
 pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec, TurnRestriction};
+pub use operations::{
+    Balance, DumpSite, Element, Hours, Operations, OperationsError, TruckType, Yard,
+};
 pub use units::{Units, MAX_UNIT_LEN};
 
 /// Exact integer cost, time or demand.

@@ -59,16 +59,6 @@ pub struct Totals {
     pub time: Cost,
 }
 
-/// The old tuple form `(load, cost, time)` of [`totals`].
-///
-/// Kept only until `src/io/plan_json.rs` and `tests/reports.rs` (planner
-/// branch) call [`totals`]; then it goes.
-#[doc(hidden)]
-pub fn evaluate(inst: &Instance, dist: &Distances, visits: &[Visit]) -> (Cost, Cost, Cost) {
-    let t = totals(inst, dist, visits);
-    (t.load, t.cost, t.time)
-}
-
 /// Load, cost and time of a sequence of visits driven from the yard and back.
 /// The cost and time are [`UNREACHABLE`] when a leg has no path.
 pub fn totals(inst: &Instance, dist: &Distances, visits: &[Visit]) -> Totals {

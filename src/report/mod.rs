@@ -8,13 +8,17 @@
 //!   ([`crate::plan::walk`]) with running load, distance and time;
 //! - [`geo`]: a GeoJSON FeatureCollection (RFC 7946) of every step;
 //! - [`svg`]: a map of the network and the routes;
-//! - [`summary_table`]: a plain-text table of the routes and totals.
+//! - [`summary_table`]: a plain-text table of the routes and totals;
+//! - [`fleet`]: route sheets of fleet plans, with every tip ("tip at
+//!   Landfill, unload 15 min"); the SVG map marks the operations' other
+//!   yards and dump sites.
 //!
 //! The Markdown sheets and the summary carry the [`CAUTIONS`]; the CSV sheets
 //! are plain tables (header on line 1) for spreadsheets. Every number is
 //! labelled with the unit the scenario declares ([`crate::model::Units`]),
 //! and [`describe`] puts the checker's findings in the sheets' words.
 
+pub mod fleet;
 pub mod geo;
 pub mod sheets;
 pub mod svg;

@@ -164,6 +164,7 @@ pub fn map_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> Optio
     routes(&mut s, inst, &f, all);
     junction_labels(&mut s, inst, &f, all);
     yard(&mut s, inst, &f);
+    sites(&mut s, inst, &f);
     scale_bar(&mut s, &f);
     legend(&mut s, inst, plan, &f);
     s.push_str("</svg>\n");
@@ -461,6 +462,54 @@ fn yard(s: &mut String, inst: &Instance, f: &Frame) {
         yy - 7.0,
         xml_escape(&label)
     );
+}
+
+/// The other yards of the instance's operations (white squares) and its
+/// dump sites (dark red triangles), each labelled with its name.
+fn sites(s: &mut String, inst: &Instance, f: &Frame) {
+    let ops = inst.operations();
+    let mut marks: Vec<(usize, String, bool)> = ops
+        .yards
+        .iter()
+        .filter(|y| y.junction != inst.depot())
+        .map(|y| (y.junction, format!("Yard {}", y.name), false))
+        .collect();
+    for i in 0..ops.dump_sites.len() {
+        let name = super::fleet::site_name(inst, i);
+        marks.push((ops.dump_sites[i].junction, name, true));
+    }
+    if marks.is_empty() {
+        return;
+    }
+    s.push_str("<g id=\"sites\">\n");
+    for (j, label, dump) in marks {
+        let (x, y) = f.px[j];
+        let shape = if dump {
+            format!(
+                r##"<path d="M {:.1} {:.1} L {:.1} {:.1} L {:.1} {:.1} Z" fill="#8b1a1a" stroke="#ffffff" stroke-width="2"/>"##,
+                x,
+                y - 9.0,
+                x + 8.0,
+                y + 6.0,
+                x - 8.0,
+                y + 6.0
+            )
+        } else {
+            format!(
+                r##"<rect x="{:.1}" y="{:.1}" width="14" height="14" fill="#ffffff" stroke="#111111" stroke-width="2"/>"##,
+                x - 7.0,
+                y - 7.0
+            )
+        };
+        let _ = writeln!(
+            s,
+            r##"{shape}<text x="{:.1}" y="{:.1}" font-weight="bold" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
+            x + 11.0,
+            y + 4.0,
+            xml_escape(&label)
+        );
+    }
+    s.push_str("</g>\n");
 }
 
 /// A round length (1, 2 or 5 times a power of ten) about a fifth of the

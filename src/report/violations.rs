@@ -39,7 +39,8 @@ fn step_at(at: &At) -> String {
 /// One finding of [`crate::check::check_plan`] or
 /// [`crate::check::check_walks`] in the words of the sheets (trucks from 1,
 /// street names, junction numbers of the scenario), where the checker's own
-/// `Display` uses 0-based indices.
+/// `Display`, without the instance, names streets and some junctions by
+/// their place in the scenario's lists (`street #8`).
 ///
 /// ```
 /// use arcwright::check::Violation;
@@ -151,14 +152,16 @@ fn describe_walk(inst: &Instance, v: &Violation) -> String {
             "{}: no street #{link} (the scenario has {links})",
             step_at(at)
         ),
-        NotOnLink { at, link, from, to } => format!(
+        NotOnLink {
+            at, link, from, to, ..
+        } => format!(
             "{}: a step from {} to {} does not follow {}",
             step_at(at),
             junction(inst, *from),
             junction(inst, *to),
             street(*link)
         ),
-        AgainstOneWay { at, link } => format!(
+        AgainstOneWay { at, link, .. } => format!(
             "{}: one-way {} is driven against its direction",
             step_at(at),
             street(*link)
@@ -183,7 +186,7 @@ fn describe_walk(inst: &Instance, v: &Violation) -> String {
             route + 1,
             junction(inst, *j)
         ),
-        ServesNonRequired { at, link } => format!(
+        ServesNonRequired { at, link, .. } => format!(
             "{}: {} is served but it is not to be served",
             step_at(at),
             street(*link)

@@ -99,6 +99,10 @@ pub struct Solution {
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum SolveError {
+    /// Turn rules together with dump sites, several yards or truck types
+    /// (not supported yet: refused rather than ignored).
+    #[error("turn rules cannot yet be combined with dump sites, several yards or truck types")]
+    TurnsWithOperations,
     /// The scenario's turn rules cannot be used.
     #[error("turn rules: {}", .0.iter().map(|e| e.to_string()).collect::<Vec<_>>().join("; "))]
     TurnRules(Vec<crate::turns::TurnError>),
@@ -143,6 +147,11 @@ pub enum SolveError {
         /// Fewest routes of any plan the constructions found.
         fewest_found: usize,
     },
+    /// The instance has dump sites, several yards, truck types or a balance
+    /// setting ([`crate::model::Operations`]), which this solver does not
+    /// know: use [`crate::fleet::FleetSolver`].
+    #[error("the scenario has dump sites, several yards, truck types or balancing: plan it with the fleet solver")]
+    NeedsFleetSolver,
     /// A task cannot be served on a route of its own within capacity and shift.
     #[error(
         "{street} cannot be served even on a route of its own within the capacity and shift limit"
@@ -262,7 +271,10 @@ impl<'a> Solver<'a> {
         self
     }
 
-    /// Runs the search.
+    /// Runs the search. The plan returned passes [`crate::check::check_plan`],
+    /// serves every self-loop (a street whose two ends are one junction)
+    /// [`crate::model::Dir::Forward`] ([`Plan::self_loops_forward`]), and
+    /// reads back equal after [`crate::io::write_plan`].
     ///
     /// # Errors
     /// [`SolveError`] when no plan can be made: the shortest paths or the
@@ -292,6 +304,9 @@ impl<'a> Solver<'a> {
     pub fn solve(self) -> Result<Solution, SolveError> {
         let start = Instant::now();
         let inst = self.inst;
+        if !inst.operations().is_plain(inst) {
+            return Err(SolveError::NeedsFleetSolver);
+        }
         let owned;
         let dist = match self.dist {
             Some(d) if d.serves(inst) => d,
@@ -344,9 +359,13 @@ impl<'a> Solver<'a> {
             .iter()
             .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
             .collect();
+        // A self-loop served either way is the same drive, but a plan file
+        // can state only one direction for it: return the one it reads back
+        // as, so every plan returned writes and reads back identically.
+        // With turn rules the direction changes the turns, so it is kept.
         let plan = match &turned {
             Some(td) => crate::turns::plan_from_visits(inst, td, visits),
-            None => Plan::from_visits(inst, dist, visits),
+            None => Plan::from_visits(inst, dist, visits).self_loops_forward(inst),
         };
         debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
         debug_assert!(
@@ -418,7 +437,10 @@ impl<'a> Solver<'a> {
                     .for_each(|(isl, b)| {
                         let n = epoch.min(*b);
                         let done = isl.run(ctx, n);
-                        *b -= done;
+                        // An island that can do no iteration (its population
+                        // cannot reach two distinct plans: a tiny instance)
+                        // never will; without this the loop would spin.
+                        *b = if done == 0 { 0 } else { *b - done };
                     })
             });
             iterations = islands.iter().map(|i| i.iterations).sum();

@@ -29,3 +29,20 @@ pub fn shared_dir(test: &str) -> Option<PathBuf> {
 pub fn shared_file(test: &str, relative: &str) -> Option<PathBuf> {
     shared_dir(test).map(|d| d.join(relative))
 }
+
+/// The OpenStreetMap extract `../shared/osm/helsinki.osm.pbf` (© OpenStreetMap
+/// contributors, ODbL 1.0), or `None` after printing the one SKIPPED line
+/// when it is absent. `test` names the caller in that line.
+#[allow(dead_code)]
+pub fn shared_osm(test: &str) -> Option<PathBuf> {
+    let file = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/osm/helsinki.osm.pbf");
+    if file.is_file() {
+        Some(file)
+    } else {
+        println!(
+            "SKIPPED {test}: the OpenStreetMap extract is absent ({} is not a file)",
+            file.display()
+        );
+        None
+    }
+}

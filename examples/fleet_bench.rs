@@ -1,0 +1,179 @@
+//! The fleet model on derived instances of our own: writes them and prints
+//! cost, trips, tips, shift times and their spread, with and without
+//! balancing.
+//!
+//! ```text
+//! cargo run --release --example fleet_bench [-- OUT_DIR]
+//! ```
+//!
+//! 1. *Demo town with a landfill*: `instances/demo-town.json` plus a
+//!    landfill 6 km outside town (a new junction joined to the town junction
+//!    farthest from the yard by a 6,000 m road driven in 400 s), unloading
+//!    15 min, and two truck types instead of the one fleet: `compact`
+//!    (load 350, 3 trucks, cost factor 0.9) and `large` (load 700, 3 trucks,
+//!    fixed cost 2,000 per truck used, cost factor 1.2), both with the town's
+//!    4-hour shift.
+//! 2. *egl with a dump site*: each `egl-e1-A` … `egl-s1-A` file of
+//!    `../shared/instances/egl` plus a dump site at the junction farthest
+//!    (least-cost path) from the depot, no unload time, unlimited trucks.
+//!
+//! Each is solved with least cost, then with `longest_shift_weight` 2
+//! (total cost + 2 × longest shift). The derived scenarios are written to
+//! OUT_DIR (default `target/fleet-bench`) so that anyone can re-run them.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use arcwright::check::fleet::check_fleet_plan;
+use arcwright::fleet::FleetSolver;
+use arcwright::io::{read_dat_file, read_scenario_file, write_scenario};
+use arcwright::model::{
+    Balance, DumpSite, Instance, Junction, Link, Network, Operations, TruckType,
+};
+use arcwright::paths::Distances;
+
+fn main() {
+    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let out = std::env::args()
+        .nth(1)
+        .map(PathBuf::from)
+        .unwrap_or_else(|| root.join("target/fleet-bench"));
+    std::fs::create_dir_all(&out).expect("output folder");
+    let mut cases = vec![demo_with_landfill(&root)];
+    let egl = root.join("../shared/instances/egl");
+    if egl.exists() {
+        for name in ["egl-e1-A", "egl-s1-A"] {
+            cases.push(egl_with_dump(&egl.join(format!("{name}.dat"))));
+        }
+    } else {
+        eprintln!("SKIPPED egl: ../shared/instances not found");
+    }
+    println!("| instance | balance | cost | routes | trips | tips | longest shift | shortest shift | seconds |");
+    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|");
+    for inst in cases {
+        let file = out.join(format!("{}.json", inst.name.replace(' ', "-")));
+        std::fs::write(&file, write_scenario(&inst)).expect("write scenario");
+        for weight in [0, 2] {
+            let mut ops = inst.operations().clone();
+            ops.balance = if weight == 0 {
+                Balance::LeastCost
+            } else {
+                Balance::LongestShift { weight }
+            };
+            let inst = inst.clone().with_operations(ops).expect("valid");
+            let t = Instant::now();
+            let sol = FleetSolver::new(&inst)
+                .max_iterations(200)
+                .moves(40)
+                .solve()
+                .expect("a plan");
+            let secs = t.elapsed().as_secs_f64();
+            assert!(check_fleet_plan(&inst, &sol.plan).is_ok());
+            let (long, short) = sol.shift_spread;
+            println!(
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
+                inst.name,
+                if weight == 0 {
+                    "least cost".to_string()
+                } else {
+                    format!("cost + {weight} × longest")
+                },
+                sol.cost,
+                sol.plan.routes.len(),
+                sol.plan.trips(),
+                sol.plan.tips(),
+                long,
+                short,
+                secs
+            );
+        }
+    }
+}
+
+fn demo_with_landfill(root: &std::path::Path) -> Instance {
+    let town = read_scenario_file(root.join("instances/demo-town.json")).expect("demo town");
+    let dist = Distances::new(&town).expect("distances");
+    let yard = town.depot();
+    let far = dist
+        .keys()
+        .iter()
+        .copied()
+        .filter(|&v| dist.cost(yard, v) < arcwright::paths::UNREACHABLE)
+        .max_by_key(|&v| (dist.cost(yard, v), v))
+        .expect("a junction");
+    let mut net: Network = town.network().clone();
+    let (x, y) = (net.junctions[far].x, net.junctions[far].y);
+    let id = net.junctions.iter().map(|j| j.id).max().unwrap_or(0) + 1;
+    net.junctions.push(Junction {
+        id,
+        x: x.map(|x| x + 6000.0),
+        y,
+    });
+    let landfill = net.junctions.len() - 1;
+    net.add_link(Link {
+        from: far,
+        to: landfill,
+        oneway: false,
+        cost: 6000,
+        time: Some(400),
+        service: None,
+        name: Some("Landfill Road".into()),
+        length: Some(6000),
+        geometry: Vec::new(),
+        class: None,
+    });
+    let inst =
+        Instance::new("demo town with landfill", net, town.fleet().clone(), yard).expect("valid");
+    let ty = |name: &str, capacity, fixed_cost, cost_per_mille| TruckType {
+        name: name.into(),
+        count: Some(3),
+        capacity,
+        shift_limit: town.fleet().shift_limit,
+        yard: 0,
+        fixed_cost,
+        cost_per_mille,
+        no_entry: vec![],
+        no_service: vec![],
+    };
+    let ops = Operations {
+        dump_sites: vec![DumpSite {
+            name: Some("Landfill".into()),
+            junction: landfill,
+            unload_time: 900,
+            unload_cost: 0,
+            hours: None,
+        }],
+        truck_types: vec![ty("compact", 350, 0, 900), ty("large", 700, 2000, 1200)],
+        ..Operations::default()
+    };
+    inst.with_operations(ops).expect("valid operations")
+}
+
+fn egl_with_dump(path: &std::path::Path) -> Instance {
+    let inst = read_dat_file(path).expect("egl file").instance;
+    let dist = Distances::new(&inst).expect("distances");
+    let depot = inst.depot();
+    let far = dist
+        .keys()
+        .iter()
+        .copied()
+        .max_by_key(|&v| (dist.cost(depot, v), v))
+        .expect("a junction");
+    let name = format!("{} with dump site", inst.name);
+    let inst =
+        Instance::new(name, inst.network().clone(), inst.fleet().clone(), depot).expect("valid");
+    let mut ty = inst.operations().types_of(&inst)[0].clone();
+    ty.count = None;
+    let ops = Operations {
+        dump_sites: vec![DumpSite {
+            name: Some("farthest junction".into()),
+            junction: far,
+            unload_time: 0,
+            unload_cost: 0,
+            hours: None,
+        }],
+        truck_types: vec![ty],
+        ..Operations::default()
+    };
+    inst.with_operations(ops).expect("valid operations")
+}
