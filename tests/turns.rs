@@ -57,18 +57,19 @@ fn arc(link: usize, back: bool) -> u32 {
 /// The reference: every (arriving, leaving) pair of driving arcs at each
 /// junction, allowed or not by the rules as documented, as edges of a
 /// petgraph graph weighted by penalty + deadhead cost of the street entered.
+#[allow(clippy::needless_range_loop)] // a, b are arc numbers, not just positions
 fn reference(inst: &Instance, rules: &TurnRules) -> TurnDistances2 {
     let net = inst.network();
     let m = net.links.len();
     let ends = |a: u32| {
         let l = &net.links[a as usize / 2];
-        if a % 2 == 0 {
+        if a.is_multiple_of(2) {
             (l.from, l.to)
         } else {
             (l.to, l.from)
         }
     };
-    let drivable = |a: u32| a % 2 == 0 || !net.links[a as usize / 2].oneway;
+    let drivable = |a: u32| a.is_multiple_of(2) || !net.links[a as usize / 2].oneway;
     let degree = |v: usize| {
         net.links
             .iter()
@@ -125,7 +126,7 @@ fn reference(inst: &Instance, rules: &TurnRules) -> TurnDistances2 {
     let n = inst.tasks().len();
     let task_arc = |k: usize| -> Option<u32> {
         let t = &inst.tasks()[k / 2];
-        (k % 2 == 0 || t.either).then(|| arc(t.link, k % 2 == 1))
+        (k.is_multiple_of(2) || t.either).then(|| arc(t.link, k % 2 == 1))
     };
     let mut out = vec![vec![UNREACHABLE; 2 * n + 1]; 2 * n + 1];
     for a in 0..=2 * n {
@@ -168,7 +169,7 @@ fn reference(inst: &Instance, rules: &TurnRules) -> TurnDistances2 {
 struct TurnDistances2(Vec<Vec<i64>>);
 
 fn allowed_arc(inst: &Instance, k: usize) -> bool {
-    k == 2 * inst.tasks().len() || k % 2 == 0 || inst.tasks()[k / 2].either
+    k == 2 * inst.tasks().len() || k.is_multiple_of(2) || inst.tasks()[k / 2].either
 }
 
 #[test]
@@ -227,7 +228,7 @@ fn free_turns_give_todays_distances() {
             inst.depot()
         } else {
             inst.tasks()[k / 2]
-                .ends(if k % 2 == 0 {
+                .ends(if k.is_multiple_of(2) {
                     Dir::Forward
                 } else {
                     Dir::Backward
@@ -240,7 +241,7 @@ fn free_turns_give_todays_distances() {
             inst.depot()
         } else {
             inst.tasks()[k / 2]
-                .ends(if k % 2 == 0 {
+                .ends(if k.is_multiple_of(2) {
                     Dir::Forward
                 } else {
                     Dir::Backward
@@ -388,7 +389,7 @@ fn best_plan(inst: &Instance) -> i64 {
 fn best_single_route(inst: &Instance) -> i64 {
     fn rec(inst: &Instance, left: &mut Vec<usize>, cur: &mut Vec<Visit>, best: &mut i64) {
         if left.is_empty() {
-            *best = (*best).min(checker_cost(inst, &[cur.clone()]));
+            *best = (*best).min(checker_cost(inst, std::slice::from_ref(cur)));
             return;
         }
         for i in 0..left.len() {
@@ -479,7 +480,7 @@ fn banning_u_turns_changes_the_hand_computed_optimum() {
         serve,
     };
     let u_turn = vec![step(0, 0, 1, true), step(0, 1, 0, false)];
-    let v = check_walks(&trucks, &[u_turn.clone()]).unwrap_err();
+    let v = check_walks(&trucks, std::slice::from_ref(&u_turn)).unwrap_err();
     assert!(
         matches!(
             &v[0],
