@@ -10,9 +10,17 @@ use arcwright::demo::{town, TownSpec};
 use arcwright::turns::{TurnDistances, TurnPenalties, TurnRules, TurnTable};
 
 fn main() {
-    let blocks: usize = std::env::args().nth(1).and_then(|s| s.parse().ok()).unwrap_or(20);
+    let blocks: usize = std::env::args()
+        .nth(1)
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(20);
     let inst = town(&TownSpec::new(7, blocks)).expect("town");
-    let rules = TurnRules::trucks(TurnPenalties { left: 30, right: 5, u_turn: 60, straight: 0 });
+    let rules = TurnRules::trucks(TurnPenalties {
+        left: 30,
+        right: 5,
+        u_turn: 60,
+        straight: 0,
+    });
     let t0 = Instant::now();
     let table = TurnTable::new(&inst, &rules).expect("rules");
     let td = TurnDistances::new(&inst, &table);

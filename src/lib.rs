@@ -68,7 +68,7 @@ pub mod search;
 pub mod turns;
 
 pub use error::{Error, Result};
-pub use search::{Progress, Solution, SolveError, Solver, Stats};
+pub use search::{Decomposition, Phase, Progress, Solution, SolveError, Solver, Stats};
 
 /// The README's Rust snippets, compiled (and run, unless marked `no_run`) as doctests.
 #[cfg(doctest)]

@@ -224,14 +224,19 @@ fn plan(opts: &PlanArgs) -> ExitCode {
     let on_progress = {
         let bar = bar.clone();
         move |p: &Progress| {
+            let Some(best) = p.best_cost else {
+                bar.set_message(format!("{:?}", p.phase).to_lowercase());
+                return;
+            };
             let gap = if p.lower_bound > 0 {
-                100.0 * (p.best_cost - p.lower_bound) as f64 / p.lower_bound as f64
+                100.0 * (best - p.lower_bound) as f64 / p.lower_bound as f64
             } else {
                 0.0
             };
             bar.set_message(format!(
-                "best {}  gap {gap:.2}%  iteration {}",
-                p.best_cost, p.iteration
+                "{}  best {best}  gap {gap:.2}%  iteration {}",
+                format!("{:?}", p.phase).to_lowercase(),
+                p.iteration
             ));
         }
     };

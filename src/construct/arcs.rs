@@ -27,6 +27,8 @@
 //! real route and one at or above it uses a missing path. Sums stay far from
 //! `i64` overflow (a route would need 2^16 missing legs at cost scale 100).
 
+use rayon::prelude::*;
+
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::{Distances, UNREACHABLE};
 use crate::plan::Visit;
@@ -92,6 +94,38 @@ pub struct MatrixOverflow {
     pub value: Cost,
 }
 
+/// A stored entry for a deadhead of `x`.
+fn conv(x: Cost) -> Result<i32, MatrixOverflow> {
+    if x >= UNREACHABLE {
+        Ok(MISSING)
+    } else if x > MAX_LEG {
+        Err(MatrixOverflow { value: x })
+    } else {
+        Ok(x as i32)
+    }
+}
+
+/// Fills `m` (rows of `cols.len()` entries) with `f(row junction, column
+/// junction)`, rows in parallel (rayon); reports the first overflow in row order.
+fn fill_rows(
+    m: &mut [i32],
+    rows: &[usize],
+    cols: &[usize],
+    f: &(dyn Fn(usize, usize) -> Cost + Sync),
+) -> Result<(), MatrixOverflow> {
+    let found: Vec<Result<(), MatrixOverflow>> = m
+        .par_chunks_mut(cols.len().max(1))
+        .zip(rows.par_iter())
+        .map(|(row, &u)| {
+            for (x, &v) in row.iter_mut().zip(cols) {
+                *x = conv(f(u, v))?;
+            }
+            Ok(())
+        })
+        .collect();
+    found.into_iter().collect()
+}
+
 impl ArcMatrix {
     /// Builds the matrices from the instance's shortest paths.
     ///
@@ -121,15 +155,6 @@ impl ArcMatrix {
             }
         }
         let timed = inst.fleet().shift_limit.is_some();
-        let conv = |x: Cost| -> Result<i32, MatrixOverflow> {
-            if x >= UNREACHABLE {
-                Ok(MISSING)
-            } else if x > MAX_LEG {
-                Err(MatrixOverflow { value: x })
-            } else {
-                Ok(x as i32)
-            }
-        };
         // Local numbering of the junctions the arcs touch (all are keys of
         // `dist`, which holds at least the depot and the task ends).
         let mut local: Vec<usize> = start.iter().chain(&end).copied().collect();
@@ -163,13 +188,9 @@ impl ArcMatrix {
         } else {
             Vec::new()
         };
-        for (i, &u) in rows.iter().enumerate() {
-            for (j, &v) in cols.iter().enumerate() {
-                cost[i * w + j] = conv(dist.cost(u, v))?;
-                if timed {
-                    time[i * w + j] = conv(dist.time(u, v))?;
-                }
-            }
+        fill_rows(&mut cost, rows, cols, &|u, v| dist.cost(u, v))?;
+        if timed {
+            fill_rows(&mut time, rows, cols, &|u, v| dist.time(u, v))?;
         }
         Ok(ArcMatrix {
             n,
@@ -345,6 +366,47 @@ impl ArcMatrix {
             && l <= self.capacity
             && self.shift.is_none_or(|s| t <= s)
             && arcs.iter().all(|&a| self.allowed[a as usize])
+    }
+
+    /// The sub-problem of the tasks `tasks` (indices of this matrix's tasks,
+    /// distinct): a matrix in the by-arc layout whose task `i` is task
+    /// `tasks[i]` here (arc `2i + k` is arc `2 tasks[i] + k`), with the same
+    /// depot, capacity and shift and the fleet bound `max_routes`. Entries
+    /// are copied, so costs are exactly this matrix's. Memory `4 (2s + 2)^2`
+    /// bytes (twice with times) for `s` tasks: the district search's matrix.
+    pub fn restrict(&self, tasks: &[usize], max_routes: Option<usize>) -> ArcMatrix {
+        let s = tasks.len();
+        let arcs = 2 * s + 2;
+        let parent: Vec<u32> = tasks
+            .iter()
+            .flat_map(|&t| [2 * t as u32, 2 * t as u32 + 1])
+            .chain([self.depot, self.depot + 1])
+            .collect();
+        let copy = |v: &[i32]| -> Vec<i32> {
+            let mut out = Vec::with_capacity(arcs * arcs);
+            for &a in &parent {
+                out.extend(parent.iter().map(|&b| v[self.cell(a, b)]));
+            }
+            out
+        };
+        let pick_i64 = |v: &[i64]| parent.iter().map(|&a| v[a as usize]).collect();
+        ArcMatrix {
+            n: s,
+            arcs,
+            depot: (2 * s) as u32,
+            keys: arcs,
+            kstart: (0..arcs as u32).collect(),
+            kend_row: (0..arcs).map(|a| a * arcs).collect(),
+            cost: copy(&self.cost),
+            time: self.time.as_deref().map(copy),
+            serve_cost: pick_i64(&self.serve_cost),
+            serve_time: pick_i64(&self.serve_time),
+            demand: pick_i64(&self.demand),
+            allowed: parent.iter().map(|&a| self.allowed[a as usize]).collect(),
+            capacity: self.capacity,
+            shift: self.shift,
+            max_routes,
+        }
     }
 
     /// Minimum deadhead between two tasks in any allowed directions, both ways.

@@ -8,6 +8,7 @@
 //! - [`giant`]: giant tours (concatenations of routes, random orders).
 
 pub mod arcs;
+pub mod candidates;
 pub mod giant;
 pub mod path_scanning;
 pub mod split;

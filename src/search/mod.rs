@@ -6,7 +6,11 @@
 //! `crossover` (order crossover on giant tours).
 
 mod crossover;
+mod districts;
 mod population;
 mod solver;
 
-pub use solver::{Progress, Solution, SolveError, Solver, Stats};
+pub use solver::{
+    Decomposition, Phase, Progress, Solution, SolveError, Solver, Stats, DISTRICTS_FROM,
+    DISTRICT_STREETS,
+};

@@ -40,8 +40,9 @@ use rayon::prelude::*;
 
 use crate::bounds::{bound, LowerBound};
 use crate::construct::arcs::{ArcMatrix, BIG, MAX_LEG};
+use crate::construct::candidates::candidate_lists;
 use crate::construct::giant;
-use crate::construct::path_scanning::{path_scan, Rule, RULES};
+use crate::construct::path_scanning::{path_scan, path_scan_listed, Rule, RULES};
 use crate::construct::split::{split, SplitFailure};
 use crate::improve::local_search::{neighbour_lists, LocalSearch, DEFAULT_NEIGHBOURS, SCALE};
 use crate::improve::merge_split::merge_split;
@@ -49,19 +50,73 @@ use crate::model::{Cost, Instance};
 use crate::paths::{DistanceError, Distances};
 use crate::plan::Plan;
 use crate::search::crossover::order_crossover;
+use crate::search::districts::{self, Limits};
 use crate::search::population::{Individual, Params, Population};
 use crate::turns::{TurnDistances, TurnTable};
 
-/// Progress report, sent when the best plan improves.
+/// What the solver is doing (in [`Progress`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Phase {
+    /// Shortest deadhead paths between the junctions that matter.
+    Distances,
+    /// The lower bound.
+    Bound,
+    /// First plans (Path-Scanning, split).
+    Construction,
+    /// The island search on the whole plan.
+    Search,
+    /// District improvement of a large plan (see [`Decomposition`]).
+    Districts,
+}
+
+/// How the search treats large instances.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Decomposition {
+    /// District improvement above [`DISTRICTS_FROM`] streets, in districts
+    /// of about [`DISTRICT_STREETS`] streets; the island search on the
+    /// whole plan below (the default).
+    Auto,
+    /// Always the island search on the whole plan.
+    Off,
+    /// District improvement whatever the size, in districts of about
+    /// `streets` streets (at least 2).
+    Districts {
+        /// Target number of streets per district.
+        streets: usize,
+    },
+}
+
+/// Above this many streets to serve, [`Decomposition::Auto`] improves the
+/// plan district by district.
+pub const DISTRICTS_FROM: usize = 2048;
+
+/// Streets per district under [`Decomposition::Auto`].
+pub const DISTRICT_STREETS: usize = 300;
+
+/// Offspring per district and round.
+const DISTRICT_OFFSPRING: u64 = 100;
+
+/// Above this many streets the construction and the neighbour lists use
+/// network candidate lists instead of scanning every street.
+const LISTED_FROM: usize = 2048;
+
+/// Candidates per street for the listed construction.
+const CANDIDATES: usize = 16;
+
+/// Progress report, sent when a phase starts and when the best plan improves.
 #[derive(Clone, Debug)]
 pub struct Progress {
-    /// Cost of the best plan so far.
-    pub best_cost: Cost,
-    /// The lower bound in use.
+    /// The phase the solver is in.
+    pub phase: Phase,
+    /// Cost of the best plan so far (`None` before the first plan).
+    pub best_cost: Option<Cost>,
+    /// The lower bound in use (0 until the [`Phase::Bound`] phase ends).
     pub lower_bound: Cost,
     /// Time since `solve` started.
     pub elapsed: Duration,
-    /// Offspring generated so far (all workers).
+    /// Offspring generated so far (all workers and districts).
     pub iteration: u64,
 }
 
@@ -178,6 +233,7 @@ pub struct Solver<'a> {
     progress: Option<ProgressFn<'a>>,
     stop: Option<Arc<AtomicBool>>,
     epoch: u64,
+    decomposition: Decomposition,
 }
 
 impl<'a> Solver<'a> {
@@ -195,6 +251,7 @@ impl<'a> Solver<'a> {
             progress: None,
             stop: None,
             epoch: 500,
+            decomposition: Decomposition::Auto,
         }
     }
 
@@ -271,6 +328,25 @@ impl<'a> Solver<'a> {
         self
     }
 
+    /// How large instances are searched (default [`Decomposition::Auto`]:
+    /// district improvement above [`DISTRICTS_FROM`] streets).
+    ///
+    /// ```
+    /// use arcwright::demo::{town, TownSpec};
+    /// use arcwright::{check::check_plan, Decomposition, Solver};
+    /// let inst = town(&TownSpec::new(3, 4)).unwrap();
+    /// let sol = Solver::new(&inst)
+    ///     .decomposition(Decomposition::Districts { streets: 30 })
+    ///     .max_iterations(100)
+    ///     .solve()
+    ///     .unwrap();
+    /// assert!(check_plan(&inst, &sol.plan).is_ok());
+    /// ```
+    pub fn decomposition(mut self, d: Decomposition) -> Self {
+        self.decomposition = d;
+        self
+    }
+
     /// Runs the search. The plan returned passes [`crate::check::check_plan`],
     /// serves every self-loop (a street whose two ends are one junction)
     /// [`crate::model::Dir::Forward`] ([`Plan::self_loops_forward`]), and
@@ -308,6 +384,7 @@ impl<'a> Solver<'a> {
             return Err(SolveError::NeedsFleetSolver);
         }
         let owned;
+        self.announce(Phase::Distances, None, 0, start, 0);
         let dist = match self.dist {
             Some(d) if d.serves(inst) => d,
             Some(_) => {
@@ -320,9 +397,11 @@ impl<'a> Solver<'a> {
                 &owned
             }
         };
+        self.announce(Phase::Bound, None, 0, start, 0);
+        // The bound runs beside the district search (it only reports the
+        // gap there); the island search waits for it (it stops at the bound).
         // Turn costs dropped is a relaxation (penalties are not negative and
         // bans only remove ways), so the bound without turns stays valid.
-        let lb = bound(inst, dist);
         let turned = match inst.turn_rules() {
             Some(rules) => {
                 let table = TurnTable::new(inst, rules).map_err(SolveError::TurnRules)?;
@@ -330,50 +409,89 @@ impl<'a> Solver<'a> {
             }
             None => None,
         };
-        let m = prepare(inst, dist, turned.as_ref())?;
-        let stats0 = |iterations, ttb| Stats {
-            iterations,
-            elapsed: start.elapsed(),
-            time_to_best: ttb,
-            workers: self.workers,
-            seed: self.seed,
-        };
-        if m.n == 0 {
-            let plan = Plan {
-                routes: Vec::new(),
-                cost: 0,
+        std::thread::scope(|scope| {
+            let pending = scope.spawn(|| bound(inst, dist));
+            let m = prepare(inst, dist, turned.as_ref())?;
+            // District improvement prices plans without turns: off with turn rules.
+            let districts = match self.decomposition {
+                _ if turned.is_some() => None,
+                Decomposition::Auto => (m.n > DISTRICTS_FROM).then_some(DISTRICT_STREETS),
+                Decomposition::Off => None,
+                Decomposition::Districts { streets } => Some(streets.max(2)),
             };
-            return Ok(self.finish(plan, lb, stats0(0, Duration::ZERO)));
-        }
-        let neigh = neighbour_lists(&m, DEFAULT_NEIGHBOURS);
-        let ctx = Ctx {
-            m: &m,
-            neigh: &neigh,
-            deadline: self.time_limit.map(|t| start + t),
-            stop: self.stop.clone(),
-            stop_at: self.target.unwrap_or(Cost::MIN).max(lb.value),
-            start,
-        };
-        let (cost, routes, found_at, iterations) = self.evolve(&ctx, lb.value)?;
-        let visits: Vec<Vec<crate::plan::Visit>> = routes
-            .iter()
-            .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
-            .collect();
-        // A self-loop served either way is the same drive, but a plan file
-        // can state only one direction for it: return the one it reads back
-        // as, so every plan returned writes and reads back identically.
-        // With turn rules the direction changes the turns, so it is kept.
-        let plan = match &turned {
-            Some(td) => crate::turns::plan_from_visits(inst, td, visits),
-            None => Plan::from_visits(inst, dist, visits).self_loops_forward(inst),
-        };
-        debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
-        debug_assert!(
-            crate::check::check_plan(inst, &plan).is_ok(),
-            "the solver's plan fails the checker: {:?}",
-            crate::check::check_plan(inst, &plan)
-        );
-        Ok(self.finish(plan, lb, stats0(iterations, found_at)))
+            let join = |h: std::thread::ScopedJoinHandle<'_, LowerBound>| {
+                h.join().expect("the bound's thread panicked")
+            };
+            let (lb_now, pending) = match districts {
+                Some(_) if m.n > 0 => (None, Some(pending)),
+                _ => (Some(join(pending)), None),
+            };
+            let known = lb_now.as_ref().map_or(0, |l| l.value);
+            self.announce(Phase::Construction, None, known, start, 0);
+            let stats0 = |iterations, ttb| Stats {
+                iterations,
+                elapsed: start.elapsed(),
+                time_to_best: ttb,
+                workers: self.workers,
+                seed: self.seed,
+            };
+            if m.n == 0 {
+                let plan = Plan {
+                    routes: Vec::new(),
+                    cost: 0,
+                };
+                let lb = lb_now.expect("joined");
+                return Ok(self.finish(plan, lb, stats0(0, Duration::ZERO)));
+            }
+            let cand = if m.n > LISTED_FROM {
+                candidate_lists(inst, &m, CANDIDATES)
+            } else {
+                Vec::new()
+            };
+            let neigh = if cand.is_empty() {
+                neighbour_lists(&m, DEFAULT_NEIGHBOURS)
+            } else {
+                cand.iter()
+                    .map(|c| c[..c.len().min(DEFAULT_NEIGHBOURS)].to_vec())
+                    .collect()
+            };
+            let ctx = Ctx {
+                m: &m,
+                neigh: &neigh,
+                deadline: self.time_limit.map(|t| start + t),
+                stop: self.stop.clone(),
+                stop_at: self.target.unwrap_or(Cost::MIN).max(known),
+                start,
+            };
+            let (cost, routes, found_at, iterations) = match districts {
+                Some(size) => self.by_districts(&ctx, &cand, size)?,
+                None => self.evolve(&ctx, known)?,
+            };
+            let lb = match (lb_now, pending) {
+                (Some(lb), _) => lb,
+                (None, Some(h)) => join(h),
+                (None, None) => unreachable!("the bound is joined or pending"),
+            };
+            let visits: Vec<Vec<crate::plan::Visit>> = routes
+                .iter()
+                .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
+                .collect();
+            // A self-loop served either way is the same drive, but a plan file
+            // can state only one direction for it: return the one it reads back
+            // as, so every plan returned writes and reads back identically.
+            // With turn rules the direction changes the turns, so it is kept.
+            let plan = match &turned {
+                Some(td) => crate::turns::plan_from_visits(inst, td, visits),
+                None => Plan::from_visits(inst, dist, visits).self_loops_forward(inst),
+            };
+            debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
+            debug_assert!(
+                crate::check::check_plan(inst, &plan).is_ok(),
+                "the solver's plan fails the checker: {:?}",
+                crate::check::check_plan(inst, &plan)
+            );
+            Ok(self.finish(plan, lb, stats0(iterations, found_at)))
+        })
     }
 
     /// The islands' search: initial populations, then epochs until a limit,
@@ -418,14 +536,13 @@ impl<'a> Solver<'a> {
             .collect();
         let mut iterations = 0u64;
         let report = |best: &(i64, Vec<Vec<u32>>, Duration), iterations| {
-            if let Some(f) = &self.progress {
-                f(&Progress {
-                    best_cost: best.0,
-                    lower_bound,
-                    elapsed: ctx.start.elapsed(),
-                    iteration: iterations,
-                });
-            }
+            self.announce(
+                Phase::Search,
+                Some(best.0),
+                lower_bound,
+                ctx.start,
+                iterations,
+            );
         };
         report(&best, 0);
         while best.0 > ctx.stop_at && !ctx.should_stop() && budget.iter().any(|&b| b > 0) {
@@ -469,6 +586,124 @@ impl<'a> Solver<'a> {
         Ok((best.0, best.1, best.2, iterations))
     }
 
+    /// Sends a progress report, if anyone listens.
+    fn announce(&self, phase: Phase, best: Option<Cost>, lb: Cost, start: Instant, it: u64) {
+        if let Some(f) = &self.progress {
+            f(&Progress {
+                phase,
+                best_cost: best,
+                lower_bound: lb,
+                elapsed: start.elapsed(),
+                iteration: it,
+            });
+        }
+    }
+
+    /// The first plan of the district search: every Path-Scanning rule (on
+    /// candidate lists when `cand` is not empty), each split optimally
+    /// (Ulusoy), the cheapest kept (first rule on ties).
+    fn first_plan(&self, ctx: &Ctx<'_>, cand: &[Vec<u32>]) -> Result<(i64, Routes), SolveError> {
+        let m = ctx.m;
+        let all: Vec<usize> = (0..m.n).collect();
+        let built: Vec<Result<(i64, Routes), usize>> = RULES
+            .par_iter()
+            .map(|&rule| {
+                let r = if cand.is_empty() {
+                    path_scan::<ChaCha12Rng>(m, &all, rule, None, 0, false)
+                } else {
+                    path_scan_listed::<ChaCha12Rng>(m, cand, rule, None)
+                };
+                match split(m, &giant::of_routes(&r)) {
+                    Ok(s) => Ok((s.cost, s.routes)),
+                    Err(SplitFailure::TooFewVehicles { fewest }) => Err(fewest),
+                    Err(SplitFailure::Infeasible) => Err(usize::MAX),
+                }
+            })
+            .collect();
+        let mut best: Option<(i64, Routes)> = None;
+        let mut fewest = usize::MAX;
+        for b in built {
+            match b {
+                Ok(p) if best.as_ref().is_none_or(|x| p.0 < x.0) => best = Some(p),
+                Ok(_) => {}
+                Err(f) => fewest = fewest.min(f),
+            }
+        }
+        best.ok_or(SolveError::NoPlanWithinFleet {
+            max_vehicles: m.max_routes.unwrap_or(0),
+            fewest_found: fewest,
+        })
+    }
+
+    /// The search of large instances: a first plan, then rounds of district
+    /// improvement (module `districts`) until a limit, the target or the
+    /// stop flag. With an iteration limit each district gets at most
+    /// [`DISTRICT_OFFSPRING`] offspring per round and the rounds end when
+    /// the limit is spent.
+    fn by_districts(
+        &self,
+        ctx: &Ctx<'_>,
+        cand: &[Vec<u32>],
+        size: usize,
+    ) -> Result<Best, SolveError> {
+        let lower_bound = 0; // computed beside this search
+        let m = ctx.m;
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(self.workers)
+            .build()
+            .expect("thread pool");
+        let (mut cost, mut routes) = pool.install(|| self.first_plan(ctx, cand))?;
+        let mut found_at = ctx.start.elapsed();
+        self.announce(Phase::Districts, Some(cost), lower_bound, ctx.start, 0);
+        {
+            // One descent on the whole plan: moves across district borders.
+            let mut ls = LocalSearch::new(m, ctx.neigh);
+            ls.interrupt_at(ctx.deadline, ctx.stop.clone());
+            let mut rng = ChaCha12Rng::seed_from_u64(self.seed);
+            let d = ls.run(&routes, &mut rng);
+            if d.feasible && d.cost < cost {
+                cost = d.cost;
+                routes = d.routes;
+                found_at = ctx.start.elapsed();
+                self.announce(Phase::Districts, Some(cost), lower_bound, ctx.start, 0);
+            }
+        }
+        let per_district = DISTRICT_OFFSPRING;
+        let limits = Limits {
+            deadline: ctx.deadline,
+            stop: ctx.stop.clone(),
+            start: ctx.start,
+        };
+        let mut budget = self.max_iterations.unwrap_or(u64::MAX);
+        let (mut iterations, mut k) = (0u64, 0u64);
+        let expected = m.n.div_ceil(size).max(1) as u64;
+        while cost > ctx.stop_at && !ctx.should_stop() && budget > 0 {
+            let per = per_district.min((budget / expected).max(1));
+            let r =
+                pool.install(|| districts::round(m, &mut routes, size, per, self.seed, k, &limits));
+            k += 1;
+            iterations += r.offspring;
+            budget = budget.saturating_sub(r.offspring.max(1));
+            let now: i64 = routes.iter().map(|r| m.route_eval(r).0).sum();
+            debug_assert!(now <= cost, "a district round made the plan worse");
+            if now < cost {
+                cost = now;
+                found_at = ctx.start.elapsed();
+                self.announce(
+                    Phase::Districts,
+                    Some(cost),
+                    lower_bound,
+                    ctx.start,
+                    iterations,
+                );
+            }
+            if r.offspring == 0 {
+                break;
+            }
+        }
+        Ok((cost, routes, found_at, iterations))
+    }
+
     fn finish(&self, plan: Plan, lb: LowerBound, stats: Stats) -> Solution {
         let gap = if lb.value > 0 {
             100.0 * (plan.cost - lb.value) as f64 / lb.value as f64
@@ -484,6 +719,9 @@ impl<'a> Solver<'a> {
         }
     }
 }
+
+/// Routes as task arcs.
+type Routes = Vec<Vec<u32>>;
 
 /// Best cost, its routes (task arcs), when it was found, offspring made.
 type Best = (i64, Vec<Vec<u32>>, Duration, u64);
@@ -541,17 +779,17 @@ fn prepare(
     Ok(m)
 }
 
-struct Ctx<'c> {
-    m: &'c ArcMatrix,
-    neigh: &'c [Vec<u32>],
-    deadline: Option<Instant>,
-    stop: Option<Arc<AtomicBool>>,
-    stop_at: i64,
-    start: Instant,
+pub(super) struct Ctx<'c> {
+    pub(super) m: &'c ArcMatrix,
+    pub(super) neigh: &'c [Vec<u32>],
+    pub(super) deadline: Option<Instant>,
+    pub(super) stop: Option<Arc<AtomicBool>>,
+    pub(super) stop_at: i64,
+    pub(super) start: Instant,
 }
 
 impl Ctx<'_> {
-    fn should_stop(&self) -> bool {
+    pub(super) fn should_stop(&self) -> bool {
         self.deadline.is_some_and(|d| Instant::now() >= d)
             || self
                 .stop
@@ -565,13 +803,13 @@ const RESTART_AFTER: u64 = 3000;
 const MS_RATE: f64 = 0.2;
 const TARGET_FEASIBLE: f64 = 0.5;
 
-struct Island {
+pub(super) struct Island {
     rng: ChaCha12Rng,
     pop: Population,
-    best: Option<Individual>,
+    pub(super) best: Option<Individual>,
     best_time: Duration,
     fewest: usize,
-    iterations: u64,
+    pub(super) iterations: u64,
     since_improvement: u64,
     initialised: bool,
     pen_load: f64,
@@ -580,7 +818,7 @@ struct Island {
 }
 
 impl Island {
-    fn new(rng: ChaCha12Rng, m: &ArcMatrix) -> Self {
+    pub(super) fn new(rng: ChaCha12Rng, m: &ArcMatrix) -> Self {
         let mut max_d = 1i64;
         for a in (0..m.arcs as u32).step_by(7) {
             for b in (0..m.arcs as u32).step_by(5) {
@@ -727,7 +965,7 @@ impl Island {
         self.best = Some(Individual::new(m.n, routes.to_vec(), cost));
     }
 
-    fn receive(&mut self, routes: &[Vec<u32>], cost: i64) {
+    pub(super) fn receive(&mut self, routes: &[Vec<u32>], cost: i64) {
         if self.best.as_ref().is_none_or(|b| cost < b.cost) {
             let ind = Individual::new(self.pop_n(routes), routes.to_vec(), cost);
             if !self.pop.has_clone(&ind) {
@@ -743,7 +981,7 @@ impl Island {
     }
 
     /// Runs up to `n` offspring; returns how many were made.
-    fn run(&mut self, ctx: &Ctx, n: u64) -> u64 {
+    pub(super) fn run(&mut self, ctx: &Ctx, n: u64) -> u64 {
         let m = ctx.m;
         let mut ls = LocalSearch::new(m, ctx.neigh);
         ls.interrupt_at(ctx.deadline, ctx.stop.clone());

@@ -1,0 +1,154 @@
+//! District improvement (the solver's decomposition of large plans): every
+//! plan passes the checker, results are deterministic for a seed and worker
+//! count, and a round never makes the plan worse. Iteration limits only, on
+//! small invented towns forced into districts.
+
+mod common;
+
+use std::sync::atomic::AtomicBool;
+use std::sync::{Arc, Mutex};
+
+use arcwright::check::check_plan;
+use arcwright::demo::{town, TownSpec};
+use arcwright::io::{read_dat_file, read_reference};
+use arcwright::model::{Cost, Fleet, Instance, Network};
+use arcwright::{Decomposition, Phase, Progress, Solver};
+
+fn small_town() -> Instance {
+    town(&TownSpec::new(11, 6)).expect("town")
+}
+
+fn districts(streets: usize) -> Decomposition {
+    Decomposition::Districts { streets }
+}
+
+#[test]
+fn district_plans_pass_the_checker_and_are_deterministic() {
+    let inst = small_town();
+    assert!(inst.tasks().len() > 100, "{} streets", inst.tasks().len());
+    let run = |workers| {
+        Solver::new(&inst)
+            .seed(5)
+            .workers(workers)
+            .decomposition(districts(40))
+            .max_iterations(300)
+            .solve()
+            .expect("plan")
+    };
+    let a = run(2);
+    assert!(
+        check_plan(&inst, &a.plan).is_ok(),
+        "{:?}",
+        check_plan(&inst, &a.plan)
+    );
+    assert!(a.cost >= a.lower_bound.value);
+    let b = run(2);
+    assert_eq!(a.cost, b.cost);
+    assert_eq!(a.plan.routes, b.plan.routes);
+    // District streams depend on the seed, the round and the district only.
+    let c = run(1);
+    assert_eq!(a.plan.routes, c.plan.routes);
+    assert_eq!(a.stats.iterations, c.stats.iterations);
+}
+
+#[test]
+fn district_rounds_never_make_the_plan_worse() {
+    let inst = small_town();
+    let seen: Mutex<Vec<(Phase, Option<Cost>)>> = Mutex::new(Vec::new());
+    let sol = Solver::new(&inst)
+        .seed(9)
+        .workers(2)
+        .decomposition(districts(30))
+        .max_iterations(400)
+        .on_progress(|p: &Progress| seen.lock().unwrap().push((p.phase, p.best_cost)))
+        .solve()
+        .expect("plan");
+    let seen = seen.into_inner().unwrap();
+    // Phases in order: distances, bound, construction, then districts.
+    let phases: Vec<Phase> = seen.iter().map(|s| s.0).collect();
+    assert_eq!(
+        &phases[..4],
+        &[
+            Phase::Distances,
+            Phase::Bound,
+            Phase::Construction,
+            Phase::Districts
+        ]
+    );
+    let costs: Vec<Cost> = seen.iter().filter_map(|s| s.1).collect();
+    assert!(!costs.is_empty());
+    assert!(costs.windows(2).all(|w| w[1] < w[0]), "{costs:?}");
+    assert_eq!(*costs.last().unwrap(), sol.cost);
+    assert!(check_plan(&inst, &sol.plan).is_ok());
+}
+
+#[test]
+fn a_raised_stop_flag_still_returns_a_checked_plan() {
+    let inst = small_town();
+    let stop = Arc::new(AtomicBool::new(true));
+    let sol = Solver::new(&inst)
+        .decomposition(districts(40))
+        .stop_flag(stop)
+        .solve()
+        .expect("the construction is returned");
+    assert!(check_plan(&inst, &sol.plan).is_ok());
+    assert_eq!(sol.stats.iterations, 0);
+    assert_eq!(sol.plan.visits(), inst.tasks().len());
+}
+
+/// `k` copies of `one` sharing only the yard (no fleet bound, no shift): its
+/// optimum is `k` times the optimum of one copy (a route crossing the yard
+/// can be cut there at no cost).
+fn glued(one: &Instance, k: usize) -> Instance {
+    let net = one.network();
+    let nj = net.junctions.len();
+    let depot = one.depot();
+    let map = |c: usize, v: usize| {
+        if v == depot {
+            0
+        } else {
+            1 + c * (nj - 1) + if v < depot { v } else { v - 1 }
+        }
+    };
+    let mut out = Network::with_junctions(1 + k * (nj - 1));
+    for c in 0..k {
+        for l in &net.links {
+            let mut copy = l.clone();
+            copy.from = map(c, l.from);
+            copy.to = map(c, l.to);
+            out.add_link(copy);
+        }
+    }
+    Instance::new("glued", out, Fleet::with_capacity(one.fleet().capacity), 0).expect("valid")
+}
+
+#[test]
+fn glued_copies_of_gdb1_reach_k_times_the_published_optimum() {
+    let Some(dir) = common::shared_dir("districts::glued_gdb1") else {
+        return;
+    };
+    // gdb1 (Golden, DeArmon & Baker 1983): optimum 316, proven (reference.csv).
+    let refs = read_reference(dir.join("reference.csv")).expect("reference");
+    let r = refs
+        .iter()
+        .find(|r| r.instance == "gdb1")
+        .expect("gdb1 row");
+    assert!(r.proven_optimal || r.lower_bound == r.best_known);
+    let one = read_dat_file(dir.join("gdb/gdb1.dat"))
+        .expect("gdb1")
+        .instance;
+    let inst = glued(&one, 4);
+    let sol = Solver::new(&inst)
+        .seed(3)
+        .workers(2)
+        .decomposition(districts(60))
+        .max_iterations(2000)
+        .solve()
+        .expect("plan");
+    assert!(check_plan(&inst, &sol.plan).is_ok());
+    let opt = 4 * r.best_known;
+    assert!(sol.cost >= opt, "{} below the optimum {opt}", sol.cost);
+    // Districts of about two copies each: the search finds the optimum of
+    // each copy (gdb1 is solved to optimality by the island search).
+    assert!(sol.cost <= opt + opt / 50, "{} vs optimum {opt}", sol.cost);
+}
