@@ -68,7 +68,9 @@ pub mod search;
 pub mod turns;
 
 pub use error::{Error, Result};
-pub use search::{Decomposition, Phase, Progress, Solution, SolveError, Solver, Stats};
+pub use search::{
+    Decomposition, LpBudget, LpOutcome, Phase, Progress, Solution, SolveError, Solver, Stats,
+};
 
 /// The README's Rust snippets, compiled (and run, unless marked `no_run`) as doctests.
 #[cfg(doctest)]

@@ -756,6 +756,7 @@ fn a_bad_output_folder_is_refused_before_the_search() {
     std::fs::create_dir_all(&dir).unwrap();
     let file = dir.join("taken.txt");
     std::fs::write(&file, "not a folder").unwrap();
+    exe(); // built first: only the planner process itself is timed
     for out in [file.clone(), file.join("sub")] {
         let start = std::time::Instant::now();
         let o = planner([
@@ -772,6 +773,50 @@ fn a_bad_output_folder_is_refused_before_the_search() {
         assert!(stderr.contains("nothing was searched"), "{stderr}");
     }
     assert_eq!(std::fs::read_to_string(&file).unwrap(), "not a folder");
+}
+
+/// The planner runs the LP bound beside the search by default: on gdb1 it
+/// reaches the published optimum (316 in `../shared/instances/reference.csv`:
+/// lower bound = best known, Belenguer & Benavent 2003, compiled in
+/// CARPData.jl), never above the plan's cost; `--quick-bound` reports the
+/// combinatorial bound instead and says which it is.
+#[test]
+fn the_plan_reports_the_lp_bound_and_which_bound_it_is() {
+    let Some(gdb1) = common::shared_file("planner::lp_bound", "gdb/gdb1.dat") else {
+        return;
+    };
+    let read = |dir: &Path| -> serde_json::Value {
+        serde_json::from_str(&std::fs::read_to_string(dir.join("plan.json")).unwrap()).unwrap()
+    };
+    let out = out_dir("planner-lp-bound");
+    let stdout = plan_ok(&[gdb1.to_str().unwrap(), "--iterations", "300"], &out);
+    let j = read(&out);
+    let (cost, bound) = (
+        j["cost"].as_i64().unwrap(),
+        j["lower_bound"].as_i64().unwrap(),
+    );
+    assert!(bound <= cost);
+    assert_eq!(bound, 316, "{stdout}");
+    assert_eq!(j["lower_bound_method"], "one-index LP with cuts");
+    let gap = 100.0 * (cost - bound) as f64 / bound as f64;
+    assert!((j["gap_percent"].as_f64().unwrap() - gap).abs() < 0.006);
+    assert!(stdout.contains("one-index LP with cuts"), "{stdout}");
+
+    let quick = out_dir("planner-quick-bound");
+    let stdout = plan_ok(
+        &[
+            gdb1.to_str().unwrap(),
+            "--iterations",
+            "300",
+            "--quick-bound",
+        ],
+        &quick,
+    );
+    let j = read(&quick);
+    let method = j["lower_bound_method"].as_str().unwrap();
+    assert_ne!(method, "one-index LP with cuts");
+    assert!(stdout.contains(method), "{stdout}");
+    assert!(j["lower_bound"].as_i64().unwrap() <= j["cost"].as_i64().unwrap());
 }
 
 /// A scenario with two yards, a landfill and two truck types is planned by

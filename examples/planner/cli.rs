@@ -5,6 +5,7 @@ use std::path::PathBuf;
 use std::time::Duration;
 
 use arcwright::model::{Cost, Fleet, Instance, ModelError};
+use arcwright::LpBudget;
 use clap::{Args, Parser, Subcommand};
 
 /// The scenario planned when the program is given no input file.
@@ -95,6 +96,10 @@ pub struct PlanArgs {
     /// No progress bar.
     #[arg(long)]
     pub quiet: bool,
+    /// Skip the LP lower bound that otherwise runs beside the search, and
+    /// report the gap against the quick combinatorial bound only.
+    #[arg(long)]
+    pub quick_bound: bool,
     /// Fleet overrides.
     #[command(flatten)]
     pub fleet: FleetArgs,
@@ -183,6 +188,12 @@ impl FleetArgs {
     }
 }
 
+/// LP solves of the bound in a run limited by iterations alone: enough for
+/// every public instance (measured with `examples/bound_report.rs`: at most
+/// a few dozen rounds on gdb, val and egl), while a large town stops early
+/// with the value reached.
+pub const LP_ROUNDS: usize = 100;
+
 impl PlanArgs {
     /// The time limit in force: the one given, or [`DEFAULT_TIME_LIMIT`]
     /// when neither a time nor an iteration limit was given (an iteration
@@ -192,6 +203,18 @@ impl PlanArgs {
             (Some(t), _) => Some(t),
             (None, None) => Some(DEFAULT_TIME_LIMIT),
             (None, Some(_)) => None,
+        }
+    }
+
+    /// The LP bound's budget, `None` with `--quick-bound`: the run's time
+    /// limit when it has one; with an iteration limit alone,
+    /// [`LP_ROUNDS`] LP solves (so the run still depends only on the seed
+    /// and workers).
+    pub fn lp_budget(&self) -> Option<LpBudget> {
+        match (self.quick_bound, self.effective_time_limit()) {
+            (true, _) => None,
+            (false, Some(_)) => Some(LpBudget::with_search()),
+            (false, None) => Some(LpBudget::rounds(LP_ROUNDS)),
         }
     }
 

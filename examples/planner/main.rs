@@ -233,9 +233,15 @@ fn plan(opts: &PlanArgs) -> ExitCode {
             } else {
                 0.0
             };
+            let by = if p.bound_by == arcwright::bounds::lp::LP_CUTS {
+                "LP"
+            } else {
+                "quick"
+            };
             bar.set_message(format!(
-                "{}  best {best}  gap {gap:.2}%  iteration {}",
+                "{}  best {best}  bound {} ({by})  gap {gap:.2}%  iteration {}",
                 format!("{:?}", p.phase).to_lowercase(),
+                p.lower_bound,
                 p.iteration
             ));
         }

@@ -5,6 +5,7 @@ use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 
+use arcwright::bounds::lp::LP_CUTS;
 use arcwright::check::fleet::check_fleet_plan;
 use arcwright::check::{check_plan, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
@@ -20,7 +21,7 @@ use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
 use arcwright::report::fleet::fleet_markdown;
 use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
-use arcwright::{Progress, Solver};
+use arcwright::{LpOutcome, Progress, Solver};
 
 use arcwright::map::{load_map, MapFormat, MapOptions};
 
@@ -173,6 +174,8 @@ pub fn render(
     verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
     let record = PlanRecord {
         lower_bound: extras.lower_bound.as_ref().map(|b| b.0),
+        lower_bound_method: extras.lower_bound.as_ref().map(|b| b.1.clone()),
+        gap_percent: extras.gap_percent,
         route_lengths: extras
             .route_lengths
             .clone()
@@ -235,13 +238,13 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
     if let Some(f) = hooks.on_progress {
         solver = solver.on_progress(f);
     }
+    if let Some(budget) = opts.lp_budget() {
+        solver = solver.lp_bound(budget);
+    }
     let solution = solver.solve().map_err(AppError::Solve)?;
     let stopped_early = stop.load(Ordering::SeqCst);
     let extras = SummaryExtras {
-        lower_bound: Some((
-            solution.lower_bound.value,
-            solution.lower_bound.by.to_string(),
-        )),
+        lower_bound: Some((solution.lower_bound.value, bound_method(&solution))),
         gap_percent: Some(solution.gap),
         run_time: Some(solution.stats.elapsed),
         iterations: Some(solution.stats.iterations),
@@ -272,6 +275,23 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         summary,
         files,
     })
+}
+
+/// Which bound the gap is against, for the summary and the plan file: the
+/// method's name, and why the LP bound was not used when it was asked for
+/// but did not apply (the run then goes on with the combinatorial bound).
+pub fn bound_method(solution: &arcwright::Solution) -> String {
+    let by = solution.lower_bound.by;
+    match &solution.lp {
+        Some(LpOutcome::DoesNotApply(why)) => format!("{by}; the LP bound does not apply: {why}"),
+        Some(LpOutcome::Ran(r)) if r.bound == solution.lower_bound.value && by != LP_CUTS => {
+            format!("{by}; the LP bound reached the same")
+        }
+        Some(LpOutcome::Ran(r)) if r.bound < solution.lower_bound.value => {
+            format!("{by}; the LP bound reached {}", r.bound)
+        }
+        _ => by.to_string(),
+    }
 }
 
 /// Plans a scenario with dump sites, several yards, truck types or

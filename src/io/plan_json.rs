@@ -12,6 +12,8 @@
 //!           "crate_version": "0.1.0"},
 //!   "cost": 316,
 //!   "lower_bound": 252,
+//!   "lower_bound_method": "one-index LP with cuts",
+//!   "gap_percent": 25.40,
 //!   "routes": [
 //!     {
 //!       "load": 5,
@@ -28,7 +30,9 @@
 //!
 //! - `instance`: the instance name; `cost`: total plan cost (service plus
 //!   deadhead, the published convention); `lower_bound`: the solver's lower
-//!   bound (optional, `null` when unknown).
+//!   bound (optional, `null` when unknown); `lower_bound_method` and
+//!   `gap_percent` (optional, for people; readers ignore them): which
+//!   bound it is and the gap to it in percent.
 //! - `routes`: one object per truck, in any order. `services` lists the
 //!   required links served, in driving order, each as the junction numbers
 //!   `from` → `to` **in the service direction, in the instance's own vertex
@@ -94,6 +98,12 @@ pub struct RunSettings {
 pub struct PlanRecord {
     /// The solver's lower bound (`lower_bound`).
     pub lower_bound: Option<Cost>,
+    /// Which method gave the lower bound (`lower_bound_method`, written
+    /// only when known).
+    pub lower_bound_method: Option<String>,
+    /// The gap in percent, `100 (cost - bound) / bound` (`gap_percent`,
+    /// written only when known; for reading by people, nothing checks it).
+    pub gap_percent: Option<f64>,
     /// Length driven by each route, in the scenario's length unit, when the
     /// scenario gives every street a length (`routes[i].length`).
     pub route_lengths: Option<Vec<Cost>>,
@@ -138,10 +148,17 @@ pub fn write_plan_record(inst: &Instance, plan: &Plan, record: &PlanRecord) -> S
         s.push_str(&format!("  \"run\": {},\n", json_str(run)));
     }
     s.push_str(&format!(
-        "  \"cost\": {},\n  \"lower_bound\": {},\n  \"routes\": [",
+        "  \"cost\": {},\n  \"lower_bound\": {},\n",
         plan.cost,
         json_str(&record.lower_bound)
     ));
+    if let Some(m) = &record.lower_bound_method {
+        s.push_str(&format!("  \"lower_bound_method\": {},\n", json_str(m)));
+    }
+    if let Some(g) = record.gap_percent.filter(|g| g.is_finite()) {
+        s.push_str(&format!("  \"gap_percent\": {g:.2},\n"));
+    }
+    s.push_str("  \"routes\": [");
     for (ri, r) in plan.routes.iter().enumerate() {
         s.push_str(if ri == 0 { "\n" } else { ",\n" });
         let length = match record.route_lengths.as_ref().and_then(|l| l.get(ri)) {

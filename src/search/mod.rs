@@ -7,9 +7,11 @@
 
 mod crossover;
 mod districts;
+mod lp_side;
 mod population;
 mod solver;
 
+pub use lp_side::{LpBudget, LpOutcome};
 pub use solver::{
     Decomposition, Phase, Progress, Solution, SolveError, Solver, Stats, DISTRICTS_FROM,
     DISTRICT_STREETS,

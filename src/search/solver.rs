@@ -38,6 +38,7 @@ use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha12Rng;
 use rayon::prelude::*;
 
+use crate::bounds::lp::LP_CUTS;
 use crate::bounds::{bound, LowerBound};
 use crate::construct::arcs::{ArcMatrix, BIG, MAX_LEG};
 use crate::construct::candidates::candidate_lists;
@@ -51,6 +52,7 @@ use crate::paths::{DistanceError, Distances};
 use crate::plan::Plan;
 use crate::search::crossover::order_crossover;
 use crate::search::districts::{self, Limits};
+use crate::search::lp_side::{LpBudget, LpOutcome, LpSide};
 use crate::search::population::{Individual, Params, Population};
 use crate::turns::{TurnDistances, TurnTable};
 
@@ -105,6 +107,9 @@ const LISTED_FROM: usize = 2048;
 /// Candidates per street for the listed construction.
 const CANDIDATES: usize = 16;
 
+/// The bound reported before any is known.
+const NO_BOUND: (Cost, &str) = (0, "none yet");
+
 /// Progress report, sent when a phase starts and when the best plan improves.
 #[derive(Clone, Debug)]
 pub struct Progress {
@@ -112,8 +117,14 @@ pub struct Progress {
     pub phase: Phase,
     /// Cost of the best plan so far (`None` before the first plan).
     pub best_cost: Option<Cost>,
-    /// The lower bound in use (0 until the [`Phase::Bound`] phase ends).
+    /// The best lower bound known at this moment (0 until the
+    /// [`Phase::Bound`] phase ends): the combinatorial
+    /// [`crate::bounds::bound`], raised by the LP bound as it improves when
+    /// [`Solver::lp_bound`] is set.
     pub lower_bound: Cost,
+    /// Which method gave `lower_bound` (a name from [`crate::bounds`] or
+    /// [`crate::bounds::lp::LP_CUTS`]).
+    pub bound_by: &'static str,
     /// Time since `solve` started.
     pub elapsed: Duration,
     /// Offspring generated so far (all workers and districts).
@@ -142,10 +153,14 @@ pub struct Solution {
     pub plan: Plan,
     /// Its cost.
     pub cost: Cost,
-    /// The lower bound of [`crate::bounds::bound`].
+    /// The best lower bound available when the run ended: the combinatorial
+    /// [`crate::bounds::bound`], or the LP bound ([`Solver::lp_bound`]) when
+    /// that is higher (`by` says which). Never above `cost`.
     pub lower_bound: LowerBound,
     /// Percent above the lower bound: `100 (cost - bound) / bound` (0 when the bound is 0).
     pub gap: f64,
+    /// What the LP bound did (`None` when [`Solver::lp_bound`] was not set).
+    pub lp: Option<LpOutcome>,
     /// Statistics.
     pub stats: Stats,
 }
@@ -234,6 +249,7 @@ pub struct Solver<'a> {
     stop: Option<Arc<AtomicBool>>,
     epoch: u64,
     decomposition: Decomposition,
+    lp: Option<LpBudget>,
 }
 
 impl<'a> Solver<'a> {
@@ -252,6 +268,7 @@ impl<'a> Solver<'a> {
             stop: None,
             epoch: 500,
             decomposition: Decomposition::Auto,
+            lp: None,
         }
     }
 
@@ -347,6 +364,45 @@ impl<'a> Solver<'a> {
         self
     }
 
+    /// Also runs the cutting-plane LP bound ([`crate::bounds::lp`]) in a
+    /// thread of its own beside the search, within `budget`, the solver's
+    /// time limit and its stop flag (whichever ends first). The solution
+    /// then reports the higher of the combinatorial and the LP bound, and
+    /// progress reports carry the bound as it improves. It never changes the
+    /// plan; without an iteration limit, a plan that reaches the LP bound
+    /// ends the search early (it is proven optimal). When the search ends first, [`Solver::solve`] waits for the
+    /// bound to use its budget, except when the plan already reached the
+    /// combinatorial bound (it is then proven optimal). Where the LP bound
+    /// does not apply ([`crate::bounds::lp::applies`]) the combinatorial
+    /// bound is used alone and [`Solution::lp`] says why.
+    ///
+    /// Off by default: it takes one more thread than [`Solver::workers`]
+    /// and, without a solver time limit, time of its own (up to about 2 s
+    /// on the largest public instances; give `budget` a round limit for a
+    /// run whose reported bound is the same every time).
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// use arcwright::{LpBudget, Solver};
+    /// let mut net = Network::with_junctions(4);
+    /// net.add_required_edge(0, 1, 10, 3);
+    /// net.add_required_edge(1, 2, 12, 2);
+    /// net.add_required_edge(2, 3, 10, 3);
+    /// net.add_required_edge(3, 0, 12, 2);
+    /// let inst = Instance::new("block", net, Fleet::with_capacity(5), 0).unwrap();
+    /// let sol = Solver::new(&inst)
+    ///     .max_iterations(200)
+    ///     .lp_bound(LpBudget::rounds(20))
+    ///     .solve()
+    ///     .unwrap();
+    /// assert!(sol.lower_bound.value <= sol.cost);
+    /// assert!(sol.lp.is_some());
+    /// ```
+    pub fn lp_bound(mut self, budget: LpBudget) -> Self {
+        self.lp = Some(budget);
+        self
+    }
+
     /// Runs the search. The plan returned passes [`crate::check::check_plan`],
     /// serves every self-loop (a street whose two ends are one junction)
     /// [`crate::model::Dir::Forward`] ([`Plan::self_loops_forward`]), and
@@ -384,7 +440,7 @@ impl<'a> Solver<'a> {
             return Err(SolveError::NeedsFleetSolver);
         }
         let owned;
-        self.announce(Phase::Distances, None, 0, start, 0);
+        self.announce(Phase::Distances, None, NO_BOUND, start, 0);
         let dist = match self.dist {
             Some(d) if d.serves(inst) => d,
             Some(_) => {
@@ -397,7 +453,7 @@ impl<'a> Solver<'a> {
                 &owned
             }
         };
-        self.announce(Phase::Bound, None, 0, start, 0);
+        self.announce(Phase::Bound, None, NO_BOUND, start, 0);
         // The bound runs beside the district search (it only reports the
         // gap there); the island search waits for it (it stops at the bound).
         // Turn costs dropped is a relaxation (penalties are not negative and
@@ -427,7 +483,8 @@ impl<'a> Solver<'a> {
                 _ => (Some(join(pending)), None),
             };
             let known = lb_now.as_ref().map_or(0, |l| l.value);
-            self.announce(Phase::Construction, None, known, start, 0);
+            let quick = lb_now.as_ref().map_or(NO_BOUND, |l| (l.value, l.by));
+            self.announce(Phase::Construction, None, quick, start, 0);
             let stats0 = |iterations, ttb| Stats {
                 iterations,
                 elapsed: start.elapsed(),
@@ -441,7 +498,8 @@ impl<'a> Solver<'a> {
                     cost: 0,
                 };
                 let lb = lb_now.expect("joined");
-                return Ok(self.finish(plan, lb, stats0(0, Duration::ZERO)));
+                let lp = self.lp.map(|_| LpOutcome::NotNeeded);
+                return Ok(self.finish(plan, lb, lp, stats0(0, Duration::ZERO)));
             }
             let cand = if m.n > LISTED_FROM {
                 candidate_lists(inst, &m, CANDIDATES)
@@ -455,23 +513,39 @@ impl<'a> Solver<'a> {
                     .map(|c| c[..c.len().min(DEFAULT_NEIGHBOURS)].to_vec())
                     .collect()
             };
+            let deadline = self.time_limit.map(|t| start + t);
+            let side = self.lp.map(|b| LpSide::start(inst, b, deadline));
             let ctx = Ctx {
                 m: &m,
                 neigh: &neigh,
-                deadline: self.time_limit.map(|t| start + t),
+                deadline,
                 stop: self.stop.clone(),
                 stop_at: self.target.unwrap_or(Cost::MIN).max(known),
                 start,
             };
-            let (cost, routes, found_at, iterations) = match districts {
-                Some(size) => self.by_districts(&ctx, &cand, size)?,
-                None => self.evolve(&ctx, known)?,
+            let running = side.as_ref().and_then(|s| s.as_ref().ok());
+            let bound_now = || match running.map(LpSide::current) {
+                Some(v) if v > quick.0 => (v, LP_CUTS),
+                _ => quick,
+            };
+            let result = match districts {
+                Some(size) => self.by_districts(&ctx, &cand, size),
+                None => self.evolve(&ctx, &bound_now),
             };
             let lb = match (lb_now, pending) {
                 (Some(lb), _) => lb,
                 (None, Some(h)) => join(h),
                 (None, None) => unreachable!("the bound is joined or pending"),
             };
+            // A plan at the combinatorial bound is proven optimal: the LP has nothing to add.
+            let stop_now = result.as_ref().map_or(true, |b| b.0 <= lb.value);
+            let lp = side.map(|s| match s {
+                Ok(s) => s
+                    .finish(stop_now, self.stop.as_deref())
+                    .map_or(LpOutcome::Failed, LpOutcome::Ran),
+                Err(why) => LpOutcome::DoesNotApply(why),
+            });
+            let (cost, routes, found_at, iterations) = result?;
             let visits: Vec<Vec<crate::plan::Visit>> = routes
                 .iter()
                 .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
@@ -490,14 +564,18 @@ impl<'a> Solver<'a> {
                 "the solver's plan fails the checker: {:?}",
                 crate::check::check_plan(inst, &plan)
             );
-            Ok(self.finish(plan, lb, stats0(iterations, found_at)))
+            Ok(self.finish(plan, lb, lp, stats0(iterations, found_at)))
         })
     }
 
     /// The islands' search: initial populations, then epochs until a limit,
     /// the target or the stop flag. Returns the best cost, its routes (task
     /// arcs), when it was found and the number of offspring.
-    fn evolve(&self, ctx: &Ctx<'_>, lower_bound: Cost) -> Result<Best, SolveError> {
+    fn evolve(
+        &self,
+        ctx: &Ctx<'_>,
+        bound_now: &dyn Fn() -> (Cost, &'static str),
+    ) -> Result<Best, SolveError> {
         let m = ctx.m;
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(self.workers)
@@ -535,17 +613,22 @@ impl<'a> Solver<'a> {
             })
             .collect();
         let mut iterations = 0u64;
+        let reported = std::cell::Cell::new(Cost::MIN);
         let report = |best: &(i64, Vec<Vec<u32>>, Duration), iterations| {
-            self.announce(
-                Phase::Search,
-                Some(best.0),
-                lower_bound,
-                ctx.start,
-                iterations,
-            );
+            let bound = bound_now();
+            reported.set(bound.0);
+            self.announce(Phase::Search, Some(best.0), bound, ctx.start, iterations);
         };
         report(&best, 0);
-        while best.0 > ctx.stop_at && !ctx.should_stop() && budget.iter().any(|&b| b > 0) {
+        // Without an iteration limit, a plan at the LP bound is proven
+        // optimal and ends the search (with one, the run's iteration count
+        // stays independent of the bound thread's timing).
+        let proven = |cost: Cost| self.max_iterations.is_none() && cost <= bound_now().0;
+        while best.0 > ctx.stop_at
+            && !proven(best.0)
+            && !ctx.should_stop()
+            && budget.iter().any(|&b| b > 0)
+        {
             let epoch = self.epoch;
             pool.install(|| {
                 islands
@@ -579,20 +662,29 @@ impl<'a> Solver<'a> {
             for isl in islands.iter_mut() {
                 isl.receive(&best.1, best.0);
             }
-            if bi != usize::MAX {
+            if bi != usize::MAX || bound_now().0 > reported.get() {
                 report(&best, iterations);
             }
         }
         Ok((best.0, best.1, best.2, iterations))
     }
 
-    /// Sends a progress report, if anyone listens.
-    fn announce(&self, phase: Phase, best: Option<Cost>, lb: Cost, start: Instant, it: u64) {
+    /// Sends a progress report, if anyone listens; `bound` is the lower
+    /// bound known and the method that gave it.
+    fn announce(
+        &self,
+        phase: Phase,
+        best: Option<Cost>,
+        bound: (Cost, &'static str),
+        start: Instant,
+        it: u64,
+    ) {
         if let Some(f) = &self.progress {
             f(&Progress {
                 phase,
                 best_cost: best,
-                lower_bound: lb,
+                lower_bound: bound.0,
+                bound_by: bound.1,
                 elapsed: start.elapsed(),
                 iteration: it,
             });
@@ -646,7 +738,7 @@ impl<'a> Solver<'a> {
         cand: &[Vec<u32>],
         size: usize,
     ) -> Result<Best, SolveError> {
-        let lower_bound = 0; // computed beside this search
+        let lower_bound = NO_BOUND; // computed beside this search
         let m = ctx.m;
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(self.workers)
@@ -704,7 +796,19 @@ impl<'a> Solver<'a> {
         Ok((cost, routes, found_at, iterations))
     }
 
-    fn finish(&self, plan: Plan, lb: LowerBound, stats: Stats) -> Solution {
+    fn finish(
+        &self,
+        plan: Plan,
+        mut lb: LowerBound,
+        lp: Option<LpOutcome>,
+        stats: Stats,
+    ) -> Solution {
+        if let Some(LpOutcome::Ran(r)) = &lp {
+            if r.bound > lb.value {
+                lb = r.lower_bound();
+            }
+        }
+        debug_assert!(lb.value <= plan.cost, "bound {lb:?} above the plan's cost");
         let gap = if lb.value > 0 {
             100.0 * (plan.cost - lb.value) as f64 / lb.value as f64
         } else {
@@ -715,6 +819,7 @@ impl<'a> Solver<'a> {
             plan,
             lower_bound: lb,
             gap,
+            lp,
             stats,
         }
     }

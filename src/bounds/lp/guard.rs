@@ -18,6 +18,12 @@ pub enum Why {
         /// The largest cost accepted.
         max: i64,
     },
+    /// The scenario has dump sites (tipping trips), several yards, truck
+    /// types or a shift balance ([`crate::model::Operations`]): the cuts
+    /// count trucks from one yard with one capacity, which such plans need
+    /// not obey.
+    #[error("the scenario has {0}, which the LP bound does not model")]
+    Operations(&'static str),
 }
 
 /// Largest link cost the LP bound accepts (`2^40`): keeps the scaled exact
@@ -43,16 +49,32 @@ pub const MAX_COST: i64 = 1 << 40;
 /// - **Turn rules**: none in the model; the bound would stay valid if they
 ///   came (they only make walks dearer) as long as they add to the cost of
 ///   a walk rather than make it cheaper.
-/// - **Tipping trips / dump sites, several truck types**: not in the model
-///   yet. When they come, the capacity count `k(S) = ⌈d(S)/Q⌉` counts trips
-///   rather than trucks and a trip may end at a dump site inside `S`, so the
-///   cuts as written are invalid: add a variant here that refuses (or adapt
-///   `Formulation::cut`) before such instances can reach the bound.
+/// - **Tipping trips / dump sites, several yards, truck types, shift
+///   balance** ([`crate::model::Operations`] not plain): refused
+///   ([`Why::Operations`]). With dump sites the capacity count
+///   `k(S) = ⌈d(S)/Q⌉` counts trips rather than trucks and a trip may end at
+///   a dump site inside `S`; with several yards or capacities the cuts
+///   around "the" yard and "the" capacity do not hold; a balance setting
+///   changes what a plan pays. The caller falls back to the combinatorial
+///   bound.
 ///
 /// # Errors
 ///
 /// [`Why`] names the feature the bound cannot handle.
 pub fn applies(inst: &Instance) -> Result<(), Why> {
+    let ops = inst.operations();
+    if !ops.is_plain(inst) {
+        let what = if !ops.dump_sites.is_empty() {
+            "dump sites (tipping trips)"
+        } else if ops.yards.len() > 1 {
+            "several yards"
+        } else if !ops.truck_types.is_empty() {
+            "truck types"
+        } else {
+            "a yard or shift balance setting of its own"
+        };
+        return Err(Why::Operations(what));
+    }
     for (i, l) in inst.network().links.iter().enumerate() {
         let service = l.service.as_ref().map_or(0, |s| s.cost);
         let cost = l.cost.max(service);
@@ -71,6 +93,29 @@ pub fn applies(inst: &Instance) -> Result<(), Why> {
 mod tests {
     use super::*;
     use crate::model::{Fleet, Network};
+
+    #[test]
+    fn refuses_dump_sites() {
+        use crate::model::{DumpSite, Operations};
+        let mut net = Network::with_junctions(3);
+        net.add_required_edge(0, 1, 4, 2);
+        net.add_edge(1, 2, 5);
+        let inst = Instance::new("lane", net, Fleet::with_capacity(10), 0).unwrap();
+        assert_eq!(applies(&inst), Ok(()));
+        let dump = Operations {
+            dump_sites: vec![DumpSite {
+                name: None,
+                junction: 2,
+                unload_time: 20,
+                unload_cost: 0,
+                hours: None,
+            }],
+            ..Operations::default()
+        };
+        let tipping = inst.clone().with_operations(dump).unwrap();
+        assert!(matches!(applies(&tipping), Err(Why::Operations(w)) if w.contains("dump")));
+        assert!(crate::bounds::lp::LpBound::new(&tipping).is_err());
+    }
 
     #[test]
     fn refuses_costs_beyond_exact_range() {
