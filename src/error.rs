@@ -124,6 +124,9 @@ pub enum ParseProblem {
     /// The text read fine but the model it describes is invalid.
     #[error("{0}")]
     Model(ModelError),
+    /// The scenario's turn rules cannot be used.
+    #[error("{0}")]
+    Turn(crate::turns::TurnError),
     /// A problem at a place inside a structured (JSON) document, given as a
     /// path such as `streets[12].to`.
     #[error("at `{path}`: {problem}")]

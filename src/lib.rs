@@ -65,6 +65,7 @@ pub mod plan;
 pub mod postman;
 pub mod report;
 pub mod search;
+pub mod turns;
 
 pub use error::{Error, Result};
 pub use search::{

@@ -59,6 +59,8 @@ use std::fmt;
 use crate::model::{Cost, Dir, Instance};
 use crate::plan::{Plan, Step};
 
+mod turns;
+
 /// Where a task was served: route index and position in the route (for
 /// walks: the step index).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -134,6 +136,22 @@ pub enum Violation {
         /// The street as messages name it ([`crate::model::Network::street_label`]:
         /// its name and junction ids, or its junction ids).
         street: String,
+    },
+    /// A walk makes a turn the scenario's turn rules ban.
+    #[error(
+        "walk {route}, step {step}: the turn from {from} into {to} at junction {via} is banned"
+    )]
+    BannedTurn {
+        /// Walk (route) index.
+        route: usize,
+        /// Index of the step the turn leads into.
+        step: usize,
+        /// The street arrived on.
+        from: String,
+        /// The street turned into.
+        to: String,
+        /// The junction id of the turn.
+        via: u64,
     },
     /// No path leads from one junction to the next in a route.
     #[error("Truck {}: no way to drive from junction {from_id} to junction {to_id}", .route + 1)]
@@ -343,7 +361,11 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
 /// `max_vehicles` routes; and each route's reported load, cost and time and
 /// the plan's total cost equal the recomputed values.
 ///
-/// Route cost is service cost plus the least deadhead cost of every leg;
+/// Route cost is service cost plus the least deadhead cost of every leg
+/// (with turn rules: the least cost of driving on from the street served,
+/// or the yard, to the start of the next, every turn's penalty included and
+/// banned turns avoided, by the checker's own search on (street, direction)
+/// states);
 /// route time is service time plus the driving time along those least-cost
 /// legs (ties between equally cheap paths broken by least time).
 ///
@@ -388,11 +410,21 @@ pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     cover.finish(inst, &mut out);
 
     let legs: Vec<Vec<(usize, usize)>> = plan.routes.iter().map(|r| legs_of(inst, r)).collect();
-    let leg_dist = leg_distances(inst, &legs);
+    let turns = inst
+        .turn_rules()
+        .map(|rules| turns::Turns::new(inst, rules));
+    let leg_dist = if turns.is_some() {
+        LegDistances::new()
+    } else {
+        leg_distances(inst, &legs)
+    };
     let mut total: Cost = 0;
     let mut total_known = true;
     for (r, route) in plan.routes.iter().enumerate() {
-        let found = route_totals(inst, r, route, &legs[r], &leg_dist, &mut out);
+        let found = match &turns {
+            Some(t) => turns::route_totals(inst, t, r, route, &mut out),
+            None => route_totals(inst, r, route, &legs[r], &leg_dist, &mut out),
+        };
         limits(
             inst,
             r,
@@ -636,7 +668,8 @@ impl WrongField {
 /// never against a one-way link; each step starts where the previous ended;
 /// each walk starts and ends at the depot and serves something; served steps
 /// are on required links, in an allowed direction, and every task is served
-/// exactly once; nothing else is served. Also the fleet limits: load within
+/// exactly once; nothing else is served; with turn rules, no turn between
+/// two steps is banned ([`Violation::BannedTurn`]). Also the fleet limits: load within
 /// capacity, time (service time of served steps plus driving time of the
 /// others) within the shift limit, and at most `max_vehicles` walks.
 ///
@@ -651,8 +684,16 @@ pub fn check_walks(inst: &Instance, walks: &[Vec<Step>]) -> Result<(), Vec<Viola
     let mut out = Vec::new();
     fleet_size(inst, walks.len(), &mut out);
     let mut cover = Coverage::new(inst);
+    let turns = inst
+        .turn_rules()
+        .map(|rules| turns::Turns::new(inst, rules));
     for (r, walk) in walks.iter().enumerate() {
         walk_ends(inst, r, walk, &mut out);
+        if let Some(t) = &turns {
+            if walk.iter().all(|s| s.link < net.links.len()) {
+                turns::walk_turns(inst, t, r, walk, &mut out);
+            }
+        }
         let (mut load, mut time, mut served) = (0 as Cost, 0 as Cost, 0usize);
         for (p, s) in walk.iter().enumerate() {
             let at = At { route: r, pos: p };

@@ -32,6 +32,7 @@ use rayon::prelude::*;
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::{Distances, UNREACHABLE};
 use crate::plan::Visit;
+use crate::turns::TurnDistances;
 
 /// Read for a missing path: larger than any feasible route (the solver
 /// checks), small enough that sums never overflow `i64`.
@@ -198,6 +199,70 @@ impl ArcMatrix {
             keys: k,
             kstart,
             kend_row,
+            cost,
+            time: timed.then_some(time),
+            serve_cost,
+            serve_time,
+            demand,
+            allowed,
+            capacity: inst.fleet().capacity,
+            shift: inst.fleet().shift_limit,
+            max_routes: inst.fleet().max_vehicles,
+        })
+    }
+
+    /// Builds the matrices from turn-aware deadheads ([`TurnDistances`]):
+    /// the cost from the end of arc `a` to the start of `b` then depends on
+    /// the streets arrived and left on, so the by-arc layout is used at every
+    /// size (`4·(2n + 2)²` bytes, twice that with times).
+    ///
+    /// # Errors
+    /// [`MatrixOverflow`] when a deadhead is longer than [`MAX_LEG`].
+    pub fn with_turns(inst: &Instance, td: &TurnDistances) -> Result<Self, MatrixOverflow> {
+        let n = inst.tasks().len();
+        let arcs = 2 * n + 2;
+        let mut serve_cost = vec![0; arcs];
+        let mut serve_time = vec![0; arcs];
+        let mut demand = vec![0; arcs];
+        let mut allowed = vec![true; arcs];
+        for (i, t) in inst.tasks().iter().enumerate() {
+            for (k, dir) in [Dir::Forward, Dir::Backward].into_iter().enumerate() {
+                let a = 2 * i + k;
+                serve_cost[a] = t.cost;
+                serve_time[a] = t.time;
+                demand[a] = t.demand;
+                allowed[a] = t.allows(dir);
+            }
+        }
+        let timed = inst.fleet().shift_limit.is_some();
+        let conv = |x: Cost| -> Result<i32, MatrixOverflow> {
+            if x >= UNREACHABLE {
+                Ok(MISSING)
+            } else if x > MAX_LEG {
+                Err(MatrixOverflow { value: x })
+            } else {
+                Ok(x as i32)
+            }
+        };
+        // Both depot arcs are the yard (row and column 2n of `td`).
+        let key = |a: usize| a.min(2 * n);
+        let mut cost = vec![0i32; arcs * arcs];
+        let mut time = if timed { vec![0i32; arcs * arcs] } else { Vec::new() };
+        for a in 0..arcs {
+            for b in 0..arcs {
+                cost[a * arcs + b] = conv(td.cost(key(a), key(b)))?;
+                if timed {
+                    time[a * arcs + b] = conv(td.time(key(a), key(b)))?;
+                }
+            }
+        }
+        Ok(ArcMatrix {
+            n,
+            arcs,
+            depot: (2 * n) as u32,
+            keys: arcs,
+            kstart: (0..arcs as u32).collect(),
+            kend_row: (0..arcs).map(|a| a * arcs).collect(),
             cost,
             time: timed.then_some(time),
             serve_cost,

@@ -169,6 +169,9 @@ impl<'a> FleetSolver<'a> {
         if inst.operations().is_plain(inst) {
             return self.solve_plain();
         }
+        if inst.turn_rules().is_some() {
+            return Err(FleetSolveError::Solve(SolveError::TurnsWithOperations));
+        }
         let tables = Tables::new(inst).map_err(FleetSolveError::Distances)?;
         let lower_bound = fleet_bound(inst, &tables);
         let mut starts: Vec<(FleetSplit, Vec<usize>)> = Vec::new();

@@ -34,6 +34,7 @@
 //! before, with every feature off.
 //!
 //! | `turn_restrictions` | array, optional | `{ "rule": string, "from_street": integer, "via": id, "to_street": integer }`, see below |
+//! | `turn_rules` | object, optional | `{ "driving_side": "right" \| "left", "u_turns": "dead_ends_only" \| "allowed", "penalties": { "straight": integer, "right": integer, "left": integer, "u_turn": integer }, "obey_restrictions": bool }`, every field optional (defaults `"right"`, `"dead_ends_only"`, all penalties 0, `true`); see [`crate::turns`]. Absent: trucks turn freely and pay nothing (the plan is exactly that of a file without it) |
 //!
 //! A street is `{ "from": id, "to": id, "one_way": bool?, "cost": integer,
 //! "length": integer?, "drive_time": integer?, "name": string?, "class":
@@ -53,8 +54,8 @@
 //! system; without it maps draw a straight line. Unknown fields are rejected,
 //! so a misspelt field is an error, not silently ignored.
 //!
-//! A turn restriction (read from OpenStreetMap `type=restriction` relations
-//! and kept for turn-aware routing; the solver does not use them yet) says
+//! A turn restriction (read from OpenStreetMap `type=restriction` relations,
+//! or written by the planner; obeyed when the scenario has `turn_rules`) says
 //! that a truck arriving at junction `via` along street number `from_street`
 //! (0-based position in `streets`) may not turn into street `to_street`
 //! (`rule` starting with `no_`, such as `"no_left_turn"`), or may only turn
@@ -157,6 +158,8 @@ struct FileRec {
     balance: Option<BalanceRec>,
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     turn_restrictions: Vec<TurnRec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    turn_rules: Option<crate::turns::TurnRules>,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -623,15 +626,41 @@ pub fn read_scenario(text: &str, file: &str) -> Result<Instance> {
             return Err(c.problems.failed());
         }
     };
+    let rules = rec.turn_rules;
     // The coordinates were checked above; this cannot fail.
     let inst = inst
         .with_units(units)
         .with_coordinates(system)
         .map_err(|(j, e)| c.coordinate_error(j, e))?;
-    inst.with_operations(ops).map_err(|e| {
+    let inst = inst.with_operations(ops).map_err(|e| {
         let path = operations_error_path(&rec.yards, &rec.truck_types, &e);
         c.error_at(path, ParseProblem::Model(ModelError::Operations(e)))
+    })?;
+    inst.with_turn_rules(rules).map_err(|all| {
+        for e in all {
+            let path = turn_error_path(&e);
+            c.at(path, ParseProblem::Turn(e));
+        }
+        c.problems.failed()
     })
+}
+
+/// Where in the scenario a turn-rule problem is.
+fn turn_error_path(e: &crate::turns::TurnError) -> Vec<Seg> {
+    use crate::turns::TurnError;
+    match e {
+        TurnError::NotMeeting { index, .. } => {
+            vec![Seg::Key("turn_restrictions"), Seg::Index(*index)]
+        }
+        TurnError::NegativePenalty { which, .. } => {
+            vec![
+                Seg::Key("turn_rules"),
+                Seg::Key("penalties"),
+                Seg::Key(which),
+            ]
+        }
+        TurnError::NoWayOut { link, .. } => vec![Seg::Key("streets"), Seg::Index(*link)],
+    }
 }
 
 /// The problems of one scenario text, each at its JSON path and line.
@@ -1285,6 +1314,7 @@ pub fn write_scenario(inst: &Instance) -> String {
                 to_street: t.to,
             })
             .collect(),
+        turn_rules: inst.turn_rules().copied(),
     };
     // Plain structs of integers, strings, booleans and finite floats always
     // serialize; a failure here would be a bug in this function.

@@ -175,6 +175,7 @@ pub struct Instance {
     fleet: Fleet,
     depot: usize,
     tasks: Vec<Task>,
+    turns: Option<crate::turns::TurnRules>,
     ops: Operations,
 }
 
@@ -256,6 +257,7 @@ impl Instance {
             fleet,
             depot,
             tasks,
+            turns: None,
             ops: Operations::default(),
         };
         if problems.is_empty() {
@@ -374,6 +376,7 @@ impl Instance {
         let inst = Instance {
             units: self.units.clone(),
             coordinates: self.coordinates,
+            turns: self.turns,
             ..inst
         };
         inst.with_operations(self.ops.clone())
@@ -426,6 +429,30 @@ impl Instance {
     /// The instance with these units declared.
     pub fn with_units(self, units: Units) -> Instance {
         Instance { units, ..self }
+    }
+
+    /// The turn rules, when the scenario sets them (`None`: trucks turn
+    /// freely and pay nothing for turns, as in the public research sets).
+    pub fn turn_rules(&self) -> Option<&crate::turns::TurnRules> {
+        self.turns.as_ref()
+    }
+
+    /// The instance with these turn rules, after checking that they can be
+    /// used (see [`crate::turns::TurnTable::new`]).
+    ///
+    /// # Errors
+    /// Every [`crate::turns::TurnError`] found.
+    pub fn with_turn_rules(
+        self,
+        rules: Option<crate::turns::TurnRules>,
+    ) -> Result<Instance, Vec<crate::turns::TurnError>> {
+        if let Some(r) = &rules {
+            crate::turns::TurnTable::new(&self, r)?;
+        }
+        Ok(Instance {
+            turns: rules,
+            ..self
+        })
     }
 
     /// The coordinate system of the junctions' `x` and `y`.

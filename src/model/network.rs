@@ -82,8 +82,8 @@ impl Link {
 
 /// A turn that is forbidden, or the only one allowed, when arriving at a
 /// junction along a link (an OpenStreetMap `type=restriction` relation with a
-/// via node). Kept with the network for turn-aware routing; the solvers do not
-/// use them yet.
+/// via node). Obeyed by the solver and the checker when the scenario has turn
+/// rules ([`crate::turns`]).
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub struct TurnRestriction {
     /// The OpenStreetMap value, such as `no_left_turn` or `only_straight_on`:
@@ -112,7 +112,7 @@ pub struct Network {
     pub junctions: Vec<Junction>,
     /// The links.
     pub links: Vec<Link>,
-    /// Turn restrictions, for turn-aware routing (not used by the solvers yet).
+    /// Turn restrictions, obeyed when the instance has turn rules.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub turn_restrictions: Vec<TurnRestriction>,
 }

@@ -54,6 +54,7 @@ use crate::search::crossover::order_crossover;
 use crate::search::districts::{self, Limits};
 use crate::search::lp_side::{LpBudget, LpOutcome, LpSide};
 use crate::search::population::{Individual, Params, Population};
+use crate::turns::{TurnDistances, TurnTable};
 
 /// What the solver is doing (in [`Progress`]).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -168,6 +169,13 @@ pub struct Solution {
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum SolveError {
+    /// Turn rules together with dump sites, several yards or truck types
+    /// (not supported yet: refused rather than ignored).
+    #[error("turn rules cannot yet be combined with dump sites, several yards or truck types")]
+    TurnsWithOperations,
+    /// The scenario's turn rules cannot be used.
+    #[error("turn rules: {}", .0.iter().map(|e| e.to_string()).collect::<Vec<_>>().join("; "))]
+    TurnRules(Vec<crate::turns::TurnError>),
     /// The shortest paths could not be computed or stored.
     #[error("shortest paths: {0}")]
     Distances(#[from] DistanceError),
@@ -448,10 +456,21 @@ impl<'a> Solver<'a> {
         self.announce(Phase::Bound, None, NO_BOUND, start, 0);
         // The bound runs beside the district search (it only reports the
         // gap there); the island search waits for it (it stops at the bound).
+        // Turn costs dropped is a relaxation (penalties are not negative and
+        // bans only remove ways), so the bound without turns stays valid.
+        let turned = match inst.turn_rules() {
+            Some(rules) => {
+                let table = TurnTable::new(inst, rules).map_err(SolveError::TurnRules)?;
+                Some(TurnDistances::new(inst, &table))
+            }
+            None => None,
+        };
         std::thread::scope(|scope| {
             let pending = scope.spawn(|| bound(inst, dist));
-            let m = prepare(inst, dist)?;
+            let m = prepare(inst, dist, turned.as_ref())?;
+            // District improvement prices plans without turns: off with turn rules.
             let districts = match self.decomposition {
+                _ if turned.is_some() => None,
                 Decomposition::Auto => (m.n > DISTRICTS_FROM).then_some(DISTRICT_STREETS),
                 Decomposition::Off => None,
                 Decomposition::Districts { streets } => Some(streets.max(2)),
@@ -516,7 +535,7 @@ impl<'a> Solver<'a> {
                 Err(why) => LpOutcome::DoesNotApply(why),
             });
             let (cost, routes, found_at, iterations) = result?;
-            let plan = plan_of(inst, dist, &routes, cost);
+            let plan = plan_of(inst, dist, turned.as_ref(), &routes, cost);
             Ok(self.finish(plan, lb, lp, stats0(iterations, found_at)))
         })
     }
@@ -800,16 +819,28 @@ fn candidates_and_neighbours(inst: &Instance, m: &ArcMatrix) -> (Routes, Routes)
     (cand, neigh)
 }
 
-/// The plan of the search's routes (task arcs) of matrix cost `cost`.
-fn plan_of(inst: &Instance, dist: &Distances, routes: &Routes, cost: i64) -> Plan {
+/// The plan of the search's routes (task arcs) of matrix cost `cost`,
+/// priced with the turn-aware distances `turned` when the instance has turn
+/// rules.
+fn plan_of(
+    inst: &Instance,
+    dist: &Distances,
+    turned: Option<&crate::turns::TurnDistances>,
+    routes: &Routes,
+    cost: i64,
+) -> Plan {
     let visits: Vec<Vec<crate::plan::Visit>> = routes
         .iter()
         .map(|r| r.iter().map(|&a| ArcMatrix::visit(a)).collect())
         .collect();
     // A self-loop served either way is the same drive, but a plan file can
     // state only one direction for it: return the one it reads back as, so
-    // every plan returned writes and reads back identically.
-    let plan = Plan::from_visits(inst, dist, visits).self_loops_forward(inst);
+    // every plan returned writes and reads back identically. With turn rules
+    // the direction changes the turns, so it is kept.
+    let plan = match turned {
+        Some(td) => crate::turns::plan_from_visits(inst, td, visits),
+        None => Plan::from_visits(inst, dist, visits).self_loops_forward(inst),
+    };
     debug_assert_eq!(plan.cost, cost, "matrix and plan costs disagree");
     debug_assert!(
         crate::check::check_plan(inst, &plan).is_ok(),
@@ -825,8 +856,16 @@ type Best = (i64, Vec<Vec<u32>>, Duration, u64);
 /// The arc matrices, after the checks that make the search sound: entries
 /// fit, no route can reach [`BIG`], every street fits a route of its own and
 /// the fleet bound can carry the total demand.
-fn prepare(inst: &Instance, dist: &Distances) -> Result<ArcMatrix, SolveError> {
-    let m = ArcMatrix::new(inst, dist).map_err(|e| SolveError::MatrixOverflow {
+fn prepare(
+    inst: &Instance,
+    dist: &Distances,
+    turned: Option<&TurnDistances>,
+) -> Result<ArcMatrix, SolveError> {
+    let m = match turned {
+        Some(td) => ArcMatrix::with_turns(inst, td),
+        None => ArcMatrix::new(inst, dist),
+    }
+    .map_err(|e| SolveError::MatrixOverflow {
         value: e.value,
         limit: MAX_LEG,
     })?;
