@@ -861,3 +861,34 @@ fn plans_a_scenario_with_dump_sites_and_truck_types() {
         .1
         .contains("do not apply to a scenario with truck_types"));
 }
+
+/// A scenario with turn rules is refused with a clear message before
+/// anything is searched or written: the library plans with turns, but the
+/// planner's plan files and sheets cannot carry them yet, and a plan that
+/// cannot be re-checked from its own file must not be written.
+#[test]
+fn turn_rules_are_refused_by_the_planner_until_its_outputs_carry_turns() {
+    let dir = out_dir("planner-turn-rules");
+    std::fs::create_dir_all(&dir).unwrap();
+    let demo_text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("instances/demo-town.json"),
+    )
+    .unwrap();
+    let mut json: serde_json::Value = serde_json::from_str(&demo_text).unwrap();
+    json["turn_rules"] = serde_json::json!({ "penalties": { "left": 15, "u_turn": 30 } });
+    let scenario = dir.join("turns.json");
+    std::fs::write(&scenario, json.to_string()).unwrap();
+    let out = dir.join("out");
+    let o = planner([
+        scenario.as_os_str(),
+        "--iterations".as_ref(),
+        "50".as_ref(),
+        "--quiet".as_ref(),
+        "--out".as_ref(),
+        out.as_os_str(),
+    ]);
+    let (stdout, stderr) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{stdout}\n{stderr}");
+    assert!(stderr.contains("turn_rules"), "{stderr}");
+    assert!(!out.exists(), "nothing is written");
+}

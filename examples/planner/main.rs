@@ -61,6 +61,9 @@ pub enum AppError {
     /// Something that should not happen (a bug): named, not hidden.
     #[error("internal error: {0}")]
     Internal(String),
+    /// The scenario asks for something the planner's outputs cannot show yet.
+    #[error("{0}")]
+    Unsupported(String),
     /// The output folder cannot take the plan (checked before the search).
     #[error("cannot write the plan into {}: {reason}; nothing was searched", path.display())]
     OutFolder {

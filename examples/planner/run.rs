@@ -209,6 +209,16 @@ pub fn render(
 pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
     let (loaded, source) = resolve_scenario(opts)?;
     let inst = loaded.instance;
+    if inst.turn_rules().is_some() {
+        // The library plans with turn rules, but plan files, sheets and the
+        // re-check of the written plan do not carry turns yet: refuse before
+        // anything is searched or written rather than write a plan that
+        // cannot be verified from its file.
+        return Err(AppError::Unsupported(format!(
+            "{source}: the scenario sets turn_rules; the planner cannot yet write plans with \
+             turns (the library's Solver plans them); remove turn_rules to plan without them"
+        )));
+    }
     prepare_folder(&opts.out)?;
     if let Some(path) = &opts.save_scenario {
         save_scenario(path, &inst)?;
