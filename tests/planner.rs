@@ -9,7 +9,6 @@ mod common;
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
-use std::sync::OnceLock;
 
 use arcwright::check::{check_plan, At, Violation};
 use arcwright::io::plan_json::{read_plan, write_plan};
@@ -22,40 +21,9 @@ use arcwright::report::describe;
 const ROOT: &str = env!("CARGO_MANIFEST_DIR");
 const DEMO: &str = "instances/demo-town.json";
 
-/// The planner binary, built with the profile of this test (so that
-/// `cargo test` and `cargo test --release` reuse what they compiled): it
-/// sits in `examples/` beside the `deps/` folder of the test executable.
-/// Built once per test run when missing or out of date (a targeted
-/// `cargo test --test planner` does not build examples).
+/// The planner binary (built on first use; see `common::planner_exe`).
 fn exe() -> &'static Path {
-    static EXE: OnceLock<PathBuf> = OnceLock::new();
-    EXE.get_or_init(|| {
-        let me = std::env::current_exe().unwrap();
-        let profile_dir = me.parent().unwrap().parent().unwrap().to_path_buf();
-        let profile = if profile_dir.file_name().is_some_and(|n| n == "release") {
-            "release"
-        } else {
-            "test"
-        };
-        let status = Command::new(env!("CARGO"))
-            .args([
-                "build",
-                "--quiet",
-                "--profile",
-                profile,
-                "--example",
-                "planner",
-            ])
-            .current_dir(ROOT)
-            .status()
-            .unwrap();
-        assert!(status.success());
-        let exe = profile_dir
-            .join("examples/planner")
-            .with_extension(std::env::consts::EXE_EXTENSION);
-        assert!(exe.exists(), "{} not built", exe.display());
-        exe
-    })
+    common::planner_exe()
 }
 
 /// Runs the planner in the project folder.

@@ -10,7 +10,6 @@ mod common;
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
-use std::sync::OnceLock;
 
 use arcwright::check::check_plan;
 use arcwright::io::plan_json::read_plan;
@@ -19,36 +18,9 @@ use arcwright::io::read_scenario_file;
 const ROOT: &str = env!("CARGO_MANIFEST_DIR");
 const GEOJSON: &str = "tests/fixtures/osm/helsinki_streets.geojson";
 
-/// The planner binary of this test's profile (see `tests/planner.rs`).
+/// The planner binary (built on first use; see `common::planner_exe`).
 fn exe() -> &'static Path {
-    static EXE: OnceLock<PathBuf> = OnceLock::new();
-    EXE.get_or_init(|| {
-        let me = std::env::current_exe().unwrap();
-        let profile_dir = me.parent().unwrap().parent().unwrap().to_path_buf();
-        let profile = if profile_dir.file_name().is_some_and(|n| n == "release") {
-            "release"
-        } else {
-            "test"
-        };
-        let status = Command::new(env!("CARGO"))
-            .args([
-                "build",
-                "--quiet",
-                "--profile",
-                profile,
-                "--example",
-                "planner",
-            ])
-            .current_dir(ROOT)
-            .status()
-            .unwrap();
-        assert!(status.success());
-        let exe = profile_dir
-            .join("examples/planner")
-            .with_extension(std::env::consts::EXE_EXTENSION);
-        assert!(exe.exists(), "{} not built", exe.display());
-        exe
-    })
+    common::planner_exe()
 }
 
 fn planner(args: &[&std::ffi::OsStr]) -> Output {

@@ -1,6 +1,8 @@
 //! Helpers shared by the integration tests (`mod common;` in each test file).
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
+use std::process::Command;
+use std::sync::OnceLock;
 
 /// The public benchmark sets in `../shared/instances` (gdb, val, egl and
 /// `reference.csv`), or `None` after printing the one SKIPPED line when they
@@ -45,4 +47,41 @@ pub fn shared_osm(test: &str) -> Option<PathBuf> {
         );
         None
     }
+}
+
+/// The planner binary, built with the profile of this test (so that
+/// `cargo test` and `cargo test --release` reuse what they compiled): it
+/// sits in `examples/` beside the `deps/` folder of the test executable.
+/// Built once per test run when missing or out of date (a targeted
+/// `cargo test --test planner` does not build examples).
+#[allow(dead_code)] // used by the tests that drive the planner
+pub fn planner_exe() -> &'static Path {
+    static EXE: OnceLock<PathBuf> = OnceLock::new();
+    EXE.get_or_init(|| {
+        let me = std::env::current_exe().unwrap();
+        let profile_dir = me.parent().unwrap().parent().unwrap().to_path_buf();
+        let profile = if profile_dir.file_name().is_some_and(|n| n == "release") {
+            "release"
+        } else {
+            "test"
+        };
+        let status = Command::new(env!("CARGO"))
+            .args([
+                "build",
+                "--quiet",
+                "--profile",
+                profile,
+                "--example",
+                "planner",
+            ])
+            .current_dir(env!("CARGO_MANIFEST_DIR"))
+            .status()
+            .unwrap();
+        assert!(status.success());
+        let exe = profile_dir
+            .join("examples/planner")
+            .with_extension(std::env::consts::EXE_EXTENSION);
+        assert!(exe.exists(), "{} not built", exe.display());
+        exe
+    })
 }
