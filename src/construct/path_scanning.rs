@@ -39,6 +39,25 @@ pub const RULES: [Rule; 5] = [
     Rule::ByLoad,
 ];
 
+/// The arc taken among the nearest `ties` (not empty): a random one under
+/// [`Rule::Random`] (the first without a generator), else the best by `rule`
+/// (the first on ties).
+fn choose<R: Rng>(m: &ArcMatrix, rule: Rule, rng: Option<&mut R>, load: i64, ties: &[u32]) -> u32 {
+    match (rule, rng) {
+        (Rule::Random, Some(r)) => ties[r.random_range(0..ties.len())],
+        (Rule::Random, None) => ties[0],
+        _ => {
+            let mut b = ties[0];
+            for &x in &ties[1..] {
+                if better(m, rule, load, x, b) {
+                    b = x;
+                }
+            }
+            b
+        }
+    }
+}
+
 /// `a` better than `b` under `rule` (strict), for arcs `a`, `b`.
 fn better(m: &ArcMatrix, rule: Rule, load: i64, a: u32, b: u32) -> bool {
     let back = |x: u32| m.d(x, m.depot);
@@ -130,19 +149,7 @@ pub fn path_scan<R: Rng>(
             if ties.is_empty() {
                 break;
             }
-            let pick = match (rule, rng.as_deref_mut()) {
-                (Rule::Random, Some(r)) => ties[r.random_range(0..ties.len())],
-                (Rule::Random, None) => ties[0],
-                _ => {
-                    let mut b = ties[0];
-                    for &x in &ties[1..] {
-                        if better(m, rule, load, x, b) {
-                            b = x;
-                        }
-                    }
-                    b
-                }
-            };
+            let pick = choose(m, rule, rng.as_deref_mut(), load, &ties);
             time += m.t(at, pick) + m.serve_time[pick as usize];
             load += m.demand[pick as usize];
             at = pick;
@@ -201,19 +208,7 @@ pub fn path_scan_listed<R: Rng>(
             if ties.is_empty() {
                 break;
             }
-            let pick = match (rule, rng.as_deref_mut()) {
-                (Rule::Random, Some(r)) => ties[r.random_range(0..ties.len())],
-                (Rule::Random, None) => ties[0],
-                _ => {
-                    let mut b = ties[0];
-                    for &x in &ties[1..] {
-                        if better(m, rule, load, x, b) {
-                            b = x;
-                        }
-                    }
-                    b
-                }
-            };
+            let pick = choose(m, rule, rng.as_deref_mut(), load, &ties);
             time += m.t(at, pick) + m.serve_time[pick as usize];
             load += m.demand[pick as usize];
             at = pick;
