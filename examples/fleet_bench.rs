@@ -3,7 +3,7 @@
 //! balancing.
 //!
 //! ```text
-//! cargo run --release --example fleet_bench [-- OUT_DIR]
+//! cargo run --release --example fleet_bench [-- [OUT_DIR] [--demo-only]]
 //! ```
 //!
 //! 1. *Demo town with a landfill*: `instances/demo-town.json` plus a
@@ -34,14 +34,19 @@ use arcwright::paths::Distances;
 
 fn main() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
-    let out = std::env::args()
-        .nth(1)
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    let demo_only = args.iter().any(|a| a == "--demo-only");
+    let out = args
+        .iter()
+        .find(|a| !a.starts_with("--"))
         .map(PathBuf::from)
         .unwrap_or_else(|| root.join("target/fleet-bench"));
     std::fs::create_dir_all(&out).expect("output folder");
     let mut cases = vec![demo_with_landfill(&root)];
     let egl = root.join("../shared/instances/egl");
-    if egl.exists() {
+    if demo_only {
+        // only the demo town
+    } else if egl.exists() {
         for name in ["egl-e1-A", "egl-s1-A"] {
             cases.push(egl_with_dump(&egl.join(format!("{name}.dat"))));
         }
