@@ -6,7 +6,7 @@
 //! its tasks. Directions and tips are not fixed: the price of a sequence is
 //! the exact optimum over every choice of directions and tips, its *front*
 //! (the `(cost, time)` closings not dominated in both, see
-//! [`super::split::route_front`]). The objective of the plan is then exact
+//! [`super::split::route_price`]). The objective of the plan is then exact
 //! for its sequences:
 //!
 //! - least cost: the sum of the routes' cheapest closings;
@@ -87,10 +87,13 @@ enum Slot {
     New,
 }
 
+/// A priced route of a move: where it goes, type, tasks, front.
+type PricedRoute = (Slot, usize, Vec<usize>, Vec<(Cost, Cost)>);
+
 /// A priced move: the changed routes (with their fronts) and the plan's new
 /// value.
 struct Priced {
-    changes: Vec<(Slot, usize, Vec<usize>, Vec<(Cost, Cost)>)>,
+    changes: Vec<PricedRoute>,
     objective: Cost,
     exact: bool,
 }

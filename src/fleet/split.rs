@@ -739,7 +739,7 @@ pub(super) fn route_price(
 }
 
 /// The route of type `k` serving `seq` in this order whose closing is
-/// `(cost, time)` (one of [`route_front`]'s), with its directions and tips;
+/// `(cost, time)` (one of [`route_price`]'s), with its directions and tips;
 /// `None` when no closing has these values.
 pub(super) fn route_of(
     inst: &Instance,
