@@ -53,8 +53,23 @@ fn main() {
     } else {
         eprintln!("SKIPPED egl: ../shared/instances not found");
     }
-    println!("| instance | balance | cost | routes | trips | tips | longest shift | shortest shift | seconds |");
-    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|");
+    if let Some(inst) = cases.first() {
+        // One exact split of a whole order (the streets in file order),
+        // which is what pricing a move cost before the route search.
+        let tables = arcwright::fleet::Tables::new(inst).expect("tables");
+        let order: Vec<usize> = (0..inst.tasks().len()).collect();
+        let t = Instant::now();
+        let s = arcwright::fleet::split::split(inst, &tables, &order).expect("a split");
+        println!(
+            "{}: one exact split of the whole order ({} streets, cost {}): {:.1} ms\n",
+            inst.name,
+            order.len(),
+            s.cost,
+            t.elapsed().as_secs_f64() * 1000.0
+        );
+    }
+    println!("| instance | balance | cost | routes | trips | tips | longest shift | shortest shift | moves priced | seconds |");
+    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|---:|");
     for inst in cases {
         let file = out.join(format!("{}.json", inst.name.replace(' ', "-")));
         std::fs::write(&file, write_scenario(&inst)).expect("write scenario");
@@ -76,7 +91,7 @@ fn main() {
             assert!(check_fleet_plan(&inst, &sol.plan).is_ok());
             let (long, short) = sol.shift_spread;
             println!(
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
                 inst.name,
                 if weight == 0 {
                     "least cost".to_string()
@@ -89,6 +104,7 @@ fn main() {
                 sol.plan.tips(),
                 long,
                 short,
+                sol.moves_priced,
                 secs
             );
         }

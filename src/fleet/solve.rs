@@ -117,8 +117,12 @@ pub struct FleetSolution {
     pub exact_split: bool,
     /// Local-search moves that improved the plan.
     pub improving_moves: u64,
-    /// Rounds of iterated local search done (all starts).
+    /// Rounds of iterated local search done (all starts; with every feature
+    /// off, the offspring of today's solver).
     pub rounds: u64,
+    /// Local-search moves priced (all starts), each by the inner programme
+    /// on the routes it touches.
+    pub moves_priced: u64,
     /// Whether the time limit or the stop flag ended the search early.
     pub stopped_early: bool,
     /// Total time of [`FleetSolver::solve`].
@@ -177,6 +181,7 @@ struct Shared<'s, 'a> {
     bound: &'s LowerBound,
     best: Mutex<Cost>,
     rounds: AtomicU64,
+    priced: AtomicU64,
 }
 
 impl<'a> FleetSolver<'a> {
@@ -292,9 +297,11 @@ impl<'a> FleetSolver<'a> {
             bound: &lower_bound,
             best: Mutex::new(Cost::MAX),
             rounds: AtomicU64::new(0),
+            priced: AtomicU64::new(0),
         };
         let results = shared.improve_all(starts);
         let rounds = shared.rounds.load(Ordering::Relaxed);
+        let moves_priced = shared.priced.load(Ordering::Relaxed);
         let stopped_early = shared.limits.hit();
         drop(shared);
         let mut improving = 0;
@@ -319,6 +326,7 @@ impl<'a> FleetSolver<'a> {
             exact_split: exact,
             improving_moves: improving,
             rounds,
+            moves_priced,
             stopped_early,
             elapsed: start.elapsed(),
         })
@@ -392,6 +400,7 @@ impl<'a> FleetSolver<'a> {
             exact_split: true,
             improving_moves: 0,
             rounds: sol.stats.iterations,
+            moves_priced: 0,
             stopped_early,
             elapsed: start.elapsed(),
         })
@@ -576,10 +585,18 @@ impl<'s> Shared<'s, '_> {
                 let exact = r.exact && s.exact;
                 *r = Routes::from_split(inst, self.tables, &s);
                 r.exact &= exact;
-                r.descend(self.near, &[], limits).0
+                self.descend(r, &[], limits)
             }
             _ => 0,
         }
+    }
+
+    /// A descent of `r` (see `route_search`), its moves priced counted;
+    /// returns the improving moves.
+    fn descend(&self, r: &mut Routes<'s>, start: &[usize], limits: &Limits) -> u64 {
+        let (improving, priced) = r.descend(self.near, start, limits);
+        self.priced.fetch_add(priced, Ordering::Relaxed);
+        improving
     }
 
     /// Whether `r` is proven optimal (least cost at the lower bound).
@@ -593,7 +610,7 @@ impl<'s> Shared<'s, '_> {
         let inst = self.solver.inst;
         let mut cur = Routes::from_split(inst, self.tables, &s);
         cur.exact &= s.exact;
-        let mut improving = cur.descend(self.near, &[], limits).0;
+        let mut improving = self.descend(&mut cur, &[], limits);
         improving += self.resplit(&mut cur, limits);
         self.report(&cur);
         let mut best = cur.clone();
@@ -604,7 +621,7 @@ impl<'s> Shared<'s, '_> {
             self.rounds.fetch_add(1, Ordering::Relaxed);
             let count = 2 + rng.random_range(0..3);
             let touched = cur.perturb(self.near, rng, count);
-            improving += cur.descend(self.near, &touched, limits).0;
+            improving += self.descend(&mut cur, &touched, limits);
             if cur.objective < best.objective {
                 self.report(&cur);
                 best = cur.clone();
