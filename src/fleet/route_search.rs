@@ -136,6 +136,9 @@ fn value<'f>(
         .collect();
     times.sort_unstable();
     times.dedup();
+    if times.is_empty() {
+        return (0, 0, 0); // no routes
+    }
     let mut best = (Cost::MAX, Cost::MAX, Cost::MAX);
     for t in times {
         let cost: Cost = fronts
