@@ -5,7 +5,10 @@
 //! its own lexicographic Dijkstra search (least cost, ties broken by least
 //! time, the convention documented in [`crate::model::Fleet::shift_limit`]),
 //! and recomputes every load, cost and time from scratch. [`check_walks`]
-//! checks explicit street-by-street walks ([`Step`]s) against the network.
+//! checks explicit street-by-street walks ([`Step`]s) against the network;
+//! [`check_turn_walks`] checks walks that state their turns (plan files of
+//! scenarios with turn rules) turn by turn, with the checker's own turn
+//! table, and their costs against the routes'.
 //!
 //! All problems found are returned, not only the first, as typed
 //! [`Violation`]s. Their fields are 0-based indices, as in [`Plan::routes`],
@@ -157,7 +160,7 @@ pub enum Violation {
     /// A walk states a turn of another kind or with another penalty than
     /// the turn rules give it.
     #[error(
-        "Truck {}, step {}: the turn from {from} into {to} at junction {via} is stated as {stated_kind:?} costing {stated}, but the turn rules make it {actual_kind:?} costing {actual}",
+        "Truck {}, step {}: the turn from {from} into {to} at junction {via} is stated as `{stated_kind}` costing {stated}, but the turn rules make it `{actual_kind}` costing {actual}",
         .route + 1, .step + 1
     )]
     WrongTurn {

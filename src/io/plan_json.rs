@@ -49,6 +49,23 @@
 //!   undeclared; `run` (optional, [`RunSettings`]): how the plan was made.
 //!   Readers ignore `units`, `run` and route `length`.
 //!
+//! - `walk` (optional, per route; written when the scenario has turn rules,
+//!   [`PlanRecord::walks`]): every street driven, in order, served and
+//!   deadhead, as `{"link": 242, "from": 164, "to": 165, "serve": true,
+//!   "turn": "right", "turn_cost": 0}`: `link`, `from`, `to` as in
+//!   `services` (junction ids, the direction driven), `serve` whether the
+//!   street is served on this step, and from the second step on the turn
+//!   made into it (`straight`, `left`, `right`, `u_turn`, `unknown` without
+//!   coordinates) and its penalty. The route's `cost` is the sum of its
+//!   steps' costs (service cost when served, driving cost otherwise) plus
+//!   the `turn_cost`s, so a tool can verify turns and costs along the walk
+//!   without computing paths. [`read_walks`] reads it for
+//!   [`crate::check::check_turn_walks`]; the two plan readers below ignore it.
+//!
+//! With turn rules the routes' figures are recomputed on the turn-aware
+//! network ([`crate::turns::route_with_turns`]), without them from the
+//! shortest deadhead paths.
+//!
 //! Two readers; errors of both name the file and, for services, the line.
 //!
 //! - [`read_plan`] (and [`read_plan_with`]) is strict: it checks that every

@@ -270,7 +270,7 @@ pub fn csv_of_rows(inst: &Instance, rows: &[SheetRow]) -> String {
             rec.push(x.time.to_string());
         }
         if turns {
-            rec.push(x.turn.map_or(String::new(), |t| turn_word(t.kind).into()));
+            rec.push(x.turn.map_or(String::new(), |t| turn_word(t.kind)));
             rec.push(x.turn.map_or(String::new(), |t| t.cost.to_string()));
             rec.push(x.manoeuvre.clone().unwrap_or_default());
         }
@@ -461,16 +461,9 @@ fn md_row(u: &Units, lengths: bool, times: bool, x: &SheetRow) -> String {
     cells
 }
 
-/// The word of a turn kind in CSV sheets and plan files.
-pub fn turn_word(k: crate::turns::TurnKind) -> &'static str {
-    use crate::turns::TurnKind::*;
-    match k {
-        Straight => "straight",
-        Right => "right",
-        Left => "left",
-        UTurn => "u_turn",
-        Unknown => "unknown",
-    }
+/// The word of a turn kind in CSV sheets and plan files (its `Display`).
+pub fn turn_word(k: crate::turns::TurnKind) -> String {
+    k.to_string()
 }
 
 /// The turns of one route's rows counted, with turn rules (`None` without).
