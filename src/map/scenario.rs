@@ -165,23 +165,14 @@ pub fn to_instance(
         max_vehicles: profile.truck.max_trucks,
     };
     let mut network = network;
-    let mut cut_off = Vec::new();
-    if let Some(rules) = &profile.turn_rules {
-        // Streets the turn rules cut off from the yard are driven, not served.
-        let plain = Instance::new(name, network.clone(), fleet.clone(), graph.yard.0)
-            .map_err(|e| model_error(graph, &street_of, file, e))?;
-        let table = TurnTable::without_ways_out_check(&plain, rules).map_err(|all| {
-            MapError::TurnRules {
-                file: file.to_string(),
-                problems: all.iter().map(|e| e.to_string()).collect(),
-            }
-        })?;
-        for t in crate::turns::unservable(&plain, &table) {
-            let link = plain.tasks()[t].link;
-            network.links[link].service = None;
-            cut_off.push(network.street_label(link));
+    let cut_off = match &profile.turn_rules {
+        Some(rules) => {
+            let plain = Instance::new(name, network.clone(), fleet.clone(), graph.yard.0)
+                .map_err(|e| model_error(graph, &street_of, file, e))?;
+            unserve_cut_off(&plain, rules, &mut network, file)?
         }
-    }
+        None => Vec::new(),
+    };
     let inst = Instance::new(name, network, fleet, graph.yard.0)
         .map_err(|e| model_error(graph, &street_of, file, e))?;
     let units = Units {
@@ -204,6 +195,29 @@ pub fn to_instance(
             problems: all.iter().map(|e| e.to_string()).collect(),
         })?;
     Ok((inst, street_of, cut_off))
+}
+
+/// Streets the turn rules cut off from the yard ([`crate::turns::unservable`])
+/// made driven, not served, in `network`; returns their labels.
+fn unserve_cut_off(
+    plain: &Instance,
+    rules: &crate::turns::TurnRules,
+    network: &mut Network,
+    file: &str,
+) -> Result<Vec<String>, MapError> {
+    let table =
+        TurnTable::without_ways_out_check(plain, rules).map_err(|all| MapError::TurnRules {
+            file: file.to_string(),
+            problems: all.iter().map(|e| e.to_string()).collect(),
+        })?;
+    Ok(crate::turns::unservable(plain, &table)
+        .into_iter()
+        .map(|t| {
+            let link = plain.tasks()[t].link;
+            network.links[link].service = None;
+            network.street_label(link)
+        })
+        .collect())
 }
 
 fn model_error(graph: &StreetGraph, street_of: &[usize], file: &str, e: ModelError) -> MapError {
