@@ -136,6 +136,20 @@ fn osm_extract_is_planned_with_turn_rules_and_its_restrictions() {
     assert!(stdout.contains("U-turns"), "{stdout}");
     let plan_text = std::fs::read_to_string(dir.join("out/plan.json")).unwrap();
     assert!(plan_text.contains("\"walk\""));
+    // The GeoJSON steps carry their manoeuvres (read with the geojson crate).
+    let gj: geojson::GeoJson = std::fs::read_to_string(dir.join("out/plan.geojson"))
+        .unwrap()
+        .parse()
+        .unwrap();
+    let geojson::GeoJson::FeatureCollection(fc) = gj else {
+        panic!("not a FeatureCollection")
+    };
+    let said = fc
+        .features
+        .iter()
+        .filter(|f| f.property("manoeuvre").is_some())
+        .count();
+    assert_eq!(said + 1, fc.features.len(), "every step but the yard");
     let plan = dir.join("out/plan.json");
     let o = planner(&[
         "check".as_ref(),
