@@ -60,7 +60,7 @@ fn walks_cost_what_the_turn_aware_distances_price() {
             .wrapping_add(1442695040888963407);
         (x >> 33) as usize % m
     };
-    for _ in 0..40 {
+    for _ in 0..200 {
         let len = 1 + next(6);
         let visits: Vec<Visit> = (0..len)
             .map(|_| {

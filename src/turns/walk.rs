@@ -12,9 +12,12 @@
 //! allowed turns, memory `O(A)` for `A` driving arcs; routes are expanded in
 //! parallel (rayon), with the same result for any number of threads.
 
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+
 use rayon::prelude::*;
 
-use super::paths::{search, source_of, Source};
+use super::paths::{source_of, Source};
 use super::rules::TurnKind;
 use super::table::{arc_of, head, tail, TurnTable};
 use crate::model::{Cost, Instance};
@@ -155,7 +158,10 @@ pub fn walks_with_turns(inst: &Instance, table: &TurnTable, plan: &Plan) -> Opti
 
 /// The deadheaded arcs of the least (cost, time) leg from `src` to entering
 /// arc `target` (to arriving at the yard when `None`), as [`TurnDistances`]
-/// prices it; `None` when there is no allowed way.
+/// prices it; `None` when there is no allowed way. A Dijkstra search on the
+/// driving arcs like [`super::search`], stopped as soon as no arc left in
+/// the queue can end the leg more cheaply than the best end found (every
+/// cost and penalty is at least zero).
 ///
 /// [`TurnDistances`]: super::TurnDistances
 fn leg(inst: &Instance, table: &TurnTable, src: Source, target: Option<u32>) -> Option<Vec<u32>> {
@@ -171,12 +177,46 @@ fn leg(inst: &Instance, table: &TurnTable, src: Source, target: Option<u32>) -> 
     if direct == Some((0, 0)) {
         return Some(Vec::new());
     }
-    let s = search(inst, table, src);
+    let arcs = table.arcs();
+    let mut best_at = vec![(UNREACHABLE, UNREACHABLE); arcs];
+    let mut pred = vec![u32::MAX; arcs];
+    let mut heap = BinaryHeap::new();
+    let mut relax = |best_at: &mut Vec<(Cost, Cost)>,
+                     heap: &mut BinaryHeap<_>,
+                     f: u32,
+                     c: Cost,
+                     t: Cost,
+                     p: u32| {
+        let l = &net.links[f as usize / 2];
+        let x = (c + l.cost, t + l.drive_time());
+        if x < best_at[f as usize] {
+            best_at[f as usize] = x;
+            pred[f as usize] = p;
+            heap.push(Reverse((x.0, x.1, f)));
+        }
+    };
+    match src {
+        Source::After(a) => {
+            let tr = table.turns(a);
+            for (&f, &pen) in tr.next.iter().zip(tr.penalty) {
+                relax(&mut best_at, &mut heap, f, pen, 0, u32::MAX);
+            }
+        }
+        Source::At(v) => {
+            for f in 0..arcs as u32 {
+                if table.drivable(f) && tail(net, f) == v {
+                    relax(&mut best_at, &mut heap, f, 0, 0, u32::MAX);
+                }
+            }
+        }
+    }
     let mut best: Option<((Cost, Cost), Option<u32>)> = direct.map(|d| (d, None));
-    for e in 0..table.arcs() as u32 {
-        let (c, t) = (s.cost[e as usize], s.time[e as usize]);
-        if c >= UNREACHABLE {
+    while let Some(Reverse((c, t, e))) = heap.pop() {
+        if (c, t) != best_at[e as usize] {
             continue;
+        }
+        if best.is_some_and(|(b, _)| (c, t) >= b) {
+            break;
         }
         let end = match target {
             Some(b) => table.penalty(e, b).map(|p| (c + p, t)),
@@ -187,13 +227,17 @@ fn leg(inst: &Instance, table: &TurnTable, src: Source, target: Option<u32>) -> 
                 best = Some((x, Some(e)));
             }
         }
+        let tr = table.turns(e);
+        for (&f, &pen) in tr.next.iter().zip(tr.penalty) {
+            relax(&mut best_at, &mut heap, f, c + pen, t, e);
+        }
     }
     let (_, last) = best?;
     let mut path = Vec::new();
     let mut e = last;
     while let Some(a) = e {
         path.push(a);
-        let p = s.pred[a as usize];
+        let p = pred[a as usize];
         e = (p != u32::MAX).then_some(p);
     }
     path.reverse();
