@@ -266,7 +266,7 @@ fn helsinki(root: &Path, o: &Opts) {
     let a = solve(&free.instance, o);
     let b = solve(&turned.instance, o);
     let note = format!(
-        " {} passes to serve free, {} with the rules ({} streets cut off by the rules and the map's {} restrictions)",
+        "\n\nHelsinki: {} passes to serve free, {} with the rules ({} streets cut off by the rules and the map's {} restrictions).",
         free.instance.tasks().len(),
         turned.instance.tasks().len(),
         turned.report.cut_off_by_turns.len(),
