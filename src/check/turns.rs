@@ -42,16 +42,13 @@ impl Turns {
         for &d in &drives {
             leaving.entry(ends(inst, d).0).or_default().push(d);
         }
-        let streets_at = |v: usize| {
-            let mut s: Vec<usize> = (0..net.links.len())
-                .filter(|&i| {
-                    let l = &net.links[i];
-                    l.from != l.to && (l.from == v || l.to == v)
-                })
-                .collect();
-            s.dedup();
-            s.len()
-        };
+        // Streets (loops aside) meeting at each junction, counted once.
+        let mut meeting = vec![0usize; net.junctions.len()];
+        for l in net.links.iter().filter(|l| l.from != l.to) {
+            meeting[l.from] += 1;
+            meeting[l.to] += 1;
+        }
+        let streets_at = |v: usize| meeting[v];
         let mut next = BTreeMap::new();
         for &d in &drives {
             let via = ends(inst, d).1;
