@@ -134,6 +134,8 @@ fn demo_with_landfill(root: &std::path::Path) -> Instance {
         cost_per_mille,
         no_entry: vec![],
         no_service: vec![],
+        no_entry_classes: vec![],
+        no_service_classes: vec![],
     };
     let ops = Operations {
         dump_sites: vec![DumpSite {
