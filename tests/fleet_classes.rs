@@ -168,8 +168,7 @@ fn distances_route_around_the_classes_a_type_may_not_enter() {
             let d = tables.dist(k);
             for &u in d.keys() {
                 for &v in d.keys() {
-                    let got = (d.cost(u, v) < UNREACHABLE)
-                        .then(|| (d.cost(u, v), d.time(u, v)));
+                    let got = (d.cost(u, v) < UNREACHABLE).then(|| (d.cost(u, v), d.time(u, v)));
                     let w = (want[u][v].0 < INF).then_some(want[u][v]);
                     assert_eq!(got, w, "seed {seed} type {k} {u}->{v}");
                     compared += 1;

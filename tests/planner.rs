@@ -830,6 +830,61 @@ fn plans_a_scenario_with_dump_sites_and_truck_types() {
         .contains("do not apply to a scenario with truck_types"));
 }
 
+/// `planner check` reads fleet plan files: the planner's own passes, and a
+/// tampered one (a tip removed, a trip load and the trip count changed) is
+/// read as written and every fault is listed in the sheets' words (truck
+/// with its type, trip, tip, street names), not stopped at the first.
+#[test]
+fn check_reads_fleet_plans_and_names_their_faults_in_the_sheets_words() {
+    let scenario = "tests/fixtures/fleet/two_yards.json";
+    let dir = out_dir("planner-fleet-check");
+    let out = dir.join("out");
+    plan_ok(&[scenario, "--iterations", "20"], &out);
+    let file = out.join("plan.json");
+    let o = planner([
+        std::ffi::OsString::from("check"),
+        scenario.into(),
+        file.clone().into_os_string(),
+    ]);
+    let (stdout, stderr) = text(&o);
+    assert!(o.status.success(), "{stdout}{stderr}");
+    assert!(stdout.contains("valid for"), "{stdout}");
+    // Tamper: route 1 loses its last tip (it ends with one: trucks return
+    // empty), its first trip load is raised by one, the trip count is off.
+    let mut v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&file).unwrap()).unwrap();
+    let route = &mut v["routes"][0];
+    let stops = route["stops"].as_array_mut().unwrap();
+    assert!(stops.last().unwrap().get("tip").is_some(), "{stops:?}");
+    stops.pop();
+    let load = route["trip_loads"][0].as_i64().unwrap();
+    route["trip_loads"][0] = serde_json::json!(load + 1);
+    let trips = v["trips"].as_u64().unwrap();
+    v["trips"] = serde_json::json!(trips + 5);
+    let kind = v["routes"][0]["truck_type"].as_str().unwrap().to_string();
+    let bad = dir.join("tampered.json");
+    std::fs::write(&bad, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+    let o = planner([
+        std::ffi::OsString::from("check"),
+        scenario.into(),
+        bad.into_os_string(),
+    ]);
+    let (stdout, stderr) = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{stdout}{stderr}");
+    let truck = format!("Truck 1 ({kind})");
+    for want in [
+        format!("{truck} returns to its yard with"),
+        format!("{truck}: the plan states trip loads"),
+        format!("the plan states {} trips", trips + 5),
+    ] {
+        assert!(stdout.contains(&want), "missing `{want}` in\n{stdout}");
+    }
+    assert!(
+        !stdout.contains("route 0"),
+        "0-based words leaked:\n{stdout}"
+    );
+}
+
 /// A scenario with turn rules is refused with a clear message before
 /// anything is searched or written: the library plans with turns, but the
 /// planner's plan files and sheets cannot carry them yet, and a plan that

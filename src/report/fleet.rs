@@ -4,7 +4,8 @@
 
 use std::fmt::Write as _;
 
-use super::{street_label, CAUTIONS};
+use super::{street_label, street_ref, CAUTIONS};
+use crate::check::fleet::FleetViolation;
 use crate::fleet::FleetPlan;
 use crate::model::{Cost, Instance};
 
@@ -103,4 +104,161 @@ pub fn fleet_markdown(inst: &Instance, plan: &FleetPlan) -> String {
         );
     }
     s
+}
+
+/// One finding of [`crate::check::fleet::check_fleet_plan`] in the words of
+/// the fleet sheets: trucks numbered from 1 with their type and yard, trips
+/// and tips numbered from 1 (tips with their dump site), services numbered
+/// from 1 with the street's name, junctions by the scenario's ids, amounts
+/// with their units. The checker's own `Display` numbers from 0 and names
+/// streets by index.
+///
+/// ```
+/// use arcwright::check::fleet::FleetViolation;
+/// use arcwright::fleet::FleetPlan;
+/// use arcwright::model::{Fleet, Instance, Network};
+/// let mut net = Network::with_junctions(2);
+/// net.add_required_edge(0, 1, 4, 2);
+/// let inst = Instance::new("one", net, Fleet::with_capacity(9), 0).unwrap();
+/// let v = FleetViolation::ServedTimes { street: 0, times: 0 };
+/// let text = arcwright::report::fleet::describe_fleet(&inst, &FleetPlan::new(vec![]), &v);
+/// assert_eq!(text, "the street between junctions 0 and 1 (#0) is not served");
+/// ```
+pub fn describe_fleet(inst: &Instance, plan: &FleetPlan, v: &FleetViolation) -> String {
+    use FleetViolation as V;
+    let u = inst.units();
+    let types = inst.operations().types_of(inst);
+    let yards = inst.operations().yards_of(inst);
+    let truck = |r: usize| match plan.routes.get(r) {
+        Some(route) => match types.get(route.truck_type) {
+            Some(t) => format!("Truck {} ({})", r + 1, t.name),
+            None => format!("Truck {}", r + 1),
+        },
+        None => format!("Truck {}", r + 1),
+    };
+    let tip = |r: usize, t: usize| {
+        let site = plan
+            .routes
+            .get(r)
+            .and_then(|x| x.tips.get(t))
+            .filter(|x| x.site < inst.operations().dump_sites.len())
+            .map(|x| format!(" at {}", site_name(inst, x.site)))
+            .unwrap_or_default();
+        format!("{}, tip {}{site}", truck(r), t + 1)
+    };
+    let service = |r: usize, s: usize| format!("{}, service {}", truck(r), s + 1);
+    let street = |l: usize| street_ref(inst, l);
+    let junction = |j: usize| match inst.network().junctions.get(j) {
+        Some(x) => format!("junction {}", x.id),
+        None => format!("junction #{j}"),
+    };
+    let yard = |y: usize| match yards.get(y) {
+        Some(x) => format!("yard {}", x.name),
+        None => format!("yard #{}", y + 1),
+    };
+    match v {
+        V::UnknownType { route, truck_type } => format!(
+            "Truck {}: no truck type number {} (the scenario has {})",
+            route + 1,
+            truck_type + 1,
+            types.len()
+        ),
+        V::WrongYard { route, yard: y, home } => format!(
+            "{} starts from {}, but its type's home is {}",
+            truck(*route),
+            yard(*y),
+            yard(*home)
+        ),
+        V::TooManyTrucks {
+            truck_type,
+            used,
+            count,
+        } => format!("{used} trucks of type {truck_type} are used, but only {count} are available"),
+        V::UnknownTask { route, visit } => {
+            format!("{}: not a street to serve", service(*route, *visit))
+        }
+        V::WrongDirection {
+            route,
+            visit,
+            street: l,
+        } => format!(
+            "{}: {} is served against its direction",
+            service(*route, *visit),
+            street(*l)
+        ),
+        V::TypeMayNotServe {
+            route,
+            visit,
+            street: l,
+            truck_type,
+            list,
+        } => format!(
+            "{}: trucks of type {truck_type} may not {} {} (its {list})",
+            service(*route, *visit),
+            if *list == "no_entry" { "drive on" } else { "serve" },
+            street(*l)
+        ),
+        V::ServedTimes { street: l, times } => match times {
+            0 => format!("{} is not served", street(*l)),
+            n => format!("{} is served {n} times, not once", street(*l)),
+        },
+        V::BadTip { route, tip: t } => format!(
+            "{}: a tip must follow a service, at most one between two services, at a dump site of the scenario",
+            tip(*route, *t)
+        ),
+        V::Overloaded {
+            route,
+            trip,
+            load,
+            capacity,
+        } => format!(
+            "{}, trip {}: load {} over the load limit of {}",
+            truck(*route),
+            trip + 1,
+            u.load_text(*load),
+            u.load_text(*capacity)
+        ),
+        V::ReturnsLoaded { route, load } => format!(
+            "{} returns to its yard with {} on board; it must tip first",
+            truck(*route),
+            u.load_text(*load)
+        ),
+        V::SiteClosed {
+            route,
+            tip: t,
+            arrival,
+            closes,
+        } => format!(
+            "{}: arrives at {}, after the dump site closes at {}",
+            tip(*route, *t),
+            u.time_text(*arrival),
+            u.time_text(*closes)
+        ),
+        V::NoPath { route, from, to } => format!(
+            "{}: no way to drive from {} to {} on the streets its type may enter",
+            truck(*route),
+            junction(*from),
+            junction(*to)
+        ),
+        V::OverShift { route, time, limit } => format!(
+            "{}: shift time {} over the shift limit of {}",
+            truck(*route),
+            u.time_text(*time),
+            u.time_text(*limit)
+        ),
+        V::Mismatch {
+            route,
+            what,
+            stated,
+            actual,
+        } => format!(
+            "{}: the plan states {what} {stated}, recomputed {actual}",
+            truck(*route)
+        ),
+        V::WrongTotal { stated, actual } => format!(
+            "the plan states a total cost of {}, its trucks' costs add up to {}",
+            u.cost_text(*stated),
+            u.cost_text(*actual)
+        ),
+    }
 }
