@@ -10,6 +10,7 @@ use arcwright::check::fleet::check_fleet_plan;
 use arcwright::check::{check_plan, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
 use arcwright::fleet::FleetSolver;
+use arcwright::fleet::{FleetPlan, Tables};
 use arcwright::io::fleet_plan::FLEET_PLAN_FORMAT;
 use arcwright::io::plan_json::{
     read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
@@ -20,7 +21,9 @@ use arcwright::io::{read_fleet_plan, read_fleet_plan_as_written, write_fleet_pla
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
-use arcwright::report::fleet::{describe_fleet, fleet_markdown};
+use arcwright::report::fleet::{describe_fleet, fleet_markdown, fleet_rows};
+use arcwright::report::geo::fleet_feature_collection;
+use arcwright::report::svg::fleet_map;
 use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
 use arcwright::{LpOutcome, Progress, Solver};
 
@@ -373,6 +376,7 @@ fn run_fleet_plan(
             contents: summary.clone(),
         },
     ];
+    files.extend(fleet_maps(inst, &sol.plan)?);
     let mut summary = summary;
     if osm {
         attribute_osm(&mut files);
@@ -387,6 +391,28 @@ fn run_fleet_plan(
         summary,
         files,
     })
+}
+
+/// `plan.svg` and `plan.geojson` of a fleet plan (when the scenario has
+/// coordinates): the walks on each truck type's own streets, the way to a
+/// dump site and back marked, yards and dump sites labelled.
+fn fleet_maps(inst: &Instance, plan: &FleetPlan) -> Result<Vec<OutputFile>, AppError> {
+    let tables = Tables::new(inst).map_err(AppError::Distances)?;
+    let rows = fleet_rows(inst, &tables, plan);
+    let mut files = Vec::new();
+    if let Some(g) = fleet_feature_collection(inst, plan, &rows) {
+        files.push(OutputFile {
+            name: "plan.geojson".into(),
+            contents: g,
+        });
+    }
+    if let Some(m) = fleet_map(inst, plan, &rows) {
+        files.push(OutputFile {
+            name: "plan.svg".into(),
+            contents: m,
+        });
+    }
+    Ok(files)
 }
 
 /// The attribution OpenStreetMap's licence asks of anything made from its data.

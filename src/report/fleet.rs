@@ -4,9 +4,10 @@
 
 use std::fmt::Write as _;
 
+use super::sheets::{Action, SheetRow};
 use super::{street_label, street_ref, CAUTIONS};
 use crate::check::fleet::FleetViolation;
-use crate::fleet::FleetPlan;
+use crate::fleet::{FleetPlan, FleetRoute, Tables};
 use crate::model::{Cost, Instance};
 
 /// An unload time in the scenario's time unit, shown in minutes when the
@@ -260,5 +261,125 @@ pub fn describe_fleet(inst: &Instance, plan: &FleetPlan, v: &FleetViolation) -> 
             u.cost_text(*stated),
             u.cost_text(*actual)
         ),
+    }
+}
+
+/// The explicit walk of every route of a fleet plan, street by street, as
+/// sheet rows: the shortest paths of each truck's type (around the streets
+/// it may not enter), legs to a dump site marked [`Action::ToDumpSite`] and
+/// legs leaving one [`Action::FromDumpSite`]. `cost` is the street's cost
+/// before the type's cost factor; `load` the load of the current trip (0
+/// after a tip); `time` includes waiting for a dump site to open and
+/// unloading. Routes whose legs cannot be driven (a plan that fails the
+/// checker) miss those legs.
+pub fn fleet_rows(inst: &Instance, tables: &Tables, plan: &FleetPlan) -> Vec<Vec<SheetRow>> {
+    plan.routes
+        .iter()
+        .map(|r| route_rows(inst, tables, r))
+        .collect()
+}
+
+/// Rows of one route (see [`fleet_rows`]).
+fn route_rows(inst: &Instance, tables: &Tables, r: &FleetRoute) -> Vec<SheetRow> {
+    let ops = inst.operations();
+    let Some(tt) = tables.types.get(r.truck_type) else {
+        return Vec::new();
+    };
+    let dist = tables.dist(r.truck_type);
+    let mut w = RowWalk {
+        inst,
+        rows: Vec::new(),
+        load: 0,
+        cost: 0,
+        time: 0,
+        length: Some(0),
+    };
+    let mut at = tt.yard;
+    let mut served = false;
+    let mut from_site = false;
+    let mut tips = r.tips.iter().peekable();
+    for pos in 0..=r.visits.len() {
+        while let Some(t) = tips.next_if(|t| t.after == pos) {
+            let Some(site) = ops.dump_sites.get(t.site) else {
+                continue;
+            };
+            w.leg(dist, at, site.junction, Action::ToDumpSite);
+            if let Some(h) = site.hours {
+                w.time = w.time.max(h.opens);
+            }
+            w.time += site.unload_time;
+            w.load = 0;
+            at = site.junction;
+            from_site = true;
+        }
+        let Some(v) = r.visits.get(pos) else { break };
+        let Some(task) = inst.tasks().get(v.task) else {
+            continue;
+        };
+        let (s, e) = task.ends(v.dir);
+        let action = match (from_site, served) {
+            (true, _) => Action::FromDumpSite,
+            (false, false) => Action::FromYard,
+            (false, true) => Action::Deadhead,
+        };
+        w.leg(dist, at, s, action);
+        w.load += task.demand;
+        w.push(task.link, (s, e), Action::Serve, task.cost, task.time);
+        at = e;
+        served = true;
+        from_site = false;
+    }
+    if !r.visits.is_empty() {
+        let action = if from_site {
+            Action::FromDumpSite
+        } else {
+            Action::ToYard
+        };
+        w.leg(dist, at, tt.yard, action);
+    }
+    w.rows
+}
+
+/// Rows of a route being built, with the running figures.
+struct RowWalk<'a> {
+    inst: &'a Instance,
+    rows: Vec<SheetRow>,
+    load: Cost,
+    cost: Cost,
+    time: Cost,
+    length: Option<Cost>,
+}
+
+impl RowWalk<'_> {
+    /// The deadhead path from `a` to `b` on the type's network.
+    fn leg(&mut self, dist: &crate::paths::Distances, a: usize, b: usize, action: Action) {
+        for h in dist.path(a, b).unwrap_or_default() {
+            let l = &self.inst.network().links[h.link];
+            self.push(h.link, (h.from, h.to), action, l.cost, l.drive_time());
+        }
+    }
+
+    fn push(&mut self, link: usize, ends: (usize, usize), action: Action, cost: Cost, dt: Cost) {
+        let net = self.inst.network();
+        let l = &net.links[link];
+        self.cost += cost;
+        self.time += dt;
+        self.length = self.length.zip(l.length).map(|(a, b)| a + b);
+        self.rows.push(SheetRow {
+            step: self.rows.len() + 1,
+            link,
+            street: street_label(self.inst, link),
+            from: net.junctions[ends.0].id,
+            to: net.junctions[ends.1].id,
+            ends,
+            action,
+            cost,
+            length: l.length,
+            step_time: dt,
+            load: self.load,
+            cost_so_far: self.cost,
+            length_so_far: self.length,
+            time: self.time,
+        });
     }
 }
