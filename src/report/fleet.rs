@@ -8,7 +8,7 @@ use super::sheets::{Action, SheetRow};
 use super::{street_label, street_ref, CAUTIONS};
 use crate::check::fleet::FleetViolation;
 use crate::fleet::{FleetPlan, FleetRoute, Tables};
-use crate::model::{Cost, Instance};
+use crate::model::{Cost, Instance, TruckType};
 
 /// An unload time in the scenario's time unit, shown in minutes when the
 /// unit is seconds and the time is whole minutes (`15 min`).
@@ -27,6 +27,31 @@ pub fn site_name(inst: &Instance, i: usize) -> String {
         Some(n) if !n.trim().is_empty() => n.clone(),
         _ => format!("dump site {}", i + 1),
     }
+}
+
+/// What trucks of type `t` may not do, in the sheets' words: "Trucks of type
+/// large may not enter living_street streets or Mill Lane (junctions 1–2);
+/// may not serve primary streets."
+pub fn restrictions_text(inst: &Instance, t: &TruckType) -> String {
+    let list = |streets: &[usize], classes: &[String]| {
+        let mut parts: Vec<String> = classes.iter().map(|c| format!("{c} streets")).collect();
+        parts.extend(streets.iter().map(|&l| street_ref(inst, l)));
+        parts.join(", ")
+    };
+    let mut clauses = Vec::new();
+    if !(t.no_entry.is_empty() && t.no_entry_classes.is_empty()) {
+        clauses.push(format!(
+            "may not enter {}",
+            list(&t.no_entry, &t.no_entry_classes)
+        ));
+    }
+    if !(t.no_service.is_empty() && t.no_service_classes.is_empty()) {
+        clauses.push(format!(
+            "may not serve {}",
+            list(&t.no_service, &t.no_service_classes)
+        ));
+    }
+    format!("Trucks of type {} {}.", t.name, clauses.join("; "))
 }
 
 /// Markdown route sheets of a fleet plan: the cautions, then per truck its
@@ -54,23 +79,34 @@ pub fn fleet_markdown(inst: &Instance, plan: &FleetPlan) -> String {
         u.time_text(short),
         u.time_text(long)
     );
+    for t in types.iter().filter(|t| t.is_restricted()) {
+        let _ = writeln!(s, "\n{}", restrictions_text(inst, t));
+    }
+    // "the yard" when the scenario names none, else "yard NAME".
+    let yard_name = |y: &crate::model::Yard| {
+        if ops.yards.is_empty() {
+            "the yard".to_string()
+        } else {
+            format!("yard {}", y.name)
+        }
+    };
     for (r, route) in plan.routes.iter().enumerate() {
         let yard = &yards[route.yard];
         let loads: Vec<String> = route.trip_loads.iter().map(|&l| u.load_text(l)).collect();
         let _ = writeln!(
             s,
-            "\n## Truck {}: {} from yard {}\n\nCost {}, shift time {}, trip loads {}.\n",
+            "\n## Truck {}: {} from {}\n\nCost {}, shift time {}, trip loads {}.\n",
             r + 1,
             types[route.truck_type].name,
-            yard.name,
+            yard_name(yard),
             u.cost_text(route.cost),
             u.time_text(route.time),
             loads.join(", ")
         );
         let _ = writeln!(
             s,
-            "1. leave yard {} (junction {})",
-            yard.name,
+            "1. leave {} (junction {})",
+            yard_name(yard),
             id(yard.junction)
         );
         let mut tips = route.tips.iter().peekable();
@@ -99,8 +135,8 @@ pub fn fleet_markdown(inst: &Instance, plan: &FleetPlan) -> String {
         }
         let _ = writeln!(
             s,
-            "1. back to yard {} (junction {})",
-            yard.name,
+            "1. back to {} (junction {})",
+            yard_name(yard),
             id(yard.junction)
         );
     }
@@ -123,7 +159,7 @@ pub fn fleet_markdown(inst: &Instance, plan: &FleetPlan) -> String {
 /// let inst = Instance::new("one", net, Fleet::with_capacity(9), 0).unwrap();
 /// let v = FleetViolation::ServedTimes { street: 0, times: 0 };
 /// let text = arcwright::report::fleet::describe_fleet(&inst, &FleetPlan::new(vec![]), &v);
-/// assert_eq!(text, "the street between junctions 0 and 1 (#0) is not served");
+/// assert_eq!(text, "the street between junctions 1 and 2 (#0) is not served");
 /// ```
 pub fn describe_fleet(inst: &Instance, plan: &FleetPlan, v: &FleetViolation) -> String {
     use FleetViolation as V;
