@@ -885,6 +885,78 @@ fn check_reads_fleet_plans_and_names_their_faults_in_the_sheets_words() {
     );
 }
 
+/// The planner refuses fleet scenarios that cannot be planned with a typed
+/// error in the file's words (its JSON path, the element named as the file
+/// names it), exit 2, and nothing written: a dump site no street to serve can
+/// reach, a truck type no street admits (by road class), a yard with no
+/// trucks, a misspelt road class.
+#[test]
+fn bad_fleet_scenarios_are_named_and_nothing_is_written() {
+    let dir = out_dir("planner-fleet-bad");
+    std::fs::create_dir_all(&dir).unwrap();
+    let base: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(Path::new(ROOT).join("tests/fixtures/fleet/two_yards.json"))
+            .unwrap(),
+    )
+    .unwrap();
+    type Edit = fn(&mut serde_json::Value);
+    let cases: [(&str, Edit, &str); 4] = [
+        (
+            "unreachable-dump",
+            |v| {
+                v["junctions"].as_array_mut().unwrap().push(serde_json::json!({ "id": 7 }));
+                v["streets"].as_array_mut().unwrap().push(
+                    serde_json::json!({ "from": 7, "to": 1, "one_way": true, "cost": 1 }),
+                );
+                v["dump_sites"][0]["junction"] = serde_json::json!(7);
+            },
+            "at `dump_sites[0]`: dump site 0: cannot be reached from street 0",
+        ),
+        (
+            "type-no-street-admits",
+            |v| {
+                for s in v["streets"].as_array_mut().unwrap() {
+                    s["class"] = serde_json::json!("residential");
+                }
+                v["truck_types"][0]["no_service"] = serde_json::json!(["residential"]);
+            },
+            "at `truck_types[0]`: truck type `small` may serve none of the streets to serve",
+        ),
+        (
+            "yard-without-trucks",
+            |v| v["truck_types"][1]["yard"] = serde_json::json!("north"),
+            "at `yards[1]`: yard `south` has no trucks",
+        ),
+        (
+            "misspelt-class",
+            |v| v["truck_types"][1]["no_entry"] = serde_json::json!(["residental"]),
+            "at `truck_types[1].no_entry`: truck type `large`: no_entry names road class `residental`",
+        ),
+    ];
+    for (name, edit, want) in cases {
+        let mut v = base.clone();
+        edit(&mut v);
+        let file = dir.join(format!("{name}.json"));
+        std::fs::write(&file, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+        let out = dir.join(format!("{name}-out"));
+        let o = planner([
+            file.as_os_str(),
+            "--iterations".as_ref(),
+            "5".as_ref(),
+            "--out".as_ref(),
+            out.as_os_str(),
+        ]);
+        let (_, stderr) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{name}: {stderr}");
+        assert!(stderr.contains(&format!("{name}.json")), "{name}: {stderr}");
+        assert!(stderr.contains(want), "{name}: want `{want}` in {stderr}");
+        assert!(
+            !out.join("plan.json").exists(),
+            "{name}: a plan was written"
+        );
+    }
+}
+
 /// A scenario with turn rules is refused with a clear message before
 /// anything is searched or written: the library plans with turns, but the
 /// planner's plan files and sheets cannot carry them yet, and a plan that
