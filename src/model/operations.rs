@@ -113,8 +113,10 @@ pub struct TruckType {
     pub no_service: Vec<usize>,
     /// Road classes the type must not drive on (nor serve): every link whose
     /// [`crate::model::Link::class`] is one of them.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub no_entry_classes: Vec<String>,
     /// Road classes the type must not serve (it may drive along them).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub no_service_classes: Vec<String>,
 }
 
