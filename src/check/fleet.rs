@@ -292,14 +292,22 @@ const INF: Cost = Cost::MAX / 4;
 /// classes, read here from the street list itself.
 fn barred(inst: &Instance, ty: &TruckType) -> (Vec<bool>, Vec<bool>) {
     let links = &inst.network().links;
-    let of_class =
-        |i: usize, classes: &[String]| links[i].class.as_ref().is_some_and(|c| classes.contains(c));
-    let entry: Vec<bool> = (0..links.len())
-        .map(|i| ty.no_entry.contains(&i) || of_class(i, &ty.no_entry_classes))
-        .collect();
-    let service = (0..links.len())
-        .map(|i| entry[i] || ty.no_service.contains(&i) || of_class(i, &ty.no_service_classes))
-        .collect();
+    let mark = |streets: &[usize], classes: &[String], v: &mut Vec<bool>| {
+        for &i in streets {
+            if let Some(x) = v.get_mut(i) {
+                *x = true;
+            }
+        }
+        for (i, l) in links.iter().enumerate() {
+            if l.class.as_ref().is_some_and(|c| classes.contains(c)) {
+                v[i] = true;
+            }
+        }
+    };
+    let mut entry = vec![false; links.len()];
+    mark(&ty.no_entry, &ty.no_entry_classes, &mut entry);
+    let mut service = entry.clone();
+    mark(&ty.no_service, &ty.no_service_classes, &mut service);
     (entry, service)
 }
 
