@@ -53,8 +53,8 @@ fn main() {
     } else {
         eprintln!("SKIPPED egl: ../shared/instances not found");
     }
-    println!("| instance | balance | cost | routes | trips | tips | longest shift | shortest shift | seconds |");
-    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|");
+    println!("| instance | balance | cost | objective | routes | trips | tips | longest shift | shortest shift | spread | seconds |");
+    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
     for inst in cases {
         let file = out.join(format!("{}.json", inst.name.replace(' ', "-")));
         std::fs::write(&file, write_scenario(&inst)).expect("write scenario");
@@ -76,7 +76,7 @@ fn main() {
             assert!(check_fleet_plan(&inst, &sol.plan).is_ok());
             let (long, short) = sol.shift_spread;
             println!(
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
                 inst.name,
                 if weight == 0 {
                     "least cost".to_string()
@@ -84,11 +84,13 @@ fn main() {
                     format!("cost + {weight} × longest")
                 },
                 sol.cost,
+                sol.objective,
                 sol.plan.routes.len(),
                 sol.plan.trips(),
                 sol.plan.tips(),
                 long,
                 short,
+                long - short,
                 secs
             );
         }
