@@ -64,7 +64,7 @@ pub struct CheckArgs {
 /// How a map file (`.osm.pbf`, `.osm`, `.geojson`) becomes a scenario.
 #[derive(Clone, Debug, Default, PartialEq, Eq, Args)]
 pub struct MapArgs {
-    /// Service profile for a map: `refuse` (default), `gritting` or a TOML file.
+    /// Service profile for a map: `refuse` (default), `gritting` or a TOML file (its `[turn_rules]` table, if any, applies turn rules with the map's restrictions).
     #[arg(long, value_name = "NAME|FILE")]
     pub profile: Option<String>,
     /// Yard of a map scenario: `LON,LAT` (snapped to the nearest drivable

@@ -7,14 +7,14 @@ use std::sync::Arc;
 
 use arcwright::bounds::lp::LP_CUTS;
 use arcwright::check::fleet::check_fleet_plan;
-use arcwright::check::{check_plan, check_walks, Violation};
+use arcwright::check::{check_plan, check_turn_walks, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
 use arcwright::fleet::FleetSolver;
 use arcwright::fleet::{FleetPlan, Tables};
 use arcwright::io::fleet_plan::FLEET_PLAN_FORMAT;
 use arcwright::io::plan_json::{
-    read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
-    RunSettings,
+    read_plan_as_written, read_plan_claims, read_plan_with, read_walks, write_plan_record,
+    PlanRecord, RunSettings,
 };
 use arcwright::io::{detect_format, read_dat, read_scenario, read_text, write_scenario, Format};
 use arcwright::io::{read_fleet_plan, read_fleet_plan_as_written, write_fleet_plan};
@@ -24,7 +24,7 @@ use arcwright::plan::{walk, Plan};
 use arcwright::report::fleet::{describe_fleet, fleet_markdown, fleet_rows};
 use arcwright::report::geo::fleet_feature_collection;
 use arcwright::report::svg::fleet_map;
-use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
+use arcwright::report::{bundle_walks, route_walks, summary_table, OutputFile, SummaryExtras};
 use arcwright::{LpOutcome, Progress, Solver};
 
 use arcwright::map::{load_map, MapFormat, MapOptions};
@@ -151,9 +151,14 @@ pub struct PlanRun {
     pub files: Vec<PathBuf>,
 }
 
-/// Checks a plan and its explicit walks with the independent checker.
+/// Checks a plan and its explicit walks with the independent checker. With
+/// turn rules the walks are those of [`route_walks`] (turns included) and
+/// their turns and costs are checked too ([`check_turn_walks`]).
 pub fn verify(inst: &Instance, dist: &Distances, plan: &Plan) -> Result<(), Vec<Violation>> {
     check_plan(inst, plan)?;
+    if inst.turn_rules().is_some() {
+        return check_turn_walks(inst, plan, &route_walks(inst, dist, plan));
+    }
     let walks: Vec<_> = plan
         .routes
         .iter()
@@ -176,6 +181,8 @@ pub fn render(
 ) -> Result<Vec<OutputFile>, AppError> {
     let plan = &plan.clone().self_loops_forward(inst);
     verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
+    let walks = route_walks(inst, dist, plan);
+    let turns = inst.turn_rules().is_some();
     let record = PlanRecord {
         lower_bound: extras.lower_bound.as_ref().map(|b| b.0),
         lower_bound_method: extras.lower_bound.as_ref().map(|b| b.1.clone()),
@@ -185,6 +192,7 @@ pub fn render(
             .clone()
             .or_else(|| arcwright::report::route_lengths(inst, dist, plan)),
         run,
+        walks: turns.then(|| walks.clone()),
     };
     let json = write_plan_record(inst, plan, &record);
     match read_plan_with(&json, "plan.json", inst, dist) {
@@ -200,11 +208,16 @@ pub fn render(
             )))
         }
     }
+    if turns && read_walks(&json, "plan.json", inst).ok().flatten().as_ref() != Some(&walks) {
+        return Err(AppError::Internal(
+            "the walks of the plan file do not read back".into(),
+        ));
+    }
     let mut files = vec![OutputFile {
         name: "plan.json".into(),
         contents: json,
     }];
-    files.extend(bundle(inst, dist, plan, extras));
+    files.extend(bundle_walks(inst, plan, &walks, extras));
     Ok(files)
 }
 
@@ -213,14 +226,13 @@ pub fn render(
 pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
     let (loaded, source) = resolve_scenario(opts)?;
     let inst = loaded.instance;
-    if inst.turn_rules().is_some() {
-        // The library plans with turn rules, but plan files, sheets and the
-        // re-check of the written plan do not carry turns yet: refuse before
-        // anything is searched or written rather than write a plan that
-        // cannot be verified from its file.
+    if inst.turn_rules().is_some() && !inst.operations().is_plain(&inst) {
+        // The fleet solver (tips, yards, truck types, balance) prices
+        // routes without turns: refuse before anything is searched or written.
         return Err(AppError::Unsupported(format!(
-            "{source}: the scenario sets turn_rules; the planner cannot yet write plans with \
-             turns (the library's Solver plans them); remove turn_rules to plan without them"
+            "{source}: the scenario sets turn_rules together with dump sites, several yards, \
+             truck types or balance; turn rules do not combine with those yet: remove \
+             turn_rules, or plan without the fleet features"
         )));
     }
     prepare_folder(&opts.out)?;
@@ -264,6 +276,7 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         iterations: Some(solution.stats.iterations),
         stopped_early,
         route_lengths: arcwright::report::route_lengths(&inst, &dist, &solution.plan),
+        turn_counts: arcwright::report::turn_counts(&inst, &dist, &solution.plan),
     };
     let run = RunSettings {
         seed: opts.seed,
@@ -514,11 +527,24 @@ pub fn run_check(
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let claims = read_plan_claims(&text, &name).map_err(AppError::Input)?;
-    let violations = match check_plan(&inst, &plan) {
-        Err(v) => v,
-        Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),
-    };
+    let walks = read_walks(&text, &name, &inst).map_err(AppError::Input)?;
+    let mut violations = check_plan(&inst, &plan).err().unwrap_or_default();
+    match &walks {
+        // The walks the file states, checked street by street and turn by turn.
+        Some(w) => violations.extend(check_turn_walks(&inst, &plan, w).err().unwrap_or_default()),
+        None if violations.is_empty() => {
+            violations = verify(&inst, &dist, &plan).err().unwrap_or_default()
+        }
+        None => {}
+    }
     let mut problems = describe_all(&inst, &violations);
+    if walks.is_none() && inst.turn_rules().is_some() {
+        problems.push(
+            "the scenario has turn rules, but the plan file gives no walk (`routes[].walk`): \
+             the streets driven and the turns made cannot be checked"
+                .to_string(),
+        );
+    }
     if let Some(b) = claims.lower_bound {
         let units = inst.units();
         if b > plan.cost {

@@ -416,6 +416,8 @@ impl RowWalk<'_> {
             cost_so_far: self.cost,
             length_so_far: self.length,
             time: self.time,
+            turn: None,
+            manoeuvre: None,
         });
     }
 }

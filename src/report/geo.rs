@@ -26,7 +26,8 @@ pub(crate) fn points(inst: &Instance) -> Option<Vec<(f64, f64)>> {
 /// junction, along the street's shape when the scenario has one) with properties `route` (1-based truck number), `step`,
 /// `action` (`serve` or `deadhead`), `street`, `link` (0-based index in the
 /// scenario's street list, as in plan files), `from`/`to` (junction ids),
-/// `cost`, and `length` and `time` where the sheets show them; the yard is a
+/// `cost`, and `length` and `time` where the sheets show them (with turn
+/// rules also `turn`, `turn_cost` and `manoeuvre`, as in the CSV sheets); the yard is a
 /// Point with `yard: true`. The collection carries a foreign member `units`
 /// with the scenario's units (`null` where undeclared).
 pub fn feature_collection(inst: &Instance, dist: &Distances, plan: &Plan) -> Option<String> {
@@ -94,6 +95,14 @@ fn collection(inst: &Instance, all: &[Vec<SheetRow>], fleet: Option<&FleetPlan>)
             if let Some(route) = fleet.and_then(|p| p.routes.get(r)) {
                 props["truck_type"] = json!(types.get(route.truck_type).map(|t| &t.name));
                 props["yard"] = json!(yards.get(route.yard).map(|y| &y.name));
+            }
+            if let Some(m) = &row.manoeuvre {
+                // With turn rules: the turn into this street and the instruction.
+                if let Some(t) = row.turn {
+                    props["turn"] = json!(t.kind.to_string());
+                    props["turn_cost"] = json!(t.cost);
+                }
+                props["manoeuvre"] = json!(m);
             }
             let l = &net.links[row.link];
             let line = if l.geometry.len() >= 2 {

@@ -6,7 +6,8 @@
 //!   with its name and junction numbers.
 //! - Each truck in its own colour ([`PALETTE`], 30 colours that stay apart):
 //!   served streets solid with an arrow in the direction of service;
-//!   deadhead legs dashed. Trucks that drive the same street empty in the
+//!   deadhead legs dashed (with turn rules, with a small arrow in the
+//!   direction of travel too, and a ring where a truck makes a U-turn). Trucks that drive the same street empty in the
 //!   same direction are drawn side by side in lanes, so none hides another.
 //! - Junction numbers (as in the sheets' `from → to`) at every turning point
 //!   of a route: where a truck starts or stops serving.
@@ -228,6 +229,9 @@ fn draw(
     defs(&mut s, trucks.len());
     network(&mut s, inst, &f);
     routes(&mut s, inst, &f, all);
+    if inst.turn_rules().is_some() {
+        u_turns(&mut s, &f, all);
+    }
     junction_labels(&mut s, inst, &f, all);
     yard(&mut s, inst, &f);
     sites(&mut s, inst, &f);
@@ -253,6 +257,7 @@ fn defs(s: &mut String, routes: usize) {
     marker(s, "one-way", ONE_WAY_GREY, 7.0);
     for r in 0..routes {
         marker(s, &format!("arrow-{}", r + 1), colour(r), 9.0);
+        marker(s, &format!("travel-{}", r + 1), colour(r), 6.0);
     }
     s.push_str("</defs>\n");
 }
@@ -470,6 +475,20 @@ fn routes(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetRow>]) {
                 } else {
                     let lane = lanes[&(r, row.link, row.ends)];
                     let pts = shifted_poly(&pts, 2.0 + 2.2 * lane as f64);
+                    if row.manoeuvre.is_some() {
+                        // With turn rules the deadhead legs show the direction of travel too.
+                        let m = if pts.len() == 2 {
+                            [pts[0], mid(pts[0], pts[1]), pts[1]]
+                        } else {
+                            middle(&pts)
+                        };
+                        let _ = writeln!(
+                            s,
+                            r#"<polyline class="travel" points="{}" stroke="none" marker-mid="url(#travel-{})"/>"#,
+                            points_attr(&m),
+                            r + 1
+                        );
+                    }
                     if pts.len() == 2 {
                         let (a, b) = (pts[0], pts[1]);
                         let _ = writeln!(
@@ -489,6 +508,29 @@ fn routes(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetRow>]) {
             s.push_str("</g>\n");
         }
     }
+}
+
+/// With turn rules: a ring in the truck's colour where it makes a U-turn
+/// (at a dead end, or anywhere U-turns are allowed), with a tooltip.
+fn u_turns(s: &mut String, f: &Frame, all: &[Vec<SheetRow>]) {
+    use crate::turns::TurnKind;
+    s.push_str("<g id=\"u-turns\" fill=\"#ffffff\" stroke-width=\"1.5\">\n");
+    for (r, rows) in all.iter().enumerate() {
+        for row in rows {
+            if row.turn.is_some_and(|t| t.kind == TurnKind::UTurn) {
+                let (x, y) = f.px[row.ends.0];
+                let _ = writeln!(
+                    s,
+                    r#"<circle cx="{x:.1}" cy="{y:.1}" r="4" stroke="{}"><title>Truck {} step {}: U-turn at junction {}</title></circle>"#,
+                    colour(r),
+                    r + 1,
+                    row.step,
+                    row.from
+                );
+            }
+        }
+    }
+    s.push_str("</g>\n");
 }
 
 /// Junction numbers where a truck starts or stops serving (its turning
@@ -679,7 +721,17 @@ fn legend(
     legend_entry(s, lx, y, served, "served, arrow: direction");
     y += 18.0;
     let dashed = r##"stroke="#333333" stroke-width="1.6" stroke-dasharray="5 4""##;
-    legend_entry(s, lx, y, dashed, "deadhead (not served)");
+    legend_entry(
+        s,
+        lx,
+        y,
+        dashed,
+        if inst.turn_rules().is_some() {
+            "deadhead, arrow: direction"
+        } else {
+            "deadhead (not served)"
+        },
+    );
     if tips {
         y += 18.0;
         let dotted =
