@@ -86,6 +86,8 @@ fn capacity_bounds_are_dropped_when_a_type_may_drive_longer() {
         cost_per_mille: 1000,
         no_entry: vec![],
         no_service: vec![],
+        no_entry_classes: vec![],
+        no_service_classes: vec![],
     };
     let inst = plain
         .clone()

@@ -336,6 +336,8 @@ fn world(seed: u64, tasks: usize, variant: u64) -> World {
             cost_per_mille: 800,
             no_entry: vec![],
             no_service: vec![],
+            no_entry_classes: vec![],
+            no_service_classes: vec![],
         },
         TruckType {
             name: "large".into(),
@@ -347,6 +349,8 @@ fn world(seed: u64, tasks: usize, variant: u64) -> World {
             cost_per_mille: 1250,
             no_entry: vec![links.len() - 1],
             no_service: vec![0],
+            no_entry_classes: vec![],
+            no_service_classes: vec![],
         },
     ];
     let return_empty = variant & 4 == 0;

@@ -26,7 +26,7 @@ pub const DEFAULT_TIME_LIMIT: Duration = Duration::from_secs(10);
                   or a street map: an OpenStreetMap extract (.osm.pbf, .osm) or GeoJSON \
                   street lines (.geojson), built with --profile and --yard \
                   (default: instances/demo-town.json).\n\
-                  `planner check SCENARIO PLAN` re-verifies a plan file: it lists every \
+                  `planner check SCENARIO PLAN` re-verifies a plan file (plain or fleet, with tips): it lists every \
                   problem found; exit code 0 when valid, 1 on problems, 2 when a file \
                   cannot be read as a plan of the scenario."
 )]

@@ -10,16 +10,20 @@ use arcwright::check::fleet::check_fleet_plan;
 use arcwright::check::{check_plan, check_turn_walks, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
 use arcwright::fleet::FleetSolver;
+use arcwright::fleet::{FleetPlan, Tables};
+use arcwright::io::fleet_plan::FLEET_PLAN_FORMAT;
 use arcwright::io::plan_json::{
     read_plan_as_written, read_plan_claims, read_plan_with, read_walks, write_plan_record,
     PlanRecord, RunSettings,
 };
 use arcwright::io::{detect_format, read_dat, read_scenario, read_text, write_scenario, Format};
-use arcwright::io::{read_fleet_plan, write_fleet_plan};
+use arcwright::io::{read_fleet_plan, read_fleet_plan_as_written, write_fleet_plan};
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
-use arcwright::report::fleet::fleet_markdown;
+use arcwright::report::fleet::{describe_fleet, fleet_markdown, fleet_rows};
+use arcwright::report::geo::fleet_feature_collection;
+use arcwright::report::svg::fleet_map;
 use arcwright::report::{bundle_walks, route_walks, summary_table, OutputFile, SummaryExtras};
 use arcwright::{LpOutcome, Progress, Solver};
 
@@ -406,6 +410,7 @@ fn run_fleet_plan(
             contents: summary.clone(),
         },
     ];
+    files.extend(fleet_maps(inst, &sol.plan)?);
     let mut summary = summary;
     if osm {
         attribute_osm(&mut files);
@@ -421,6 +426,28 @@ fn run_fleet_plan(
         summary,
         files,
     })
+}
+
+/// `plan.svg` and `plan.geojson` of a fleet plan (when the scenario has
+/// coordinates): the walks on each truck type's own streets, the way to a
+/// dump site and back marked, yards and dump sites labelled.
+fn fleet_maps(inst: &Instance, plan: &FleetPlan) -> Result<Vec<OutputFile>, AppError> {
+    let tables = Tables::new(inst).map_err(AppError::Distances)?;
+    let rows = fleet_rows(inst, &tables, plan);
+    let mut files = Vec::new();
+    if let Some(g) = fleet_feature_collection(inst, plan, &rows) {
+        files.push(OutputFile {
+            name: "plan.geojson".into(),
+            contents: g,
+        });
+    }
+    if let Some(m) = fleet_map(inst, plan, &rows) {
+        files.push(OutputFile {
+            name: "plan.svg".into(),
+            contents: m,
+        });
+    }
+    Ok(files)
 }
 
 /// The attribution OpenStreetMap's licence asks of anything made from its data.
@@ -485,9 +512,8 @@ fn save_scenario(path: &Path, inst: &Instance) -> Result<(), AppError> {
 
 /// What re-verifying a plan file found.
 pub struct CheckRun {
-    /// The plan as the file states it: stated loads and costs, recomputed
-    /// route times.
-    pub plan: Plan,
+    /// How many trucks the plan uses.
+    pub trucks: usize,
     /// Every problem found, in the words of the sheets (empty when valid).
     pub problems: Vec<String>,
     /// The plan's stated cost with its unit.
@@ -517,6 +543,9 @@ pub fn run_check(
     refuse_swapped(scenario, plan_file)?;
     let inst = load_scenario(scenario, fleet, map)?.instance;
     let (name, text) = arcwright::io::read_text(plan_file).map_err(AppError::Input)?;
+    if json_format(plan_file).as_deref() == Some(FLEET_PLAN_FORMAT) {
+        return check_fleet_file(&inst, &text, &name);
+    }
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let claims = read_plan_claims(&text, &name).map_err(AppError::Input)?;
@@ -552,9 +581,54 @@ pub fn run_check(
     }
     let cost_text = inst.units().cost_text(plan.cost);
     Ok(CheckRun {
-        plan,
+        trucks: plan.routes.len(),
         problems,
         cost_text,
+    })
+}
+
+/// `planner check` of a fleet plan file (routes with tips, truck types,
+/// yards): read as written, checked by the independent fleet checker, the
+/// plan-wide figures it states compared with the routes it lists; every
+/// finding in the words of the fleet sheets.
+fn check_fleet_file(inst: &Instance, text: &str, name: &str) -> Result<CheckRun, AppError> {
+    let written = read_fleet_plan_as_written(text, name, inst).map_err(AppError::Input)?;
+    let plan = &written.plan;
+    let mut problems: Vec<String> = match check_fleet_plan(inst, plan) {
+        Err(v) => v.iter().map(|x| describe_fleet(inst, plan, x)).collect(),
+        Ok(()) => Vec::new(),
+    };
+    let u = inst.units();
+    let (longest, shortest) = plan.shift_spread();
+    let stated = [
+        ("objective", written.objective, plan.objective(inst), true),
+        ("longest shift", written.longest_shift, longest, false),
+        ("shortest shift", written.shortest_shift, shortest, false),
+    ];
+    for (what, s, actual, cost) in stated {
+        if s != actual {
+            let text = |x| if cost { u.cost_text(x) } else { u.time_text(x) };
+            problems.push(format!(
+                "the plan states its {what} as {}, its trucks give {}",
+                text(s),
+                text(actual)
+            ));
+        }
+    }
+    for (what, s, actual) in [
+        ("trips", written.trips, plan.trips()),
+        ("tips", written.tips, plan.tips()),
+    ] {
+        if s != actual {
+            problems.push(format!(
+                "the plan states {s} {what}, its trucks make {actual}"
+            ));
+        }
+    }
+    Ok(CheckRun {
+        trucks: plan.routes.len(),
+        problems,
+        cost_text: u.cost_text(plan.cost),
     })
 }
 
@@ -569,7 +643,10 @@ fn json_format(path: &Path) -> Option<String> {
 /// `planner check PLAN SCENARIO` (the files swapped) is named as such.
 fn refuse_swapped(scenario: &Path, plan_file: &Path) -> Result<(), AppError> {
     let order = "the order is `planner check SCENARIO PLAN`";
-    if json_format(scenario).as_deref() == Some("arcwright-plan") {
+    if matches!(
+        json_format(scenario).as_deref(),
+        Some("arcwright-plan" | FLEET_PLAN_FORMAT)
+    ) {
         return Err(AppError::Usage(format!(
             "{} is a plan file, not a scenario: {order}",
             scenario.display()

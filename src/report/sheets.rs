@@ -28,6 +28,10 @@ pub enum Action {
     Deadhead,
     /// Drive without serving, back to the yard after the last service.
     ToYard,
+    /// Drive loaded to a dump site to tip (fleet plans).
+    ToDumpSite,
+    /// Drive empty from a dump site to the next street or the yard (fleet plans).
+    FromDumpSite,
 }
 
 impl Action {
@@ -38,10 +42,12 @@ impl Action {
             Action::Serve => "serve",
             Action::Deadhead => "deadhead",
             Action::ToYard => "deadhead (return to yard)",
+            Action::ToDumpSite => "deadhead (to dump site)",
+            Action::FromDumpSite => "deadhead (from dump site)",
         }
     }
 
-    /// True for the three deadhead kinds.
+    /// True for every kind but [`Action::Serve`].
     pub fn is_deadhead(self) -> bool {
         self != Action::Serve
     }
