@@ -3,7 +3,7 @@
 //! balancing.
 //!
 //! ```text
-//! cargo run --release --example fleet_bench [-- OUT_DIR]
+//! cargo run --release --example fleet_bench [-- [OUT_DIR] [--demo-only]]
 //! ```
 //!
 //! 1. *Demo town with a landfill*: `instances/demo-town.json` plus a
@@ -39,22 +39,42 @@ use arcwright::paths::Distances;
 
 fn main() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
-    let out = std::env::args()
-        .nth(1)
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    let demo_only = args.iter().any(|a| a == "--demo-only");
+    let out = args
+        .iter()
+        .find(|a| !a.starts_with("--"))
         .map(PathBuf::from)
         .unwrap_or_else(|| root.join("target/fleet-bench"));
     std::fs::create_dir_all(&out).expect("output folder");
     let mut cases = vec![demo_with_landfill(&root)];
     let egl = root.join("../shared/instances/egl");
-    if egl.exists() {
+    if demo_only {
+        // only the demo town
+    } else if egl.exists() {
         for name in ["egl-e1-A", "egl-s1-A"] {
             cases.push(egl_with_dump(&egl.join(format!("{name}.dat"))));
         }
     } else {
         eprintln!("SKIPPED egl: ../shared/instances not found");
     }
-    println!("| instance | balance | cost | objective | routes | trips | tips | longest shift | shortest shift | spread | seconds |");
-    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
+    if let Some(inst) = cases.first() {
+        // One exact split of a whole order (the streets in file order),
+        // which is what pricing a move cost before the route search.
+        let tables = arcwright::fleet::Tables::new(inst).expect("tables");
+        let order: Vec<usize> = (0..inst.tasks().len()).collect();
+        let t = Instant::now();
+        let s = arcwright::fleet::split::split(inst, &tables, &order).expect("a split");
+        println!(
+            "{}: one exact split of the whole order ({} streets, cost {}): {:.1} ms\n",
+            inst.name,
+            order.len(),
+            s.cost,
+            t.elapsed().as_secs_f64() * 1000.0
+        );
+    }
+    println!("| instance | balance | cost | objective | routes | trips | tips | longest shift | shortest shift | spread | moves priced | seconds |");
+    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
     for inst in cases {
         let file = out.join(format!("{}.json", inst.name.replace(' ', "-")));
         std::fs::write(&file, write_scenario(&inst)).expect("write scenario");
@@ -76,7 +96,7 @@ fn main() {
             assert!(check_fleet_plan(&inst, &sol.plan).is_ok());
             let (long, short) = sol.shift_spread;
             println!(
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
                 inst.name,
                 if weight == 0 {
                     "least cost".to_string()
@@ -91,6 +111,7 @@ fn main() {
                 long,
                 short,
                 long - short,
+                sol.moves_priced,
                 secs
             );
         }

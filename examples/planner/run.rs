@@ -245,7 +245,11 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
     if !inst.operations().is_plain(&inst) {
         let (map_report, osm) = (loaded.map_report, loaded.osm);
-        let mut run = run_fleet_plan(opts, &inst, source, osm)?;
+        let hooks = Hooks {
+            on_progress: hooks.on_progress,
+            stop: Some(stop),
+        };
+        let mut run = run_fleet_plan(opts, &inst, source, osm, hooks)?;
         run.map_report = map_report;
         return Ok(run);
     }
@@ -322,15 +326,18 @@ pub fn bound_method(solution: &arcwright::Solution) -> String {
 }
 
 /// Plans a scenario with dump sites, several yards, truck types or
-/// balancing with the fleet solver (iteration limit and seed as given; no
-/// time limit or stop flag: it runs to its limits), checks the plan
-/// independently and writes `plan.json` (every tip recorded) and
-/// `sheets.md` (with "tip at ..., unload ...").
+/// balancing with the fleet solver, checks the plan independently and
+/// writes `plan.json` (every tip recorded) and `sheets.md` (with "tip at
+/// ..., unload ..."). Seed, workers and iteration limit as given; with a
+/// time limit (the default without `--iterations`) the local search runs
+/// until it ends, and Ctrl-C (the stop flag) ends it early: either way the
+/// best plan so far is checked and written.
 fn run_fleet_plan(
     opts: &PlanArgs,
     inst: &Instance,
     source: String,
     osm: bool,
+    hooks: Hooks<'_>,
 ) -> Result<PlanRun, AppError> {
     let f = &opts.fleet;
     let overrides = f.capacity.is_some() || f.shift_limit.is_some() || f.max_trucks.is_some();
@@ -344,6 +351,20 @@ fn run_fleet_plan(
         .workers(opts.effective_workers());
     if let Some(n) = opts.iterations {
         solver = solver.max_iterations(n);
+    }
+    if let Some(t) = opts.effective_time_limit() {
+        solver = solver.time_limit(t);
+        if opts.iterations.is_none() {
+            // Search until the time limit, as the plain planner does.
+            solver = solver.moves(u64::MAX);
+        }
+    }
+    let stop = hooks.stop.clone();
+    if let Some(stop) = hooks.stop {
+        solver = solver.stop_flag(stop);
+    }
+    if let Some(f) = hooks.on_progress {
+        solver = solver.on_progress(f);
     }
     let sol = solver.solve().map_err(AppError::FleetSolve)?;
     if let Err(v) = check_fleet_plan(inst, &sol.plan) {
@@ -400,7 +421,8 @@ fn run_fleet_plan(
         source,
         map_report: None,
         saved_scenario: opts.save_scenario.clone(),
-        stopped_early: false,
+        // Ctrl-C, not the time limit (which ends every timed fleet run).
+        stopped_early: stop.is_some_and(|s| s.load(Ordering::SeqCst)),
         summary,
         files,
     })
