@@ -478,17 +478,30 @@ impl RowWalk<'_> {
     /// Records a tip at dump site `site` (junction `j`), its gate fee `fee`
     /// and the time `dt` spent waiting and unloading (already counted).
     fn tip(&mut self, site: usize, j: usize, fee: Cost, dt: Cost) {
-        let id = self.inst.network().junctions[j].id;
-        let row = SheetRow {
-            step: 0,
+        let place = Place {
             link: 0,
             street: String::new(),
-            from: id,
-            to: id,
             ends: (j, j),
-            action: Action::ToDumpSite,
-            cost: fee,
             length: None,
+        };
+        let row = self.row(place, Action::ToDumpSite, fee, dt);
+        let before = self.rows.len();
+        self.tips.push(TipLine { before, site, row });
+    }
+
+    /// A row at `place` with the running figures (already updated).
+    fn row(&self, place: Place, action: Action, cost: Cost, dt: Cost) -> SheetRow {
+        let junctions = &self.inst.network().junctions;
+        SheetRow {
+            step: self.rows.len() + 1,
+            link: place.link,
+            street: place.street,
+            from: junctions[place.ends.0].id,
+            to: junctions[place.ends.1].id,
+            ends: place.ends,
+            action,
+            cost,
+            length: place.length,
             step_time: dt,
             load: self.load,
             cost_so_far: self.cost,
@@ -496,9 +509,7 @@ impl RowWalk<'_> {
             time: self.time,
             turn: None,
             manoeuvre: None,
-        };
-        let before = self.rows.len();
-        self.tips.push(TipLine { before, site, row });
+        }
     }
 
     /// The deadhead path from `a` to `b` on the type's network.
@@ -510,28 +521,26 @@ impl RowWalk<'_> {
     }
 
     fn push(&mut self, link: usize, ends: (usize, usize), action: Action, cost: Cost, dt: Cost) {
-        let net = self.inst.network();
-        let l = &net.links[link];
+        let l = &self.inst.network().links[link];
         self.cost += cost;
         self.time += dt;
         self.length = self.length.zip(l.length).map(|(a, b)| a + b);
-        self.rows.push(SheetRow {
-            step: self.rows.len() + 1,
+        let place = Place {
             link,
             street: street_label(self.inst, link),
-            from: net.junctions[ends.0].id,
-            to: net.junctions[ends.1].id,
             ends,
-            action,
-            cost,
             length: l.length,
-            step_time: dt,
-            load: self.load,
-            cost_so_far: self.cost,
-            length_so_far: self.length,
-            time: self.time,
-            turn: None,
-            manoeuvre: None,
-        });
+        };
+        let row = self.row(place, action, cost, dt);
+        self.rows.push(row);
     }
+}
+
+/// Where a row is: a street (its link, label, ends and length), or a
+/// junction (a tip: no street, both ends the junction).
+struct Place {
+    link: usize,
+    street: String,
+    ends: (usize, usize),
+    length: Option<Cost>,
 }
