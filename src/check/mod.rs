@@ -56,6 +56,8 @@ use std::cmp::Reverse;
 use std::collections::{BTreeMap, BinaryHeap};
 use std::fmt;
 
+use rayon::prelude::*;
+
 use crate::model::{Cost, Dir, Instance};
 use crate::plan::{Plan, Step};
 
@@ -330,9 +332,24 @@ fn adjacency(inst: &Instance) -> Vec<Vec<(usize, Cost, Cost)>> {
 }
 
 /// Lexicographic (cost, time) Dijkstra from `s`; `None` for unreachable.
-fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost, Cost)>> {
+/// Least (cost, time) from `s` to every junction, found in order; the search
+/// stops once every junction of `targets` is settled (values of junctions
+/// not settled by then may be missing or too high: read only the targets).
+fn shortest_from(
+    adj: &[Vec<(usize, Cost, Cost)>],
+    s: usize,
+    targets: &[usize],
+) -> Vec<Option<(Cost, Cost)>> {
     let mut best: Vec<Option<(Cost, Cost)>> = vec![None; adj.len()];
     let mut done = vec![false; adj.len()];
+    let mut wanted = vec![false; adj.len()];
+    let mut left = 0usize;
+    for &t in targets {
+        if !wanted[t] {
+            wanted[t] = true;
+            left += 1;
+        }
+    }
     let mut heap = BinaryHeap::new();
     best[s] = Some((0, 0));
     heap.push(Reverse((0 as Cost, 0 as Cost, s)));
@@ -341,6 +358,12 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
             continue;
         }
         done[v] = true;
+        if wanted[v] {
+            left -= 1;
+            if left == 0 {
+                break;
+            }
+        }
         for &(w, lc, lt) in &adj[v] {
             let cand = (c.saturating_add(lc), t.saturating_add(lt));
             if !done[w] && best[w].is_none_or(|b| cand < b) {
@@ -569,7 +592,10 @@ fn legs_of(inst: &Instance, route: &crate::plan::Route) -> Vec<(usize, usize)> {
     legs
 }
 
-type LegDistances = BTreeMap<(usize, usize), Option<(Cost, Cost)>>;
+type LegDistances = BTreeMap<Leg, Option<(Cost, Cost)>>;
+
+/// A leg: from junction, to junction.
+type Leg = (usize, usize);
 
 /// Least cost (and its time) of every leg, one search per distinct start.
 fn leg_distances(inst: &Instance, legs: &[Vec<(usize, usize)>]) -> LegDistances {
@@ -578,14 +604,16 @@ fn leg_distances(inst: &Instance, legs: &[Vec<(usize, usize)>]) -> LegDistances 
     for l in legs.iter().flatten() {
         by_source.entry(l.0).or_default().push(l.1);
     }
-    let mut leg_dist = BTreeMap::new();
-    for (s, targets) in by_source {
-        let d = shortest_from(&adj, s);
-        for t in targets {
-            leg_dist.insert((s, t), d[t]);
-        }
-    }
-    leg_dist
+    // One search per distinct start, stopped when its ends are reached; in
+    // parallel (rayon), collected in the starts' order.
+    let found: Vec<LegDistances> = by_source
+        .into_par_iter()
+        .map(|(s, targets)| {
+            let d = shortest_from(&adj, s, &targets);
+            targets.iter().map(|&t| ((s, t), d[t])).collect()
+        })
+        .collect();
+    found.into_iter().flatten().collect()
 }
 
 /// A route's recomputed load, cost (`None` when a leg has no path) and time.

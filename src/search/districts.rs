@@ -48,6 +48,17 @@ pub(super) struct Limits {
     pub start: Instant,
 }
 
+impl Limits {
+    /// Whether the deadline has passed or the stop flag is set.
+    fn reached(&self) -> bool {
+        self.deadline.is_some_and(|d| Instant::now() >= d)
+            || self
+                .stop
+                .as_ref()
+                .is_some_and(|f| f.load(std::sync::atomic::Ordering::Relaxed))
+    }
+}
+
 /// What one round did.
 pub(super) struct RoundResult {
     /// Offspring made in all districts.
@@ -76,6 +87,9 @@ pub(super) fn round(
         .par_iter()
         .enumerate()
         .map(|(k, g)| {
+            if limits.reached() {
+                return (None, 0);
+            }
             let mut rng = ChaCha12Rng::seed_from_u64(seed ^ round.rotate_left(32));
             rng.set_stream(k as u64 + 1);
             let picked: Vec<&[u32]> = g.iter().map(|&r| routes[r].as_slice()).collect();

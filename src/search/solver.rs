@@ -468,9 +468,9 @@ impl<'a> Solver<'a> {
         std::thread::scope(|scope| {
             let pending = scope.spawn(|| bound(inst, dist));
             let m = prepare(inst, dist, turned.as_ref())?;
-            // District improvement prices plans without turns: off with turn rules.
+            // With turn rules the districts' matrices are restricted from
+            // the turn-aware one, so they price turns too.
             let districts = match self.decomposition {
-                _ if turned.is_some() => None,
                 Decomposition::Auto => (m.n > DISTRICTS_FROM).then_some(DISTRICT_STREETS),
                 Decomposition::Off => None,
                 Decomposition::Districts { streets } => Some(streets.max(2)),
@@ -947,7 +947,13 @@ pub(super) struct Island {
 impl Island {
     pub(super) fn new(rng: ChaCha12Rng, m: &ArcMatrix) -> Self {
         let mut max_d = 1i64;
-        for a in (0..m.arcs as u32).step_by(7) {
+        // On demand, sampling far legs would search the whole network: the
+        // cap (twice the longest yard leg) stands in for the longest leg.
+        let sample = if m.is_on_demand() { 0 } else { m.arcs as u32 };
+        if m.is_on_demand() {
+            max_d = m.longest_legs().0.max(1);
+        }
+        for a in (0..sample).step_by(7) {
             for b in (0..m.arcs as u32).step_by(5) {
                 let d = m.d(a, b);
                 if d < BIG {
