@@ -441,13 +441,25 @@ pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     } else {
         leg_distances(inst, &legs)
     };
+    // Routes are priced in parallel (rayon); their findings are listed in
+    // route order as before.
+    let priced: Vec<(Found, Vec<Violation>)> = plan
+        .routes
+        .par_iter()
+        .enumerate()
+        .map(|(r, route)| {
+            let mut own = Vec::new();
+            let found = match &turns {
+                Some(t) => turns::route_totals(inst, t, r, route, &mut own),
+                None => route_totals(inst, r, route, &legs[r], &leg_dist, &mut own),
+            };
+            (found, own)
+        })
+        .collect();
     let mut total: Cost = 0;
     let mut total_known = true;
-    for (r, route) in plan.routes.iter().enumerate() {
-        let found = match &turns {
-            Some(t) => turns::route_totals(inst, t, r, route, &mut out),
-            None => route_totals(inst, r, route, &legs[r], &leg_dist, &mut out),
-        };
+    for ((r, route), (found, own)) in plan.routes.iter().enumerate().zip(priced) {
+        out.extend(own);
         limits(
             inst,
             r,

@@ -20,6 +20,16 @@
 //! so the lookup has no branch (measured with `cargo bench --bench kernels`:
 //! no change on egl-e4-C against a plain `a * arcs + b`).
 //!
+//! - *on demand*, when the distances given are
+//!   ([`Distances::is_on_demand`], above 8,192 key junctions;
+//!   [`TurnDistances::is_on_demand`], above 2,048 streets with turn rules):
+//!   no square matrix; each leg is asked of the distances (searched and
+//!   cached there), and [`ArcMatrix::restrict`] builds a district's dense
+//!   matrix by one search per district junction that stops when every
+//!   street of the district is reached. A leg longer than the route-length
+//!   check assumed (twice the longest yard leg, see `on_demand`) reads as
+//!   missing; without turns no leg is (the way through the yard bounds it).
+//!
 //! Entries are `i32` (a deadhead of at most [`MAX_LEG`]); a missing path is
 //! stored as `-1` and read as [`BIG`] (`2^40`), which no feasible route ever
 //! pays: the solver refuses instances on which a route could cost or take
@@ -544,7 +554,8 @@ impl ArcMatrix {
     /// distinct): a matrix in the by-arc layout whose task `i` is task
     /// `tasks[i]` here (arc `2i + k` is arc `2 tasks[i] + k`), with the same
     /// depot, capacity and shift and the fleet bound `max_routes`. Entries
-    /// are copied, so costs are exactly this matrix's. Memory `4 (2s + 2)^2`
+    /// are copied (on demand: searched among the district's streets only),
+    /// so costs are exactly this matrix's. Memory `4 (2s + 2)^2`
     /// bytes (twice with times) for `s` tasks: the district search's matrix.
     pub fn restrict(&self, tasks: &[usize], max_routes: Option<usize>) -> ArcMatrix {
         let s = tasks.len();

@@ -9,8 +9,12 @@
 //! **Memory.** With `K` key junctions the matrices take `4·K²` bytes (cost
 //! only) or `8·K²` bytes (when times differ from costs), plus `O(N + M)` for
 //! the adjacency of a network of `N` junctions and `M` links. A network whose
-//! 20,000 junctions are all key junctions needs 1.6 GB (3.2 GB with times).
-//! Paths are not stored: [`Distances::path`] re-runs one Dijkstra search to
+//! 20,000 junctions are all key junctions would need 1.6 GB (3.2 GB with
+//! times): above [`FULL_MATRIX_KEYS`] key junctions [`Distances::new`]
+//! therefore answers on demand ([`Distances::on_demand`]): the yard's row and
+//! column in full, any other leg by a search from its start when first asked,
+//! kept in a bounded cache (at most [`CACHE_ENTRIES`] entries of 20 bytes).
+//! The values are the same either way. Paths are not stored: [`Distances::path`] re-runs one Dijkstra search to
 //! write a deadhead out street by street, which is only needed for output.
 //!
 //! Sources are processed in parallel with rayon; the result does not depend
@@ -23,6 +27,8 @@ use std::sync::Arc;
 use rayon::prelude::*;
 
 pub(crate) mod on_demand;
+
+pub use on_demand::CACHE_ENTRIES;
 
 use on_demand::{RowCache, Settled, StateGraph, Until};
 
@@ -242,14 +248,17 @@ impl Distances {
 
     /// Distances of `inst` answered on demand: the yard's row and column are
     /// computed in full (two searches), any other leg by a search from its
-    /// start when first asked, kept in a bounded cache (module
-    /// [`on_demand`]). Values equal those of [`Distances::new`] with square
-    /// matrices, and are not limited to 32 bits. What [`Distances::new`]
-    /// chooses above [`FULL_MATRIX_KEYS`] key junctions.
+    /// start when first asked, kept in a bounded cache: a row of the nearest
+    /// junctions per start (grown when a leg falls outside it, up to 4,096
+    /// junctions) and single far legs beyond; the whole cache is dropped
+    /// when it would pass [`CACHE_ENTRIES`]. Values equal those of
+    /// [`Distances::new`] with square matrices, and are not limited to 32
+    /// bits. What [`Distances::new`] chooses above [`FULL_MATRIX_KEYS`] key
+    /// junctions.
     ///
     /// # Complexity
     /// `O(V + E)` memory for the network and the yard's row and column, plus
-    /// the cache (at most [`on_demand::CACHE_ENTRIES`] entries); each
+    /// the cache (at most [`CACHE_ENTRIES`] entries); each
     /// question not in the cache costs one search that stops as soon as it
     /// reaches the asked junction (and a minimum number of others).
     ///

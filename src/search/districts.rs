@@ -25,7 +25,12 @@
 //! stream derived from the seed, the round and its index; with iteration
 //! limits the result depends only on the seed (not even on the number of
 //! workers). Memory per district is `4 (2s + 2)^2` bytes for `s` streets
-//! (1 MiB for 400 streets; twice that with times).
+//! (1 MiB for 400 streets; twice that with times). When the solver's
+//! matrix answers on demand (city scale, with or without turn rules) a
+//! district's matrix comes from one search per district junction, stopped
+//! when the district's streets are reached; with turn rules it prices turns
+//! like the whole plan. A district not started by the deadline or stop flag
+//! is skipped.
 
 use std::sync::atomic::AtomicBool;
 use std::sync::Arc;

@@ -416,7 +416,10 @@ impl<'a> Solver<'a> {
     /// # Complexity
     /// Shortest paths `O(K (V + E) log V)` for `K` key junctions (skipped
     /// with [`Solver::distances`]), arc matrices `O(n^2)` for `n` required
-    /// streets (`O(K^2)` memory above 2,048 streets), then the limits set:
+    /// streets (`O(K^2)` memory above 2,048 streets; no square matrix at all
+    /// above [`crate::paths::FULL_MATRIX_KEYS`] key junctions, or above
+    /// [`crate::turns::FULL_MATRIX_TASKS`] streets with turn rules: legs are
+    /// then searched on demand and cached), then the limits set:
     /// each offspring costs one split `O(n^2)` at worst and local-search
     /// passes of `O(n k)` move evaluations (`k` = 8 neighbours).
     ///

@@ -29,7 +29,7 @@ mod rules;
 mod table;
 
 pub use angle::turn_kind;
-pub use paths::{driving_arc, search, source_of, Search, Source, TurnDistances};
+pub use paths::{driving_arc, search, source_of, Search, Source, TurnDistances, FULL_MATRIX_TASKS};
 pub use plan::{plan_from_visits, totals_with_turns};
 pub use rules::{DrivingSide, TurnKind, TurnPenalties, TurnRules, UTurns};
 pub use table::{arc_of, head, tail, TurnError, TurnTable, TurnsFrom};

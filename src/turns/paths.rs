@@ -11,10 +11,16 @@
 //! Costs are lexicographic like [`crate::paths`]: least cost, then least
 //! driving time (turn penalties add to the cost only).
 //!
-//! **Cost.** One Dijkstra search per task arc and one from the yard: time
-//! `O(A · T log T)` for `A = 2n + 1` sources and `T` allowed turns; memory
-//! `16·A²` bytes for the cost and time matrices (1 GB at 4,000 streets to
-//! serve; 25 GB at 20,000, too much: see the README). Sources run in
+//! **Cost.** In full ([`TurnDistances::full`], up to [`FULL_MATRIX_TASKS`]
+//! streets to serve): one Dijkstra search per task arc and one from the
+//! yard, time `O(A · T log T)` for `A = 2n + 1` sources and `T` allowed
+//! turns, memory `16·A²` bytes for the cost and time matrices (1 GB at 4,000
+//! streets to serve, 25 GB at 20,000). Above that, on demand
+//! ([`TurnDistances::on_demand`]): the yard's row and column in full (a
+//! forward search and one on the reversed turns), any other leg by a search
+//! when first asked, kept in a bounded cache (see
+//! [`crate::paths::Distances::on_demand`]); measured 874 MiB peak for the
+//! whole solver run at 19,510 streets with U-turns banned. Sources run in
 //! parallel with rayon; the result does not depend on the number of threads.
 
 use std::cmp::Reverse;
