@@ -35,7 +35,7 @@ pub const CACHE_ENTRIES: usize = 16 << 20;
 /// States settled at least per new row.
 const MIN_ROW: usize = 256;
 
-/// States kept at most per row; a leg beyond is kept on its own.
+/// States kept at most per row; a leg beyond the row is kept on its own.
 const ROW_MAX: usize = 4096;
 
 /// A graph searched state by state (junctions, or driving arcs with turns).
@@ -246,24 +246,26 @@ impl RowCache {
             return x;
         }
         let (min_row, row_max, cap) = self.limits;
-        let min = (2 * old).max(min_row);
-        let mut found = search(v, min.min(row_max));
+        let min = (2 * old).max(min_row).min(row_max);
+        let mut found = search(v, min);
         // The searched state is the last settled (or none: unreachable).
         let x = match found.order.iter().rev().find(|s| s.0 == v) {
             Some(&(_, c, t)) => (c, t),
             None => (UNREACHABLE, UNREACHABLE),
         };
-        if found.order.len() > row_max {
-            // A far leg: the row keeps its nearest states only, the leg is
-            // kept on its own.
-            found.order.truncate(row_max);
-            found.complete = false;
+        if found.order.len() > min {
+            // A far leg (beyond the grown row): kept on its own; the row
+            // grows only by legs near its start (a new row keeps its
+            // nearest `min` states), so far questions do not fill the cache.
             let mut pairs = self.pairs.write().expect("pair cache");
             pairs.insert((key as u32, v), x);
+            drop(pairs);
             self.entries.fetch_add(1, Ordering::Relaxed);
-            if old >= row_max {
+            if old > 0 {
                 return x;
             }
+            found.order.truncate(min);
+            found.complete = false;
         }
         let row = Row::of(found);
         let added = row.ids.len();

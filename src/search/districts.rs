@@ -134,7 +134,28 @@ pub(super) fn group(
             [at(1), at(2), at(3)]
         })
         .collect();
+    // On demand, far legs cost a search each: one full search per
+    // representative gives its legs to every other one instead.
+    let directed: Option<Vec<Vec<i64>>> = m.is_on_demand().then(|| {
+        (0..routes.len())
+            .into_par_iter()
+            .map(|x| {
+                let rows: Vec<Vec<(i64, i64)>> = reps[x].iter().map(|&a| m.row_from(a)).collect();
+                reps.iter()
+                    .map(|ry| {
+                        ry.iter()
+                            .flat_map(|&b| rows.iter().map(move |row| row[b as usize].0))
+                            .min()
+                            .unwrap_or(i64::MAX)
+                    })
+                    .collect()
+            })
+            .collect()
+    });
     let gap = |x: usize, y: usize| -> i64 {
+        if let Some(g) = &directed {
+            return g[x][y].min(g[y][x]);
+        }
         let mut best = i64::MAX;
         for &a in &reps[x] {
             for &b in &reps[y] {
