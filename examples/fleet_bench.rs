@@ -3,16 +3,21 @@
 //! balancing.
 //!
 //! ```text
-//! cargo run --release --example fleet_bench [-- OUT_DIR]
+//! cargo run --release --example fleet_bench [-- [OUT_DIR] [--demo-only]]
 //! ```
 //!
 //! 1. *Demo town with a landfill*: `instances/demo-town.json` plus a
-//!    landfill 6 km outside town (a new junction joined to the town junction
-//!    farthest from the yard by a 6,000 m road driven in 400 s), unloading
+//!    landfill outside town (a new junction drawn 1.5 km east of the town
+//!    junction farthest from the yard that is not only on lanes, joined to it
+//!    by a winding 6,000 m road driven in 400 s), unloading
 //!    15 min, and two truck types instead of the one fleet: `compact`
 //!    (load 350, 3 trucks, cost factor 0.9) and `large` (load 700, 3 trucks,
-//!    fixed cost 2,000 per truck used, cost factor 1.2), both with the town's
-//!    4-hour shift.
+//!    fixed cost 2,000 per truck used, cost factor 1.2, may not enter
+//!    `living_street`s), both with the town's 4-hour shift. The town's
+//!    streets get road classes from their names (our own rule for this
+//!    invented town): lanes, walks, paths, closes, courts and ends are
+//!    `living_street`, the streets served one side at a time `primary`, the
+//!    rest `residential`; Landfill Road is `primary`.
 //! 2. *egl with a dump site*: each `egl-e1-A` … `egl-s1-A` file of
 //!    `../shared/instances/egl` plus a dump site at the junction farthest
 //!    (least-cost path) from the depot, no unload time, unlimited trucks.
@@ -34,22 +39,42 @@ use arcwright::paths::Distances;
 
 fn main() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
-    let out = std::env::args()
-        .nth(1)
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    let demo_only = args.iter().any(|a| a == "--demo-only");
+    let out = args
+        .iter()
+        .find(|a| !a.starts_with("--"))
         .map(PathBuf::from)
         .unwrap_or_else(|| root.join("target/fleet-bench"));
     std::fs::create_dir_all(&out).expect("output folder");
     let mut cases = vec![demo_with_landfill(&root)];
     let egl = root.join("../shared/instances/egl");
-    if egl.exists() {
+    if demo_only {
+        // only the demo town
+    } else if egl.exists() {
         for name in ["egl-e1-A", "egl-s1-A"] {
             cases.push(egl_with_dump(&egl.join(format!("{name}.dat"))));
         }
     } else {
         eprintln!("SKIPPED egl: ../shared/instances not found");
     }
-    println!("| instance | balance | cost | routes | trips | tips | longest shift | shortest shift | seconds |");
-    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|");
+    if let Some(inst) = cases.first() {
+        // One exact split of a whole order (the streets in file order),
+        // which is what pricing a move cost before the route search.
+        let tables = arcwright::fleet::Tables::new(inst).expect("tables");
+        let order: Vec<usize> = (0..inst.tasks().len()).collect();
+        let t = Instant::now();
+        let s = arcwright::fleet::split::split(inst, &tables, &order).expect("a split");
+        println!(
+            "{}: one exact split of the whole order ({} streets, cost {}): {:.1} ms\n",
+            inst.name,
+            order.len(),
+            s.cost,
+            t.elapsed().as_secs_f64() * 1000.0
+        );
+    }
+    println!("| instance | balance | cost | objective | routes | trips | tips | longest shift | shortest shift | spread | moves priced | seconds |");
+    println!("|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
     for inst in cases {
         let file = out.join(format!("{}.json", inst.name.replace(' ', "-")));
         std::fs::write(&file, write_scenario(&inst)).expect("write scenario");
@@ -71,7 +96,7 @@ fn main() {
             assert!(check_fleet_plan(&inst, &sol.plan).is_ok());
             let (long, short) = sol.shift_spread;
             println!(
-                "| {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
+                "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {:.1} |",
                 inst.name,
                 if weight == 0 {
                     "least cost".to_string()
@@ -79,11 +104,14 @@ fn main() {
                     format!("cost + {weight} × longest")
                 },
                 sol.cost,
+                sol.objective,
                 sol.plan.routes.len(),
                 sol.plan.trips(),
                 sol.plan.tips(),
                 long,
                 short,
+                long - short,
+                sol.moves_priced,
                 secs
             );
         }
@@ -99,14 +127,26 @@ fn demo_with_landfill(root: &std::path::Path) -> Instance {
         .iter()
         .copied()
         .filter(|&v| dist.cost(yard, v) < arcwright::paths::UNREACHABLE)
+        .filter(|&v| {
+            // On a street that is not a lane: the large trucks must get there.
+            town.network().links.iter().any(|l| {
+                (l.from == v || l.to == v)
+                    && class_of(l.name.as_deref().unwrap_or("")) != "living_street"
+            })
+        })
         .max_by_key(|&v| (dist.cost(yard, v), v))
         .expect("a junction");
     let mut net: Network = town.network().clone();
+    for l in &mut net.links {
+        l.class = Some(class_of(l.name.as_deref().unwrap_or("")).to_string());
+    }
     let (x, y) = (net.junctions[far].x, net.junctions[far].y);
     let id = net.junctions.iter().map(|j| j.id).max().unwrap_or(0) + 1;
     net.junctions.push(Junction {
         id,
-        x: x.map(|x| x + 6000.0),
+        // Drawn 1.5 km east of that junction so that the map keeps the
+        // town readable; the road's cost and length are 6 km (it winds).
+        x: x.map(|x| x + 1500.0),
         y,
     });
     let landfill = net.junctions.len() - 1;
@@ -120,10 +160,13 @@ fn demo_with_landfill(root: &std::path::Path) -> Instance {
         name: Some("Landfill Road".into()),
         length: Some(6000),
         geometry: Vec::new(),
-        class: None,
+        class: Some("primary".into()),
     });
-    let inst =
-        Instance::new("demo town with landfill", net, town.fleet().clone(), yard).expect("valid");
+    let inst = Instance::new("demo town with landfill", net, town.fleet().clone(), yard)
+        .expect("valid")
+        .with_units(town.units().clone())
+        .with_coordinates(town.coordinates())
+        .expect("the town's coordinates");
     let ty = |name: &str, capacity, fixed_cost, cost_per_mille| TruckType {
         name: name.into(),
         count: Some(3),
@@ -134,7 +177,11 @@ fn demo_with_landfill(root: &std::path::Path) -> Instance {
         cost_per_mille,
         no_entry: vec![],
         no_service: vec![],
+        no_entry_classes: vec![],
+        no_service_classes: vec![],
     };
+    let mut large = ty("large", 700, 2000, 1200);
+    large.no_entry_classes = vec!["living_street".into()];
     let ops = Operations {
         dump_sites: vec![DumpSite {
             name: Some("Landfill".into()),
@@ -143,10 +190,22 @@ fn demo_with_landfill(root: &std::path::Path) -> Instance {
             unload_cost: 0,
             hours: None,
         }],
-        truck_types: vec![ty("compact", 350, 0, 900), ty("large", 700, 2000, 1200)],
+        truck_types: vec![ty("compact", 350, 0, 900), large],
         ..Operations::default()
     };
     inst.with_operations(ops).expect("valid operations")
+}
+
+/// The road class of a demo-town street from its name (see the module docs).
+fn class_of(name: &str) -> &'static str {
+    let base = name.split(" (").next().unwrap_or(name);
+    if name.contains("bound side)") {
+        return "primary";
+    }
+    match base.rsplit(' ').next().unwrap_or("") {
+        "Lane" | "Walk" | "Path" | "Close" | "Court" | "End" => "living_street",
+        _ => "residential",
+    }
 }
 
 fn egl_with_dump(path: &std::path::Path) -> Instance {

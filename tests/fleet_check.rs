@@ -31,6 +31,8 @@ fn instance() -> Instance {
         cost_per_mille: 1000,
         no_entry: vec![],
         no_service: vec![],
+        no_entry_classes: vec![],
+        no_service_classes: vec![],
     };
     let mut big = ty("big", 9, None, 1);
     big.no_service = vec![0];

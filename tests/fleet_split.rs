@@ -336,6 +336,8 @@ fn world(seed: u64, tasks: usize, variant: u64) -> World {
             cost_per_mille: 800,
             no_entry: vec![],
             no_service: vec![],
+            no_entry_classes: vec![],
+            no_service_classes: vec![],
         },
         TruckType {
             name: "large".into(),
@@ -347,6 +349,8 @@ fn world(seed: u64, tasks: usize, variant: u64) -> World {
             cost_per_mille: 1250,
             no_entry: vec![links.len() - 1],
             no_service: vec![0],
+            no_entry_classes: vec![],
+            no_service_classes: vec![],
         },
     ];
     let return_empty = variant & 4 == 0;
@@ -511,6 +515,49 @@ fn solver_reaches_the_enumerated_optimum() {
     }
 }
 
+/// The fleet bound (with the trip bound) is never above the optimum over
+/// all plans, enumerated here as in the test above, on tiny worlds with
+/// tipping, two yards and two truck types (least cost: the optimum
+/// objective is the optimum cost).
+#[test]
+fn fleet_bound_is_never_above_the_enumerated_optimum() {
+    use arcwright::fleet::bound::{fleet_bound, trip_bound};
+    let mut raised = 0;
+    for (seed, variant) in [
+        (2u64, 0u64),
+        (4, 1),
+        (6, 2),
+        (9, 3),
+        (12, 4),
+        (17, 5),
+        (23, 6),
+        (31, 7),
+    ] {
+        let w = world(seed, 5, variant);
+        assert_eq!(w.weight, 0);
+        let Some(best) = permutations(5)
+            .iter()
+            .filter_map(|p| enumerate(&w, p))
+            .min()
+        else {
+            continue;
+        };
+        let t = Tables::new(&w.inst).unwrap();
+        let lb = fleet_bound(&w.inst, &t);
+        assert!(
+            lb.value <= best,
+            "seed {seed} variant {variant}: {lb:?} > {best}"
+        );
+        let trips = trip_bound(&w.inst, &t).expect("dump sites");
+        assert!(
+            trips <= best,
+            "seed {seed} variant {variant}: {trips} > {best}"
+        );
+        raised += usize::from(lb.by == arcwright::fleet::bound::TRIPS);
+    }
+    eprintln!("the trip bound was the base of {raised} of 8 bounds");
+}
+
 mod properties {
     use super::*;
     use arcwright::check::fleet::check_fleet_plan;
@@ -527,11 +574,11 @@ mod properties {
     proptest! {
         #![proptest_config(ProptestConfig { cases: 48, ..ProptestConfig::default() })]
 
-        /// Every split passes the checker, every trip is within its type's
-        /// load limit, and no tip can be dropped to make a feasible route
+        /// Every split passes the checker and costs at least the fleet
+        /// bound, every trip is within its type's load limit, and no tip can be dropped to make a feasible route
         /// cheaper (under balancing: cheaper and within the longest shift).
         #[test]
-        fn splits_are_checked_loaded_within_limits_and_tip_no_more_than_pays(
+        fn splits_are_checked_bounded_loaded_within_limits_and_tip_no_more_than_pays(
             seed in 0u64..10_000,
             variant in 0u64..16,
             tasks in 3usize..=7,
@@ -548,6 +595,9 @@ mod properties {
             let Ok(s) = split(&w.inst, &t, &tour) else { return Ok(()) };
             let plan = FleetPlan::new(s.routes.clone());
             prop_assert!(check_fleet_plan(&w.inst, &plan).is_ok());
+            // The bound is never above a plan the checker accepts.
+            let lb = arcwright::fleet::bound::fleet_bound(&w.inst, &t);
+            prop_assert!(lb.value <= plan.cost, "{:?} > {}", lb, plan.cost);
             for r in &plan.routes {
                 let cap = w.types[r.truck_type].capacity;
                 prop_assert!(r.trip_loads.iter().all(|&l| l <= cap));
@@ -568,13 +618,18 @@ mod properties {
             }
         }
 
-        /// Every plan the solver returns passes the checker.
+        /// Every plan the solver returns passes the checker, keeps every
+        /// trip within its type's load limit, and costs at least the bound.
         #[test]
-        fn solver_plans_pass_the_checker(seed in 0u64..10_000, variant in 0u64..16) {
-            let w = world(seed, 5, variant);
-            let sol = FleetSolver::new(&w.inst).seed(seed).max_iterations(10).moves(20).solve();
+        fn solver_plans_pass_the_checker(seed in 0u64..10_000, variant in 0u64..16, workers in 1usize..=2) {
+            let w = world(seed, 5 + (seed % 3) as usize, variant);
+            let sol = FleetSolver::new(&w.inst).seed(seed).workers(workers).max_iterations(10).moves(20).solve();
             if let Ok(sol) = sol {
                 prop_assert!(check_fleet_plan(&w.inst, &sol.plan).is_ok());
+                for r in &sol.plan.routes {
+                    let cap = w.types[r.truck_type].capacity;
+                    prop_assert!(r.trip_loads.iter().all(|&l| l <= cap));
+                }
                 prop_assert_eq!(sol.objective, sol.plan.objective(&w.inst));
                 prop_assert!(sol.lower_bound.value <= sol.cost);
             }
@@ -602,4 +657,76 @@ fn balancing_shortens_the_longest_shift_at_a_cost() {
         shorter += usize::from(b.longest < a.longest);
     }
     assert!(shorter > 0, "balancing never changed a plan");
+}
+
+/// The solver with two yards, two truck types and tipping reaches the
+/// enumerated optimum on worlds of six streets too (all 720 orders
+/// enumerated).
+#[test]
+fn solver_reaches_the_enumerated_optimum_with_six_streets() {
+    for (seed, tasks, variant) in [(4u64, 6usize, 0u64), (10, 6, 3)] {
+        let w = world(seed, tasks, variant);
+        let best = permutations(tasks)
+            .iter()
+            .filter_map(|p| enumerate(&w, p))
+            .min()
+            .expect("some plan");
+        let sol = arcwright::fleet::FleetSolver::new(&w.inst)
+            .max_iterations(30)
+            .moves(300)
+            .solve()
+            .unwrap();
+        assert!(arcwright::check::fleet::check_fleet_plan(&w.inst, &sol.plan).is_ok());
+        assert_eq!(
+            sol.objective, best,
+            "seed {seed} tasks {tasks} variant {variant}"
+        );
+    }
+}
+
+/// With an iteration limit the result depends only on the seed and the
+/// worker count (run twice, same plan).
+#[test]
+fn same_seed_same_plan() {
+    let w = world(5, 7, 1);
+    let run = |workers| {
+        arcwright::fleet::FleetSolver::new(&w.inst)
+            .seed(4)
+            .workers(workers)
+            .max_iterations(20)
+            .moves(40)
+            .solve()
+            .unwrap()
+            .plan
+    };
+    let a = run(1);
+    assert_eq!(a, run(1));
+    assert_eq!(run(2), run(2));
+}
+
+/// A stop flag set before the search still gives a plan (at least one start
+/// is always split), checked; progress reports come in phase order and the
+/// run says it was stopped early.
+#[test]
+fn stop_flag_set_before_the_search_still_gives_a_checked_plan() {
+    use std::sync::atomic::AtomicBool;
+    use std::sync::{Arc, Mutex};
+    let w = world(8, 6, 2);
+    let phases = Mutex::new(Vec::new());
+    let sol = arcwright::fleet::FleetSolver::new(&w.inst)
+        .max_iterations(1_000_000)
+        .moves(u64::MAX)
+        .stop_flag(Arc::new(AtomicBool::new(true)))
+        .on_progress(|p| phases.lock().unwrap().push(p.phase))
+        .solve()
+        .unwrap();
+    assert!(sol.stopped_early);
+    assert_eq!(sol.rounds, 0);
+    assert!(arcwright::check::fleet::check_fleet_plan(&w.inst, &sol.plan).is_ok());
+    let phases = phases.into_inner().unwrap();
+    use arcwright::Phase;
+    let first = |p: Phase| phases.iter().position(|&x| x == p).expect("reported");
+    assert!(first(Phase::Distances) < first(Phase::Bound));
+    assert!(first(Phase::Bound) < first(Phase::Construction));
+    assert!(first(Phase::Construction) < first(Phase::Search));
 }

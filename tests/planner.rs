@@ -830,33 +830,263 @@ fn plans_a_scenario_with_dump_sites_and_truck_types() {
         .contains("do not apply to a scenario with truck_types"));
 }
 
-/// A scenario with turn rules is refused with a clear message before
-/// anything is searched or written: the library plans with turns, but the
-/// planner's plan files and sheets cannot carry them yet, and a plan that
-/// cannot be re-checked from its own file must not be written.
+/// `planner check` reads fleet plan files: the planner's own passes, and a
+/// tampered one (a tip removed, a trip load and the trip count changed) is
+/// read as written and every fault is listed in the sheets' words (truck
+/// with its type, trip, tip, street names), not stopped at the first.
 #[test]
-fn turn_rules_are_refused_by_the_planner_until_its_outputs_carry_turns() {
-    let dir = out_dir("planner-turn-rules");
+fn check_reads_fleet_plans_and_names_their_faults_in_the_sheets_words() {
+    let scenario = "tests/fixtures/fleet/two_yards.json";
+    let dir = out_dir("planner-fleet-check");
+    let out = dir.join("out");
+    plan_ok(&[scenario, "--iterations", "20"], &out);
+    let file = out.join("plan.json");
+    let o = planner([
+        std::ffi::OsString::from("check"),
+        scenario.into(),
+        file.clone().into_os_string(),
+    ]);
+    let (stdout, stderr) = text(&o);
+    assert!(o.status.success(), "{stdout}{stderr}");
+    assert!(stdout.contains("valid for"), "{stdout}");
+    // Tamper: route 1 loses its last tip (it ends with one: trucks return
+    // empty), its first trip load is raised by one, the trip count is off.
+    let mut v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&file).unwrap()).unwrap();
+    let route = &mut v["routes"][0];
+    let stops = route["stops"].as_array_mut().unwrap();
+    assert!(stops.last().unwrap().get("tip").is_some(), "{stops:?}");
+    stops.pop();
+    let load = route["trip_loads"][0].as_i64().unwrap();
+    route["trip_loads"][0] = serde_json::json!(load + 1);
+    let trips = v["trips"].as_u64().unwrap();
+    v["trips"] = serde_json::json!(trips + 5);
+    let kind = v["routes"][0]["truck_type"].as_str().unwrap().to_string();
+    let bad = dir.join("tampered.json");
+    std::fs::write(&bad, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+    let o = planner([
+        std::ffi::OsString::from("check"),
+        scenario.into(),
+        bad.into_os_string(),
+    ]);
+    let (stdout, stderr) = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{stdout}{stderr}");
+    let truck = format!("Truck 1 ({kind})");
+    for want in [
+        format!("{truck} returns to its yard with"),
+        format!("{truck}: the plan states trip loads"),
+        format!("the plan states {} trips", trips + 5),
+    ] {
+        assert!(stdout.contains(&want), "missing `{want}` in\n{stdout}");
+    }
+    assert!(
+        !stdout.contains("route 0"),
+        "0-based words leaked:\n{stdout}"
+    );
+}
+
+/// The planner refuses fleet scenarios that cannot be planned with a typed
+/// error in the file's words (its JSON path, the element named as the file
+/// names it), exit 2, and nothing written: a dump site no street to serve can
+/// reach, a truck type no street admits (by road class), a yard with no
+/// trucks, a misspelt road class.
+#[test]
+fn bad_fleet_scenarios_are_named_and_nothing_is_written() {
+    let dir = out_dir("planner-fleet-bad");
     std::fs::create_dir_all(&dir).unwrap();
-    let demo_text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("instances/demo-town.json"),
+    let base: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(Path::new(ROOT).join("tests/fixtures/fleet/two_yards.json"))
+            .unwrap(),
     )
     .unwrap();
+    type Edit = fn(&mut serde_json::Value);
+    let cases: [(&str, Edit, &str); 4] = [
+        (
+            "unreachable-dump",
+            |v| {
+                v["junctions"].as_array_mut().unwrap().push(serde_json::json!({ "id": 7 }));
+                v["streets"].as_array_mut().unwrap().push(
+                    serde_json::json!({ "from": 7, "to": 1, "one_way": true, "cost": 1 }),
+                );
+                v["dump_sites"][0]["junction"] = serde_json::json!(7);
+            },
+            "at `dump_sites[0]`: dump site 0: cannot be reached from street 0",
+        ),
+        (
+            "type-no-street-admits",
+            |v| {
+                for s in v["streets"].as_array_mut().unwrap() {
+                    s["class"] = serde_json::json!("residential");
+                }
+                v["truck_types"][0]["no_service"] = serde_json::json!(["residential"]);
+            },
+            "at `truck_types[0]`: truck type `small` may serve none of the streets to serve",
+        ),
+        (
+            "yard-without-trucks",
+            |v| v["truck_types"][1]["yard"] = serde_json::json!("north"),
+            "at `yards[1]`: yard `south` has no trucks",
+        ),
+        (
+            "misspelt-class",
+            |v| v["truck_types"][1]["no_entry"] = serde_json::json!(["residental"]),
+            "at `truck_types[1].no_entry`: truck type `large`: no_entry names road class `residental`",
+        ),
+    ];
+    for (name, edit, want) in cases {
+        let mut v = base.clone();
+        edit(&mut v);
+        let file = dir.join(format!("{name}.json"));
+        std::fs::write(&file, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+        let out = dir.join(format!("{name}-out"));
+        let o = planner([
+            file.as_os_str(),
+            "--iterations".as_ref(),
+            "5".as_ref(),
+            "--out".as_ref(),
+            out.as_os_str(),
+        ]);
+        let (_, stderr) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{name}: {stderr}");
+        assert!(stderr.contains(&format!("{name}.json")), "{name}: {stderr}");
+        assert!(stderr.contains(want), "{name}: want `{want}` in {stderr}");
+        assert!(
+            !out.join("plan.json").exists(),
+            "{name}: a plan was written"
+        );
+    }
+}
+
+/// The demo town with turn rules (U-turns only at dead ends, left turns
+/// and U-turns penalised), written next to the run's outputs.
+fn turns_scenario(dir: &Path, extra: Option<serde_json::Value>) -> PathBuf {
+    std::fs::create_dir_all(dir).unwrap();
+    let demo_text = std::fs::read_to_string(Path::new(ROOT).join(DEMO)).unwrap();
     let mut json: serde_json::Value = serde_json::from_str(&demo_text).unwrap();
     json["turn_rules"] = serde_json::json!({ "penalties": { "left": 15, "u_turn": 30 } });
+    if let Some(serde_json::Value::Object(m)) = extra {
+        for (k, v) in m {
+            json[k] = v;
+        }
+    }
     let scenario = dir.join("turns.json");
     std::fs::write(&scenario, json.to_string()).unwrap();
+    scenario
+}
+
+/// The planner plans a scenario with turn rules: the plan file carries
+/// every route's walk with its turns, the sheets one manoeuvre per street
+/// and the turns counted, the map the direction of travel, and `planner
+/// check` re-verifies the file, turn by turn; a tampered turn cost is found.
+#[test]
+fn turn_rules_are_planned_written_and_rechecked() {
+    let dir = out_dir("planner-turn-rules");
+    let scenario = turns_scenario(&dir, None);
+    let out = dir.join("out");
+    let s = scenario.to_str().unwrap();
+    let stdout = plan_ok(
+        &[s, "--iterations", "40", "--workers", "1", "--quick-bound"],
+        &out,
+    );
+    assert!(stdout.contains("U-turns"), "{stdout}");
+    assert!(stdout.contains("Turns (all trucks):"), "{stdout}");
+    let plan_text = std::fs::read_to_string(out.join("plan.json")).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&plan_text).unwrap();
+    let inst = read_scenario_file(&scenario).unwrap();
+    let net = inst.network();
+    for r in v["routes"].as_array().unwrap() {
+        let walk = r["walk"].as_array().expect("every route has its walk");
+        for (k, step) in walk.iter().enumerate().skip(1) {
+            assert_eq!(step["from"], walk[k - 1]["to"]);
+            // U-turns only where one street ends (counted here).
+            if step["turn"] == "u_turn" {
+                let id = step["from"].as_u64().unwrap();
+                let j = net.junctions.iter().position(|x| x.id == id).unwrap();
+                let streets = net
+                    .links
+                    .iter()
+                    .filter(|l| l.from != l.to && (l.from == j || l.to == j))
+                    .count();
+                assert_eq!(streets, 1, "U-turn at junction {id}");
+            }
+        }
+    }
+    let sheets = std::fs::read_to_string(out.join("sheets.md")).unwrap();
+    assert!(sheets.contains("| manoeuvre |"), "{sheets}");
+    assert!(sheets.contains("leave the yard along"), "{sheets}");
+    assert!(sheets.contains(" onto "), "{sheets}");
+    assert!(sheets.contains("Turns: "), "{sheets}");
+    let csv = std::fs::read_to_string(out.join("truck-1.csv")).unwrap();
+    assert!(csv
+        .lines()
+        .next()
+        .unwrap()
+        .ends_with(",turn,turn_cost (m),manoeuvre"));
+    let svg = std::fs::read_to_string(out.join("plan.svg")).unwrap();
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    assert!(doc
+        .descendants()
+        .any(|n| n.attribute("class") == Some("travel")));
+    // planner check re-verifies it.
+    let plan_file = out.join("plan.json");
+    let o = planner([
+        "check".as_ref(),
+        scenario.as_os_str(),
+        plan_file.as_os_str(),
+    ]);
+    let (cout, cerr) = text(&o);
+    assert!(
+        o.status.success(),
+        "{cout}
+{cerr}"
+    );
+    // A turn cost changed in the file is found.
+    let mut bad = v.clone();
+    let walk = bad["routes"][0]["walk"].as_array_mut().unwrap();
+    let k = walk
+        .iter()
+        .position(|s| s["turn_cost"].as_i64().is_some_and(|c| c > 0))
+        .expect("truck 1 pays for a turn");
+    walk[k]["turn_cost"] = 1.into();
+    let tampered = dir.join("tampered.json");
+    std::fs::write(&tampered, bad.to_string()).unwrap();
+    let o = planner(["check".as_ref(), scenario.as_os_str(), tampered.as_os_str()]);
+    let (cout, cerr) = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{cout}\n{cerr}");
+    assert!(cout.contains(&format!("Truck 1, step {}", k + 1)), "{cout}");
+}
+
+/// Turn rules do not combine with the fleet model (dump sites, truck types):
+/// refused with a clear message before anything is searched or written.
+#[test]
+fn turn_rules_with_dump_sites_are_refused() {
+    let dir = out_dir("planner-turn-rules-fleet");
+    let yard = {
+        let demo: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(Path::new(ROOT).join(DEMO)).unwrap())
+                .unwrap();
+        demo["yard"].clone()
+    };
+    let scenario = turns_scenario(
+        &dir,
+        Some(
+            serde_json::json!({ "dump_sites": [ { "junction": yard, "name": "Tip", "unload_time": 600 } ] }),
+        ),
+    );
     let out = dir.join("out");
     let o = planner([
         scenario.as_os_str(),
         "--iterations".as_ref(),
-        "50".as_ref(),
+        "5".as_ref(),
         "--quiet".as_ref(),
         "--out".as_ref(),
         out.as_os_str(),
     ]);
     let (stdout, stderr) = text(&o);
     assert_eq!(o.status.code(), Some(2), "{stdout}\n{stderr}");
-    assert!(stderr.contains("turn_rules"), "{stderr}");
+    assert!(
+        stderr.contains("turn_rules") && stderr.contains("dump sites"),
+        "{stderr}"
+    );
     assert!(!out.exists(), "nothing is written");
 }

@@ -110,6 +110,58 @@ fn geojson_map_is_planned_directly() {
     assert!(stdout.contains("Units: costs in m"), "{stdout}");
 }
 
+/// A profile with `[turn_rules]` plans the map under the rules and the
+/// map's own turn restrictions: streets the rules cut off are reported, the
+/// plan file carries the walks, and `check` re-verifies them turn by turn.
+#[test]
+fn osm_extract_is_planned_with_turn_rules_and_its_restrictions() {
+    let Some(pbf) = common::shared_osm(
+        "planner_maps::osm_extract_is_planned_with_turn_rules_and_its_restrictions",
+    ) else {
+        return;
+    };
+    let dir = out_dir("map-pbf-turns");
+    let base =
+        std::fs::read_to_string(Path::new(ROOT).join("src/map/profiles/refuse.toml")).unwrap();
+    let profile = dir.join("refuse-turns.toml");
+    std::fs::write(
+        &profile,
+        format!("{base}\n[turn_rules]\npenalties = {{ left = 30, u_turn = 60 }}\n"),
+    )
+    .unwrap();
+    let p = profile.to_str().unwrap();
+    let stdout = plan_map(&pbf, &["--profile", p], &dir);
+    assert!(stdout.contains("31 turn restrictions"), "{stdout}");
+    assert!(stdout.contains("cut off from the yard"), "{stdout}");
+    assert!(stdout.contains("U-turns"), "{stdout}");
+    let plan_text = std::fs::read_to_string(dir.join("out/plan.json")).unwrap();
+    assert!(plan_text.contains("\"walk\""));
+    // The GeoJSON steps carry their manoeuvres (read with the geojson crate).
+    let gj: geojson::GeoJson = std::fs::read_to_string(dir.join("out/plan.geojson"))
+        .unwrap()
+        .parse()
+        .unwrap();
+    let geojson::GeoJson::FeatureCollection(fc) = gj else {
+        panic!("not a FeatureCollection")
+    };
+    let said = fc
+        .features
+        .iter()
+        .filter(|f| f.property("manoeuvre").is_some())
+        .count();
+    assert_eq!(said + 1, fc.features.len(), "every step but the yard");
+    let plan = dir.join("out/plan.json");
+    let o = planner(&[
+        "check".as_ref(),
+        pbf.as_os_str(),
+        plan.as_os_str(),
+        "--profile".as_ref(),
+        p.as_ref(),
+    ]);
+    let (stdout, stderr) = text(&o);
+    assert!(o.status.success(), "{stdout}\n{stderr}");
+}
+
 #[test]
 fn osm_extract_is_planned_with_profile_and_yard_and_checked() {
     let Some(pbf) = common::shared_osm(

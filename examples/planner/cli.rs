@@ -26,7 +26,7 @@ pub const DEFAULT_TIME_LIMIT: Duration = Duration::from_secs(10);
                   or a street map: an OpenStreetMap extract (.osm.pbf, .osm) or GeoJSON \
                   street lines (.geojson), built with --profile and --yard \
                   (default: instances/demo-town.json).\n\
-                  `planner check SCENARIO PLAN` re-verifies a plan file: it lists every \
+                  `planner check SCENARIO PLAN` re-verifies a plan file (plain or fleet, with tips): it lists every \
                   problem found; exit code 0 when valid, 1 on problems, 2 when a file \
                   cannot be read as a plan of the scenario."
 )]
@@ -64,7 +64,7 @@ pub struct CheckArgs {
 /// How a map file (`.osm.pbf`, `.osm`, `.geojson`) becomes a scenario.
 #[derive(Clone, Debug, Default, PartialEq, Eq, Args)]
 pub struct MapArgs {
-    /// Service profile for a map: `refuse` (default), `gritting` or a TOML file.
+    /// Service profile for a map: `refuse` (default), `gritting` or a TOML file (its `[turn_rules]` table, if any, applies turn rules with the map's restrictions).
     #[arg(long, value_name = "NAME|FILE")]
     pub profile: Option<String>,
     /// Yard of a map scenario: `LON,LAT` (snapped to the nearest drivable

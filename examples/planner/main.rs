@@ -143,7 +143,7 @@ fn check(k: &cli::CheckArgs) -> ExitCode {
                 "{}: valid for {} ({} trucks, cost {}).",
                 k.plan.display(),
                 k.scenario.display(),
-                run.plan.routes.len(),
+                run.trucks,
                 run.cost_text
             );
             ExitCode::SUCCESS

@@ -7,20 +7,24 @@ use std::sync::Arc;
 
 use arcwright::bounds::lp::LP_CUTS;
 use arcwright::check::fleet::check_fleet_plan;
-use arcwright::check::{check_plan, check_walks, Violation};
+use arcwright::check::{check_plan, check_turn_walks, check_walks, Violation};
 use arcwright::demo::{town, TownSpec};
 use arcwright::fleet::FleetSolver;
+use arcwright::fleet::{FleetPlan, Tables};
+use arcwright::io::fleet_plan::FLEET_PLAN_FORMAT;
 use arcwright::io::plan_json::{
-    read_plan_as_written, read_plan_claims, read_plan_with, write_plan_record, PlanRecord,
-    RunSettings,
+    read_plan_as_written, read_plan_claims, read_plan_with, read_walks, write_plan_record,
+    PlanRecord, RunSettings,
 };
 use arcwright::io::{detect_format, read_dat, read_scenario, read_text, write_scenario, Format};
-use arcwright::io::{read_fleet_plan, write_fleet_plan};
+use arcwright::io::{read_fleet_plan, read_fleet_plan_as_written, write_fleet_plan};
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
-use arcwright::report::fleet::fleet_markdown;
-use arcwright::report::{bundle, summary_table, OutputFile, SummaryExtras};
+use arcwright::report::fleet::{describe_fleet, fleet_markdown, fleet_rows};
+use arcwright::report::geo::fleet_feature_collection;
+use arcwright::report::svg::fleet_map;
+use arcwright::report::{bundle_walks, route_walks, summary_table, OutputFile, SummaryExtras};
 use arcwright::{LpOutcome, Progress, Solver};
 
 use arcwright::map::{load_map, MapFormat, MapOptions};
@@ -147,9 +151,14 @@ pub struct PlanRun {
     pub files: Vec<PathBuf>,
 }
 
-/// Checks a plan and its explicit walks with the independent checker.
+/// Checks a plan and its explicit walks with the independent checker. With
+/// turn rules the walks are those of [`route_walks`] (turns included) and
+/// their turns and costs are checked too ([`check_turn_walks`]).
 pub fn verify(inst: &Instance, dist: &Distances, plan: &Plan) -> Result<(), Vec<Violation>> {
     check_plan(inst, plan)?;
+    if inst.turn_rules().is_some() {
+        return check_turn_walks(inst, plan, &route_walks(inst, dist, plan));
+    }
     let walks: Vec<_> = plan
         .routes
         .iter()
@@ -172,6 +181,8 @@ pub fn render(
 ) -> Result<Vec<OutputFile>, AppError> {
     let plan = &plan.clone().self_loops_forward(inst);
     verify(inst, dist, plan).map_err(|v| AppError::Refused(describe_all(inst, &v)))?;
+    let walks = route_walks(inst, dist, plan);
+    let turns = inst.turn_rules().is_some();
     let record = PlanRecord {
         lower_bound: extras.lower_bound.as_ref().map(|b| b.0),
         lower_bound_method: extras.lower_bound.as_ref().map(|b| b.1.clone()),
@@ -181,6 +192,7 @@ pub fn render(
             .clone()
             .or_else(|| arcwright::report::route_lengths(inst, dist, plan)),
         run,
+        walks: turns.then(|| walks.clone()),
     };
     let json = write_plan_record(inst, plan, &record);
     match read_plan_with(&json, "plan.json", inst, dist) {
@@ -196,11 +208,16 @@ pub fn render(
             )))
         }
     }
+    if turns && read_walks(&json, "plan.json", inst).ok().flatten().as_ref() != Some(&walks) {
+        return Err(AppError::Internal(
+            "the walks of the plan file do not read back".into(),
+        ));
+    }
     let mut files = vec![OutputFile {
         name: "plan.json".into(),
         contents: json,
     }];
-    files.extend(bundle(inst, dist, plan, extras));
+    files.extend(bundle_walks(inst, plan, &walks, extras));
     Ok(files)
 }
 
@@ -209,14 +226,13 @@ pub fn render(
 pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> {
     let (loaded, source) = resolve_scenario(opts)?;
     let inst = loaded.instance;
-    if inst.turn_rules().is_some() {
-        // The library plans with turn rules, but plan files, sheets and the
-        // re-check of the written plan do not carry turns yet: refuse before
-        // anything is searched or written rather than write a plan that
-        // cannot be verified from its file.
+    if inst.turn_rules().is_some() && !inst.operations().is_plain(&inst) {
+        // The fleet solver (tips, yards, truck types, balance) prices
+        // routes without turns: refuse before anything is searched or written.
         return Err(AppError::Unsupported(format!(
-            "{source}: the scenario sets turn_rules; the planner cannot yet write plans with \
-             turns (the library's Solver plans them); remove turn_rules to plan without them"
+            "{source}: the scenario sets turn_rules together with dump sites, several yards, \
+             truck types or balance; turn rules do not combine with those yet: remove \
+             turn_rules, or plan without the fleet features"
         )));
     }
     prepare_folder(&opts.out)?;
@@ -229,7 +245,11 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         .unwrap_or_else(|| Arc::new(AtomicBool::new(false)));
     if !inst.operations().is_plain(&inst) {
         let (map_report, osm) = (loaded.map_report, loaded.osm);
-        let mut run = run_fleet_plan(opts, &inst, source, osm)?;
+        let hooks = Hooks {
+            on_progress: hooks.on_progress,
+            stop: Some(stop),
+        };
+        let mut run = run_fleet_plan(opts, &inst, source, osm, hooks)?;
         run.map_report = map_report;
         return Ok(run);
     }
@@ -260,6 +280,7 @@ pub fn run_plan(opts: &PlanArgs, hooks: Hooks<'_>) -> Result<PlanRun, AppError> 
         iterations: Some(solution.stats.iterations),
         stopped_early,
         route_lengths: arcwright::report::route_lengths(&inst, &dist, &solution.plan),
+        turn_counts: arcwright::report::turn_counts(&inst, &dist, &solution.plan),
     };
     let run = RunSettings {
         seed: opts.seed,
@@ -305,15 +326,18 @@ pub fn bound_method(solution: &arcwright::Solution) -> String {
 }
 
 /// Plans a scenario with dump sites, several yards, truck types or
-/// balancing with the fleet solver (iteration limit and seed as given; no
-/// time limit or stop flag: it runs to its limits), checks the plan
-/// independently and writes `plan.json` (every tip recorded) and
-/// `sheets.md` (with "tip at ..., unload ...").
+/// balancing with the fleet solver, checks the plan independently and
+/// writes `plan.json` (every tip recorded) and `sheets.md` (with "tip at
+/// ..., unload ..."). Seed, workers and iteration limit as given; with a
+/// time limit (the default without `--iterations`) the local search runs
+/// until it ends, and Ctrl-C (the stop flag) ends it early: either way the
+/// best plan so far is checked and written.
 fn run_fleet_plan(
     opts: &PlanArgs,
     inst: &Instance,
     source: String,
     osm: bool,
+    hooks: Hooks<'_>,
 ) -> Result<PlanRun, AppError> {
     let f = &opts.fleet;
     let overrides = f.capacity.is_some() || f.shift_limit.is_some() || f.max_trucks.is_some();
@@ -327,6 +351,20 @@ fn run_fleet_plan(
         .workers(opts.effective_workers());
     if let Some(n) = opts.iterations {
         solver = solver.max_iterations(n);
+    }
+    if let Some(t) = opts.effective_time_limit() {
+        solver = solver.time_limit(t);
+        if opts.iterations.is_none() {
+            // Search until the time limit, as the plain planner does.
+            solver = solver.moves(u64::MAX);
+        }
+    }
+    let stop = hooks.stop.clone();
+    if let Some(stop) = hooks.stop {
+        solver = solver.stop_flag(stop);
+    }
+    if let Some(f) = hooks.on_progress {
+        solver = solver.on_progress(f);
     }
     let sol = solver.solve().map_err(AppError::FleetSolve)?;
     if let Err(v) = check_fleet_plan(inst, &sol.plan) {
@@ -372,6 +410,7 @@ fn run_fleet_plan(
             contents: summary.clone(),
         },
     ];
+    files.extend(fleet_maps(inst, &sol.plan)?);
     let mut summary = summary;
     if osm {
         attribute_osm(&mut files);
@@ -382,10 +421,33 @@ fn run_fleet_plan(
         source,
         map_report: None,
         saved_scenario: opts.save_scenario.clone(),
-        stopped_early: false,
+        // Ctrl-C, not the time limit (which ends every timed fleet run).
+        stopped_early: stop.is_some_and(|s| s.load(Ordering::SeqCst)),
         summary,
         files,
     })
+}
+
+/// `plan.svg` and `plan.geojson` of a fleet plan (when the scenario has
+/// coordinates): the walks on each truck type's own streets, the way to a
+/// dump site and back marked, yards and dump sites labelled.
+fn fleet_maps(inst: &Instance, plan: &FleetPlan) -> Result<Vec<OutputFile>, AppError> {
+    let tables = Tables::new(inst).map_err(AppError::Distances)?;
+    let rows = fleet_rows(inst, &tables, plan);
+    let mut files = Vec::new();
+    if let Some(g) = fleet_feature_collection(inst, plan, &rows) {
+        files.push(OutputFile {
+            name: "plan.geojson".into(),
+            contents: g,
+        });
+    }
+    if let Some(m) = fleet_map(inst, plan, &rows) {
+        files.push(OutputFile {
+            name: "plan.svg".into(),
+            contents: m,
+        });
+    }
+    Ok(files)
 }
 
 /// The attribution OpenStreetMap's licence asks of anything made from its data.
@@ -450,9 +512,8 @@ fn save_scenario(path: &Path, inst: &Instance) -> Result<(), AppError> {
 
 /// What re-verifying a plan file found.
 pub struct CheckRun {
-    /// The plan as the file states it: stated loads and costs, recomputed
-    /// route times.
-    pub plan: Plan,
+    /// How many trucks the plan uses.
+    pub trucks: usize,
     /// Every problem found, in the words of the sheets (empty when valid).
     pub problems: Vec<String>,
     /// The plan's stated cost with its unit.
@@ -482,14 +543,30 @@ pub fn run_check(
     refuse_swapped(scenario, plan_file)?;
     let inst = load_scenario(scenario, fleet, map)?.instance;
     let (name, text) = arcwright::io::read_text(plan_file).map_err(AppError::Input)?;
+    if json_format(plan_file).as_deref() == Some(FLEET_PLAN_FORMAT) {
+        return check_fleet_file(&inst, &text, &name);
+    }
     let dist = Distances::new(&inst).map_err(AppError::Distances)?;
     let plan = read_plan_as_written(&text, &name, &inst, &dist).map_err(AppError::Input)?;
     let claims = read_plan_claims(&text, &name).map_err(AppError::Input)?;
-    let violations = match check_plan(&inst, &plan) {
-        Err(v) => v,
-        Ok(()) => verify(&inst, &dist, &plan).err().unwrap_or_default(),
-    };
+    let walks = read_walks(&text, &name, &inst).map_err(AppError::Input)?;
+    let mut violations = check_plan(&inst, &plan).err().unwrap_or_default();
+    match &walks {
+        // The walks the file states, checked street by street and turn by turn.
+        Some(w) => violations.extend(check_turn_walks(&inst, &plan, w).err().unwrap_or_default()),
+        None if violations.is_empty() => {
+            violations = verify(&inst, &dist, &plan).err().unwrap_or_default()
+        }
+        None => {}
+    }
     let mut problems = describe_all(&inst, &violations);
+    if walks.is_none() && inst.turn_rules().is_some() {
+        problems.push(
+            "the scenario has turn rules, but the plan file gives no walk (`routes[].walk`): \
+             the streets driven and the turns made cannot be checked"
+                .to_string(),
+        );
+    }
     if let Some(b) = claims.lower_bound {
         let units = inst.units();
         if b > plan.cost {
@@ -504,9 +581,54 @@ pub fn run_check(
     }
     let cost_text = inst.units().cost_text(plan.cost);
     Ok(CheckRun {
-        plan,
+        trucks: plan.routes.len(),
         problems,
         cost_text,
+    })
+}
+
+/// `planner check` of a fleet plan file (routes with tips, truck types,
+/// yards): read as written, checked by the independent fleet checker, the
+/// plan-wide figures it states compared with the routes it lists; every
+/// finding in the words of the fleet sheets.
+fn check_fleet_file(inst: &Instance, text: &str, name: &str) -> Result<CheckRun, AppError> {
+    let written = read_fleet_plan_as_written(text, name, inst).map_err(AppError::Input)?;
+    let plan = &written.plan;
+    let mut problems: Vec<String> = match check_fleet_plan(inst, plan) {
+        Err(v) => v.iter().map(|x| describe_fleet(inst, plan, x)).collect(),
+        Ok(()) => Vec::new(),
+    };
+    let u = inst.units();
+    let (longest, shortest) = plan.shift_spread();
+    let stated = [
+        ("objective", written.objective, plan.objective(inst), true),
+        ("longest shift", written.longest_shift, longest, false),
+        ("shortest shift", written.shortest_shift, shortest, false),
+    ];
+    for (what, s, actual, cost) in stated {
+        if s != actual {
+            let text = |x| if cost { u.cost_text(x) } else { u.time_text(x) };
+            problems.push(format!(
+                "the plan states its {what} as {}, its trucks give {}",
+                text(s),
+                text(actual)
+            ));
+        }
+    }
+    for (what, s, actual) in [
+        ("trips", written.trips, plan.trips()),
+        ("tips", written.tips, plan.tips()),
+    ] {
+        if s != actual {
+            problems.push(format!(
+                "the plan states {s} {what}, its trucks make {actual}"
+            ));
+        }
+    }
+    Ok(CheckRun {
+        trucks: plan.routes.len(),
+        problems,
+        cost_text: u.cost_text(plan.cost),
     })
 }
 
@@ -521,7 +643,10 @@ fn json_format(path: &Path) -> Option<String> {
 /// `planner check PLAN SCENARIO` (the files swapped) is named as such.
 fn refuse_swapped(scenario: &Path, plan_file: &Path) -> Result<(), AppError> {
     let order = "the order is `planner check SCENARIO PLAN`";
-    if json_format(scenario).as_deref() == Some("arcwright-plan") {
+    if matches!(
+        json_format(scenario).as_deref(),
+        Some("arcwright-plan" | FLEET_PLAN_FORMAT)
+    ) {
         return Err(AppError::Usage(format!(
             "{} is a plan file, not a scenario: {order}",
             scenario.display()

@@ -4,7 +4,8 @@
 //! Like [`super::check_plan`] it trusts neither the solver nor
 //! [`crate::paths`]: it runs its own lexicographic Dijkstra search (least
 //! cost, ties least time) on the network each truck type may drive (without
-//! its `no_entry` streets), and recomputes every trip load, the cost (fixed
+//! the streets it may not enter, listed by index or by road class, resolved
+//! here from the street list on its own), and recomputes every trip load, the cost (fixed
 //! cost, per-mille factor rounded up, unload costs), the shift time (with
 //! waiting for dump sites to open and unloading) and every limit from the
 //! instance and its [`crate::model::Operations`] alone.
@@ -98,6 +99,9 @@ pub enum FleetViolation {
         street: usize,
         /// The truck type's name.
         truck_type: String,
+        /// Why: `"no_entry"` (the type may not drive on it) or
+        /// `"no_service"` (it may drive on it but not serve it).
+        list: &'static str,
     },
     /// A task served more than once or not at all.
     ServedTimes {
@@ -218,8 +222,9 @@ impl fmt::Display for FleetViolation {
                 visit,
                 street,
                 truck_type,
+                list,
             } => {
-                write!(f, "route {route}, visit {visit}: truck type `{truck_type}` may not serve street {street}")
+                write!(f, "route {route}, visit {visit}: truck type `{truck_type}` may not serve street {street} (its {list})")
             }
             V::ServedTimes { street, times } => {
                 write!(f, "street {street} is served {times} times, not once")
@@ -282,13 +287,38 @@ impl fmt::Display for FleetViolation {
 
 const INF: Cost = Cost::MAX / 4;
 
-/// Lexicographic (cost, time) Dijkstra from `s` on the network without `banned` links.
-fn dijkstra(inst: &Instance, banned: &[usize], s: usize) -> Vec<(Cost, Cost)> {
+/// Which links a truck type may not enter, and which it may not serve
+/// (entering barred included), per link: from its street lists and road
+/// classes, read here from the street list itself.
+fn barred(inst: &Instance, ty: &TruckType) -> (Vec<bool>, Vec<bool>) {
+    let links = &inst.network().links;
+    let mark = |streets: &[usize], classes: &[String], v: &mut Vec<bool>| {
+        for &i in streets {
+            if let Some(x) = v.get_mut(i) {
+                *x = true;
+            }
+        }
+        for (i, l) in links.iter().enumerate() {
+            if l.class.as_ref().is_some_and(|c| classes.contains(c)) {
+                v[i] = true;
+            }
+        }
+    };
+    let mut entry = vec![false; links.len()];
+    mark(&ty.no_entry, &ty.no_entry_classes, &mut entry);
+    let mut service = entry.clone();
+    mark(&ty.no_service, &ty.no_service_classes, &mut service);
+    (entry, service)
+}
+
+/// Lexicographic (cost, time) Dijkstra from `s` on the network without the
+/// links marked in `banned`.
+fn dijkstra(inst: &Instance, banned: &[bool], s: usize) -> Vec<(Cost, Cost)> {
     let net = inst.network();
     let n = net.junctions.len();
     let mut adj: Vec<Vec<(usize, Cost, Cost)>> = vec![Vec::new(); n];
     for (i, l) in net.links.iter().enumerate() {
-        if banned.contains(&i) {
+        if banned[i] {
             continue;
         }
         let t = l.time.unwrap_or(l.cost);
@@ -392,6 +422,9 @@ struct Walker<'a> {
     inst: &'a Instance,
     ty: &'a TruckType,
     ri: usize,
+    /// Per link: may not be entered; may not be served.
+    no_entry: Vec<bool>,
+    no_service: Vec<bool>,
     /// Shortest paths from the junctions left so far (source, rows).
     memo: Vec<(usize, Vec<(Cost, Cost)>)>,
     at: usize,
@@ -411,8 +444,7 @@ impl Walker<'_> {
         let pos = match self.memo.iter().position(|(s, _)| *s == a) {
             Some(p) => p,
             None => {
-                self.memo
-                    .push((a, dijkstra(self.inst, &self.ty.no_entry, a)));
+                self.memo.push((a, dijkstra(self.inst, &self.no_entry, a)));
                 self.memo.len() - 1
             }
         };
@@ -484,12 +516,17 @@ impl Walker<'_> {
             });
         }
         let ty = self.ty;
-        if ty.no_entry.contains(&task.link) || ty.no_service.contains(&task.link) {
+        if self.no_service[task.link] {
             self.out.push(FleetViolation::TypeMayNotServe {
                 route: self.ri,
                 visit: pos,
                 street: task.link,
                 truck_type: ty.name.clone(),
+                list: if self.no_entry[task.link] {
+                    "no_entry"
+                } else {
+                    "no_service"
+                },
             });
         }
         let (s, e) = match v.dir {
@@ -570,10 +607,13 @@ fn check_route(
     served: &mut [usize],
     out: &mut Vec<FleetViolation>,
 ) {
+    let (no_entry, no_service) = barred(inst, ty);
     let mut w = Walker {
         inst,
         ty,
         ri,
+        no_entry,
+        no_service,
         memo: Vec::new(),
         at: yard,
         time: 0,

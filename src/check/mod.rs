@@ -5,7 +5,10 @@
 //! its own lexicographic Dijkstra search (least cost, ties broken by least
 //! time, the convention documented in [`crate::model::Fleet::shift_limit`]),
 //! and recomputes every load, cost and time from scratch. [`check_walks`]
-//! checks explicit street-by-street walks ([`Step`]s) against the network.
+//! checks explicit street-by-street walks ([`Step`]s) against the network;
+//! [`check_turn_walks`] checks walks that state their turns (plan files of
+//! scenarios with turn rules) turn by turn, with the checker's own turn
+//! table, and their costs against the routes'.
 //!
 //! All problems found are returned, not only the first, as typed
 //! [`Violation`]s. Their fields are 0-based indices, as in [`Plan::routes`],
@@ -60,6 +63,7 @@ use rayon::prelude::*;
 
 use crate::model::{Cost, Dir, Instance};
 use crate::plan::{Plan, Step};
+use crate::turns::{TurnKind, TurnWalk};
 
 mod turns;
 
@@ -141,12 +145,12 @@ pub enum Violation {
     },
     /// A walk makes a turn the scenario's turn rules ban.
     #[error(
-        "walk {route}, step {step}: the turn from {from} into {to} at junction {via} is banned"
+        "Truck {}, step {}: the turn from {from} into {to} at junction {via} is banned", .route + 1, .step + 1
     )]
     BannedTurn {
         /// Walk (route) index.
         route: usize,
-        /// Index of the step the turn leads into.
+        /// Index (0-based) of the step the turn leads into.
         step: usize,
         /// The street arrived on.
         from: String,
@@ -154,6 +158,69 @@ pub enum Violation {
         to: String,
         /// The junction id of the turn.
         via: u64,
+    },
+    /// A walk states a turn of another kind or with another penalty than
+    /// the turn rules give it.
+    #[error(
+        "Truck {}, step {}: the turn from {from} into {to} at junction {via} is stated as `{stated_kind}` costing {stated}, but the turn rules make it `{actual_kind}` costing {actual}",
+        .route + 1, .step + 1
+    )]
+    WrongTurn {
+        /// Walk (route) index.
+        route: usize,
+        /// Index (0-based) of the step the turn leads into.
+        step: usize,
+        /// The street arrived on.
+        from: String,
+        /// The street turned into.
+        to: String,
+        /// The junction id of the turn.
+        via: u64,
+        /// The kind the walk states.
+        stated_kind: TurnKind,
+        /// The kind of the turn from the street geometry.
+        actual_kind: TurnKind,
+        /// The penalty the walk states.
+        stated: Cost,
+        /// The penalty the turn rules give.
+        actual: Cost,
+    },
+    /// A walk does not state one turn between each two of its steps.
+    #[error("Truck {}: the walk has {steps} steps but states {turns} turns (one fewer than the steps)", .route + 1)]
+    TurnCount {
+        /// Walk (route) index.
+        route: usize,
+        /// Steps of the walk.
+        steps: usize,
+        /// Turns stated.
+        turns: usize,
+    },
+    /// A route's walk, with its turns, does not cost what the route states.
+    #[error("Truck {}: its walk costs {walk} (streets and turns), but the plan states cost {stated}", .route + 1)]
+    WalkCost {
+        /// Route index.
+        route: usize,
+        /// The walk's cost, recomputed.
+        walk: Cost,
+        /// The route's stated cost.
+        stated: Cost,
+    },
+    /// A route's walk serves other streets, or in another order or
+    /// direction, than the route's list of services.
+    #[error("Truck {}: service {} of the walk is not service {} of the route's list", .route + 1, .position + 1, .position + 1)]
+    WalkServices {
+        /// Route index.
+        route: usize,
+        /// Position (0-based) of the first service that differs.
+        position: usize,
+    },
+    /// The number of walks differs from the number of routes.
+    #[error("the plan has {routes} routes but {walks} walks")]
+    WalkCount {
+        /// Routes of the plan.
+        routes: usize,
+        /// Walks given.
+        walks: usize,
     },
     /// No path leads from one junction to the next in a route.
     #[error("Truck {}: no way to drive from junction {from_id} to junction {to_id}", .route + 1)]
@@ -833,4 +900,53 @@ fn step_on_link(inst: &Instance, at: At, s: &Step, out: &mut Vec<Violation>) -> 
         });
     }
     Some(forward)
+}
+
+/// Checks a plan together with the explicit walks its plan file states, one
+/// per route, turns included ([`TurnWalk`]): everything [`check_walks`]
+/// checks on the steps (a walk that does not connect, banned turns, every
+/// street served once, ...), and on top, with the checker's own turn table
+/// (the scenario's turn rules, or free turns without them):
+///
+/// - each stated turn has the kind and the penalty the rules give it
+///   ([`Violation::WrongTurn`]), one turn between each two steps
+///   ([`Violation::TurnCount`]);
+/// - the walk serves the route's services in their order and direction
+///   ([`Violation::WalkServices`]);
+/// - the walk's cost (service and driving cost of its steps plus the
+///   penalties of its turns) is the route's stated cost
+///   ([`Violation::WalkCost`]); one walk per route ([`Violation::WalkCount`]).
+///
+/// It does not check the plan's own figures against the least-cost legs:
+/// [`check_plan`] does.
+///
+/// # Errors
+/// Every [`Violation`] found.
+pub fn check_turn_walks(
+    inst: &Instance,
+    plan: &Plan,
+    walks: &[TurnWalk],
+) -> Result<(), Vec<Violation>> {
+    let steps: Vec<Vec<Step>> = walks.iter().map(|w| w.steps.clone()).collect();
+    let mut out = check_walks(inst, &steps).err().unwrap_or_default();
+    if walks.len() != plan.routes.len() {
+        out.push(Violation::WalkCount {
+            routes: plan.routes.len(),
+            walks: walks.len(),
+        });
+    }
+    let free = crate::turns::TurnRules {
+        u_turns: crate::turns::UTurns::Allowed,
+        obey_restrictions: false,
+        ..crate::turns::TurnRules::default()
+    };
+    let table = turns::Turns::new(inst, inst.turn_rules().unwrap_or(&free));
+    for (r, (w, route)) in walks.iter().zip(&plan.routes).enumerate() {
+        turns::stated_turns(inst, &table, r, w, route, &mut out);
+    }
+    if out.is_empty() {
+        Ok(())
+    } else {
+        Err(out)
+    }
 }

@@ -12,7 +12,7 @@ use std::collections::{BTreeMap, BinaryHeap};
 use super::{Found, Violation};
 use crate::model::{Cost, Dir, Instance};
 use crate::plan::{Route, Step};
-use crate::turns::{turn_kind, TurnKind, TurnRules, UTurns};
+use crate::turns::{turn_kind, TurnKind, TurnRules, TurnWalk, UTurns};
 
 /// A street driven one way: (link, backward?).
 type Drive = (usize, bool);
@@ -42,16 +42,13 @@ impl Turns {
         for &d in &drives {
             leaving.entry(ends(inst, d).0).or_default().push(d);
         }
-        let streets_at = |v: usize| {
-            let mut s: Vec<usize> = (0..net.links.len())
-                .filter(|&i| {
-                    let l = &net.links[i];
-                    l.from != l.to && (l.from == v || l.to == v)
-                })
-                .collect();
-            s.dedup();
-            s.len()
-        };
+        // Streets (loops aside) meeting at each junction, counted once.
+        let mut meeting = vec![0usize; net.junctions.len()];
+        for l in net.links.iter().filter(|l| l.from != l.to) {
+            meeting[l.from] += 1;
+            meeting[l.to] += 1;
+        }
+        let streets_at = |v: usize| meeting[v];
         let mut next = BTreeMap::new();
         for &d in &drives {
             let via = ends(inst, d).1;
@@ -231,6 +228,10 @@ pub(super) fn walk_turns(
     let drive = |s: &Step| (s.link, s.from != net.links[s.link].from);
     let mut total = 0;
     for (k, pair) in walk.windows(2).enumerate() {
+        if pair[0].to != pair[1].from {
+            // Reported as a walk that does not connect.
+            continue;
+        }
         let (a, b) = (drive(&pair[0]), drive(&pair[1]));
         match turns.penalty(a, b) {
             Some(p) => total += p,
@@ -244,4 +245,104 @@ pub(super) fn walk_turns(
         }
     }
     total
+}
+
+/// Whether every step of a walk is a real link driven between its two ends
+/// (otherwise [`super::check_walks`] reports it and nothing more is judged).
+fn steps_on_links(inst: &Instance, walk: &[Step]) -> bool {
+    let links = &inst.network().links;
+    walk.iter().all(|s| {
+        links
+            .get(s.link)
+            .is_some_and(|l| (s.from, s.to) == (l.from, l.to) || (s.from, s.to) == (l.to, l.from))
+    })
+}
+
+/// The stated turns of a walk against the rules, its services against the
+/// route's, and its cost against the route's stated cost.
+pub(super) fn stated_turns(
+    inst: &Instance,
+    turns: &Turns,
+    r: usize,
+    w: &TurnWalk,
+    route: &Route,
+    out: &mut Vec<Violation>,
+) {
+    let net = inst.network();
+    if !steps_on_links(inst, &w.steps) {
+        return;
+    }
+    if w.turns.len() + 1 != w.steps.len().max(1) {
+        out.push(Violation::TurnCount {
+            route: r,
+            steps: w.steps.len(),
+            turns: w.turns.len(),
+        });
+        return;
+    }
+    let drive = |s: &Step| (s.link, s.from != net.links[s.link].from);
+    let mut penalties: Cost = 0;
+    for (k, (pair, stated)) in w.steps.windows(2).zip(&w.turns).enumerate() {
+        if pair[0].to != pair[1].from {
+            continue;
+        }
+        let (a, b) = (drive(&pair[0]), drive(&pair[1]));
+        let Some(actual) = turns.penalty(a, b) else {
+            continue; // a banned turn, reported by check_walks
+        };
+        penalties = penalties.saturating_add(actual);
+        let via = pair[0].to;
+        let kind = turn_kind(net, inst.coordinates(), a.0, via, b.0);
+        if stated.cost != actual || stated.kind != kind {
+            out.push(Violation::WrongTurn {
+                route: r,
+                step: k + 1,
+                from: net.street_label(a.0),
+                to: net.street_label(b.0),
+                via: net.junctions[via].id,
+                stated_kind: stated.kind,
+                actual_kind: kind,
+                stated: stated.cost,
+                actual,
+            });
+        }
+    }
+    // The walk's services against the route's list.
+    let served: Vec<Drive> = w.steps.iter().filter(|s| s.serve).map(drive).collect();
+    let listed: Vec<Option<Drive>> = route
+        .visits
+        .iter()
+        .map(|v| {
+            let t = inst.tasks().get(v.task)?;
+            let l = &net.links[t.link];
+            Some((t.link, v.dir == Dir::Backward && l.from != l.to))
+        })
+        .collect();
+    let n = served.len().max(listed.len());
+    if let Some(position) =
+        (0..n).find(|&i| served.get(i).copied() != listed.get(i).copied().flatten())
+    {
+        out.push(Violation::WalkServices { route: r, position });
+    }
+    // The walk's cost: every step's cost plus the turns' penalties.
+    let mut cost = penalties;
+    for s in &w.steps {
+        let l = &net.links[s.link];
+        let c = if s.serve {
+            match &l.service {
+                Some(sv) => sv.cost,
+                None => return, // reported by check_walks
+            }
+        } else {
+            l.cost
+        };
+        cost = cost.saturating_add(c);
+    }
+    if cost != route.cost {
+        out.push(Violation::WalkCost {
+            route: r,
+            walk: cost,
+            stated: route.cost,
+        });
+    }
 }

@@ -6,6 +6,8 @@
 //!   evaluation;
 //! - [`split`]: the exact split of a giant tour into routes with tips, for
 //!   one truck type or a mixed fleet;
+//! - `route_search`: local search on routes, each move priced by the split's
+//!   inner programme on the routes it touches;
 //! - [`solve`]: the fleet solver ([`FleetSolver`]);
 //! - [`bound`]: lower bounds valid for the features in use.
 //!
@@ -13,6 +15,7 @@
 
 pub mod bound;
 pub mod route;
+mod route_search;
 pub mod solve;
 pub mod split;
 pub mod tables;

@@ -78,7 +78,7 @@ const NONE: u32 = u32::MAX;
 
 /// A partial route after serving a task.
 #[derive(Clone, Copy, Debug)]
-struct Lab {
+pub(super) struct Lab {
     c: Cost,
     t: Cost,
     q: Cost,
@@ -113,6 +113,8 @@ struct RouteDp<'a> {
     labs: Vec<Lab>,
     arena: Vec<Hist>,
     capped: bool,
+    /// Whether label histories are kept (not needed to price a route).
+    record: bool,
 }
 
 impl<'a> RouteDp<'a> {
@@ -124,6 +126,7 @@ impl<'a> RouteDp<'a> {
             labs: Vec::new(),
             arena: Vec::new(),
             capped: false,
+            record: true,
         };
         let tt = &tables.types[k];
         if tt.serves[task] {
@@ -157,19 +160,22 @@ impl<'a> RouteDp<'a> {
         {
             return;
         }
-        lab.id = self.arena.len() as u32;
-        self.arena.push(Hist {
-            prev,
-            dir: lab.dir,
-            tip,
-        });
+        if self.record {
+            lab.id = self.arena.len() as u32;
+            self.arena.push(Hist {
+                prev,
+                dir: lab.dir,
+                tip,
+            });
+        }
         self.labs.push(lab);
     }
 
     /// Drops dominated labels (same direction; `c`, `t` when timed, `q`).
     fn prune(&mut self) {
         let timed = self.tables.timed;
-        self.labs.sort_by_key(|l| (l.dir, l.c, l.q, l.t));
+        self.labs
+            .sort_unstable_by_key(|l| (l.dir, l.c, l.q, l.t, l.id));
         let mut kept: Vec<Lab> = Vec::with_capacity(self.labs.len());
         for l in &self.labs {
             let dominated = kept
@@ -471,20 +477,9 @@ pub fn split_with(
     pieces.reverse();
     let mut routes = Vec::with_capacity(pieces.len());
     for (i, j, e) in pieces {
-        let k = e.k as usize;
-        let mut dp = RouteDp::start(inst, tables, k, tour[i]);
-        for m in i + 1..j {
-            dp.extend(tour[m - 1], tour[m]);
-        }
-        let c = dp
-            .close(tour[j - 1])
-            .into_iter()
-            .find(|c| c.cost == e.cost && c.time == e.time && c.time <= limit)
+        debug_assert!(e.time <= limit);
+        let r = route_of(inst, tables, e.k as usize, &tour[i..j], (e.cost, e.time))
             .expect("the edge's closing is found again");
-        let (visits, tips) = dp.route(tour, i, &c);
-        let r =
-            FleetRoute::new(inst, tables, k, visits, tips).expect("a route of the split evaluates");
-        debug_assert_eq!((r.cost, r.time), (e.cost, e.time));
         routes.push(r);
     }
     let cost = routes.iter().map(|r| r.cost).sum();
@@ -657,4 +652,113 @@ fn outer(tables: &Tables, edges: &[Vec<Edge>], n: usize, limit: Cost) -> (Vec<Ve
     }
     nodes[n].sort_by(|a, b| (a.cost, a.routes, &a.used).cmp(&(b.cost, b.routes, &b.used)));
     (nodes, exact)
+}
+
+/// The labels after each task of a route (no histories), kept so that a
+/// changed route is priced from its first changed task on ([`route_price`]).
+#[derive(Clone, Debug, Default)]
+pub(super) struct Stages {
+    labs: Vec<Vec<Lab>>,
+    capped: bool,
+}
+
+/// The inner programme run on one route: the closings of a route of type
+/// `k` serving `seq` in this order (directions and tips chosen), as
+/// `(cost, time)` pairs not dominated in both, cheapest first (only the
+/// cheapest when times play no role, see the module docs); empty when no
+/// such route keeps the type's limits. The flag is `false` when a label cap
+/// was hit (the front may then miss closings).
+///
+/// `prefix`: the [`Stages`] of a route of the same type whose first `same`
+/// tasks are those of `seq`; the programme then starts after them (the
+/// labels of a stage depend only on the tasks before it). With `keep` the
+/// stages of `seq` are returned too. Costs `O(m · L · 2 · (1 + S))` for the
+/// `m` tasks priced: the exact price of one route, used by the local search
+/// on routes.
+pub(super) fn route_price(
+    inst: &Instance,
+    tables: &Tables,
+    k: usize,
+    seq: &[usize],
+    prefix: Option<(&Stages, usize)>,
+    keep: bool,
+) -> (Vec<(Cost, Cost)>, bool, Option<Stages>) {
+    let Some((&first, _)) = seq.split_first() else {
+        return (vec![(0, 0)], true, keep.then(Stages::default));
+    };
+    let mut stages = Vec::new();
+    let (mut dp, from) = match prefix {
+        Some((st, same)) if same > 0 => {
+            let same = same.min(seq.len()).min(st.labs.len());
+            if keep {
+                stages.extend(st.labs[..same].iter().cloned());
+            }
+            let dp = RouteDp {
+                inst,
+                tables,
+                k,
+                labs: st.labs[same - 1].clone(),
+                arena: Vec::new(),
+                capped: st.capped,
+                record: false,
+            };
+            (dp, same)
+        }
+        _ => {
+            let mut dp = RouteDp::start(inst, tables, k, first);
+            dp.record = false;
+            if keep {
+                stages.push(dp.labs.clone());
+            }
+            (dp, 1)
+        }
+    };
+    for m in from..seq.len() {
+        if dp.labs.is_empty() {
+            return (Vec::new(), !dp.capped, None);
+        }
+        dp.extend(seq[m - 1], seq[m]);
+        if keep {
+            stages.push(dp.labs.clone());
+        }
+    }
+    let front = dp
+        .close(seq[seq.len() - 1])
+        .iter()
+        .map(|c| (c.cost, c.time))
+        .collect();
+    let capped = dp.capped;
+    (
+        front,
+        !capped,
+        keep.then_some(Stages {
+            labs: stages,
+            capped,
+        }),
+    )
+}
+
+/// The route of type `k` serving `seq` in this order whose closing is
+/// `(cost, time)` (one of [`route_price`]'s), with its directions and tips;
+/// `None` when no closing has these values.
+pub(super) fn route_of(
+    inst: &Instance,
+    tables: &Tables,
+    k: usize,
+    seq: &[usize],
+    (cost, time): (Cost, Cost),
+) -> Option<FleetRoute> {
+    let (&first, _) = seq.split_first()?;
+    let mut dp = RouteDp::start(inst, tables, k, first);
+    for w in seq.windows(2) {
+        dp.extend(w[0], w[1]);
+    }
+    let c = dp
+        .close(seq[seq.len() - 1])
+        .into_iter()
+        .find(|c| c.cost == cost && c.time == time)?;
+    let (visits, tips) = dp.route(seq, 0, &c);
+    let r = FleetRoute::new(inst, tables, k, visits, tips).ok()?;
+    debug_assert_eq!((r.cost, r.time), (cost, time));
+    Some(r)
 }

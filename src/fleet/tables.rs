@@ -1,6 +1,6 @@
 //! What the fleet solver needs to know per truck type: its deadhead
-//! distances (on the network without its `no_entry` streets), its yard, and
-//! which streets it may serve.
+//! distances (on the network without the streets it may not enter, by index
+//! or road class), its yard, and which streets it may serve.
 
 use crate::model::{Cost, Dir, DumpSite, Instance, Network, TruckType};
 use crate::paths::{DistanceError, Distances, UNREACHABLE};
@@ -22,7 +22,8 @@ pub struct TypeTable {
 /// evaluation.
 #[derive(Clone, Debug)]
 pub struct Tables {
-    /// One distance table per distinct `no_entry` list.
+    /// One distance table per distinct list of streets barred from entry
+    /// ([`TruckType::no_entry_links`]: by index and by road class).
     pub dists: Vec<Distances>,
     /// The truck types in effect ([`crate::model::Operations::types_of`]).
     pub types: Vec<TypeTable>,
@@ -67,9 +68,8 @@ impl Tables {
         let mut dists = Vec::new();
         let mut tables = Vec::new();
         for ty in types {
-            let mut no_entry = ty.no_entry.clone();
-            no_entry.sort_unstable();
-            no_entry.dedup();
+            let no_entry = ty.no_entry_links(inst.network());
+            let no_service = ty.no_service_links(inst.network());
             let d = match lists.iter().position(|l| *l == no_entry) {
                 Some(d) => d,
                 None => {
@@ -82,11 +82,7 @@ impl Tables {
             let serves = inst
                 .tasks()
                 .iter()
-                .map(|t| {
-                    t.demand <= ty.capacity
-                        && !no_entry.contains(&t.link)
-                        && !ty.no_service.contains(&t.link)
-                })
+                .map(|t| t.demand <= ty.capacity && no_service.binary_search(&t.link).is_err())
                 .collect();
             tables.push(TypeTable {
                 yard: yards[ty.yard].junction,

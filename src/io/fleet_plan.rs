@@ -176,44 +176,8 @@ pub fn write_fleet_plan(inst: &Instance, plan: &FleetPlan) -> String {
 /// cannot be driven by its truck type, or a stated number that differs from
 /// the recomputed one.
 pub fn read_fleet_plan(text: &str, file: &str, inst: &Instance) -> Result<FleetPlan> {
-    let rec: FileRec = serde_json::from_str(text).map_err(|e| {
-        let line = (e.line() > 0).then_some(e.line());
-        Error::parse(
-            file,
-            line,
-            ParseProblem::Json {
-                message: e.to_string(),
-            },
-        )
-    })?;
-    let at = |path: String, problem: ParseProblem| {
-        Error::parse(
-            file,
-            None,
-            ParseProblem::AtPath {
-                path,
-                problem: Box::new(problem),
-            },
-        )
-    };
-    if rec.format != FLEET_PLAN_FORMAT || rec.version != 1 {
-        return Err(at(
-            "format".into(),
-            ParseProblem::Unexpected {
-                expected: "\"arcwright-fleet-plan\", version 1",
-                found: format!("{}, version {}", rec.format, rec.version),
-            },
-        ));
-    }
-    if rec.instance != inst.name {
-        return Err(at(
-            "instance".into(),
-            ParseProblem::WrongInstance {
-                expected: inst.name.clone(),
-                found: rec.instance,
-            },
-        ));
-    }
+    let rec = parse(text, file, inst)?;
+    let at = at_path(file);
     let tables = Tables::new(inst).map_err(|e| {
         at(
             String::new(),
@@ -238,6 +202,145 @@ pub fn read_fleet_plan(text: &str, file: &str, inst: &Instance) -> Result<FleetP
         ));
     }
     Ok(plan)
+}
+
+/// A fleet plan file as written: the routes with their stops resolved and
+/// every number as the file states it, not recomputed (for
+/// [`crate::check::fleet::check_fleet_plan`] to judge), and the plan-wide
+/// figures the file claims.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct WrittenFleetPlan {
+    /// The routes with their stated cost, driven, time and trip loads; the
+    /// plan's stated total cost.
+    pub plan: FleetPlan,
+    /// The stated objective.
+    pub objective: Cost,
+    /// The stated longest shift time.
+    pub longest_shift: Cost,
+    /// The stated shortest shift time.
+    pub shortest_shift: Cost,
+    /// The stated number of trips.
+    pub trips: usize,
+    /// The stated number of tips.
+    pub tips: usize,
+}
+
+/// Reads a fleet plan file for `inst` as written, without recomputing
+/// anything: what `planner check` hands to the checker, so that every wrong
+/// number is listed rather than the first one stopping the read.
+///
+/// # Errors
+///
+/// A parse [`Error`] naming `file` and the JSON path when the file is not a
+/// plan of `inst`: bad JSON or schema, another instance, an unknown truck
+/// type, yard or dump site, or a serve stop that is not a street to serve in
+/// an allowed direction.
+pub fn read_fleet_plan_as_written(
+    text: &str,
+    file: &str,
+    inst: &Instance,
+) -> Result<WrittenFleetPlan> {
+    let rec = parse(text, file, inst)?;
+    let at = at_path(file);
+    let ops = inst.operations();
+    let (types, yards) = (ops.types_of(inst), ops.yards_of(inst));
+    let mut routes = Vec::with_capacity(rec.routes.len());
+    for (ri, r) in rec.routes.iter().enumerate() {
+        let find = |what: &'static str, key: &str, name: &String, pos: Option<usize>| {
+            pos.ok_or_else(|| {
+                at(
+                    format!("routes[{ri}].{key}"),
+                    ParseProblem::UnknownName {
+                        what,
+                        name: name.clone(),
+                    },
+                )
+            })
+        };
+        let truck_type = find(
+            "truck type",
+            "truck_type",
+            &r.truck_type,
+            types.iter().position(|t| t.name == r.truck_type),
+        )?;
+        let yard = find(
+            "yard",
+            "yard",
+            &r.yard,
+            yards.iter().position(|y| y.name == r.yard),
+        )?;
+        let (visits, tips) = read_stops(inst, &at, ri, r)?;
+        routes.push(FleetRoute {
+            truck_type,
+            yard,
+            visits,
+            tips,
+            trip_loads: r.trip_loads.clone(),
+            cost: r.cost,
+            driven: r.driven,
+            time: r.time,
+        });
+    }
+    Ok(WrittenFleetPlan {
+        plan: FleetPlan {
+            routes,
+            cost: rec.cost,
+        },
+        objective: rec.objective,
+        longest_shift: rec.longest_shift,
+        shortest_shift: rec.shortest_shift,
+        trips: rec.trips,
+        tips: rec.tips,
+    })
+}
+
+/// Errors at a JSON path of `file`.
+fn at_path(file: &str) -> impl Fn(String, ParseProblem) -> Error + '_ {
+    move |path: String, problem: ParseProblem| {
+        Error::parse(
+            file,
+            None,
+            ParseProblem::AtPath {
+                path,
+                problem: Box::new(problem),
+            },
+        )
+    }
+}
+
+/// The file's record, checked to be a fleet plan (format, version) of `inst`.
+fn parse(text: &str, file: &str, inst: &Instance) -> Result<FileRec> {
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let rec: FileRec = serde_json::from_str(text).map_err(|e| {
+        let line = (e.line() > 0).then_some(e.line());
+        Error::parse(
+            file,
+            line,
+            ParseProblem::Json {
+                message: e.to_string(),
+            },
+        )
+    })?;
+    let at = at_path(file);
+    if rec.format != FLEET_PLAN_FORMAT || rec.version != 1 {
+        return Err(at(
+            "format".into(),
+            ParseProblem::Unexpected {
+                expected: "\"arcwright-fleet-plan\", version 1",
+                found: format!("{}, version {}", rec.format, rec.version),
+            },
+        ));
+    }
+    if rec.instance != inst.name {
+        return Err(at(
+            "instance".into(),
+            ParseProblem::WrongInstance {
+                expected: inst.name.clone(),
+                found: rec.instance,
+            },
+        ));
+    }
+    Ok(rec)
 }
 
 /// Rebuilds route `ri` of a plan file and compares its stated numbers.

@@ -8,7 +8,9 @@ pub mod reference;
 pub mod scenario;
 
 pub use dat::{read_dat, read_dat_file};
-pub use fleet_plan::{read_fleet_plan, write_fleet_plan};
+pub use fleet_plan::{
+    read_fleet_plan, read_fleet_plan_as_written, write_fleet_plan, WrittenFleetPlan,
+};
 pub use plan_json::{read_plan, read_plan_as_written, write_plan};
 pub use reference::{parse_reference, read_reference, Reference};
 pub use scenario::{read_scenario, read_scenario_file, write_scenario};

@@ -49,6 +49,23 @@
 //!   undeclared; `run` (optional, [`RunSettings`]): how the plan was made.
 //!   Readers ignore `units`, `run` and route `length`.
 //!
+//! - `walk` (optional, per route; written when the scenario has turn rules,
+//!   [`PlanRecord::walks`]): every street driven, in order, served and
+//!   deadhead, as `{"link": 242, "from": 164, "to": 165, "serve": true,
+//!   "turn": "right", "turn_cost": 0}`: `link`, `from`, `to` as in
+//!   `services` (junction ids, the direction driven), `serve` whether the
+//!   street is served on this step, and from the second step on the turn
+//!   made into it (`straight`, `left`, `right`, `u_turn`, `unknown` without
+//!   coordinates) and its penalty. The route's `cost` is the sum of its
+//!   steps' costs (service cost when served, driving cost otherwise) plus
+//!   the `turn_cost`s, so a tool can verify turns and costs along the walk
+//!   without computing paths. [`read_walks`] reads it for
+//!   [`crate::check::check_turn_walks`]; the two plan readers below ignore it.
+//!
+//! With turn rules the routes' figures are recomputed on the turn-aware
+//! network ([`crate::turns::route_with_turns`]), without them from the
+//! shortest deadhead paths.
+//!
 //! Two readers; errors of both name the file and, for services, the line.
 //!
 //! - [`read_plan`] (and [`read_plan_with`]) is strict: it checks that every
@@ -71,7 +88,8 @@ use super::scenario::{line_of, Seg};
 use crate::error::{Error, ParseProblem, Result};
 use crate::model::{Cost, Dir, Instance};
 use crate::paths::Distances;
-use crate::plan::{totals, Plan, Route, Totals, Visit};
+use crate::plan::{totals, Plan, Route, Step, Totals, Visit};
+use crate::turns::{route_with_turns, Turn, TurnKind, TurnTable, TurnWalk};
 
 /// How a plan was made, recorded in the plan file (`run`). No clock
 /// readings: a run with an iteration limit writes the same file every time.
@@ -109,6 +127,10 @@ pub struct PlanRecord {
     pub route_lengths: Option<Vec<Cost>>,
     /// How the plan was made (`run`).
     pub run: Option<RunSettings>,
+    /// The explicit walk of each route with its turns (`routes[i].walk`),
+    /// written when given; the planner gives it when the scenario has turn
+    /// rules ([`crate::turns::walks_with_turns`]).
+    pub walks: Option<Vec<TurnWalk>>,
 }
 
 /// Writes a plan as JSON (schema in the module docs), with the lower bound
@@ -178,10 +200,36 @@ pub fn write_plan_record(inst: &Instance, plan: &Plan, record: &PlanRecord) -> S
                 net.junctions[a].id, net.junctions[b].id, t.link
             ));
         }
-        s.push_str("\n      ]\n    }");
+        s.push_str("\n      ]");
+        if let Some(w) = record.walks.as_ref().and_then(|w| w.get(ri)) {
+            write_walk(&mut s, inst, w);
+        }
+        s.push_str("\n    }");
     }
     s.push_str("\n  ]\n}\n");
     s
+}
+
+/// The `walk` array of one route: one step per line.
+fn write_walk(s: &mut String, inst: &Instance, w: &TurnWalk) {
+    let net = inst.network();
+    s.push_str(",\n      \"walk\": [");
+    for (k, st) in w.steps.iter().enumerate() {
+        s.push_str(if k == 0 { "\n" } else { ",\n" });
+        s.push_str(&format!(
+            "        {{\"link\": {}, \"from\": {}, \"to\": {}, \"serve\": {}",
+            st.link, net.junctions[st.from].id, net.junctions[st.to].id, st.serve
+        ));
+        if let Some(t) = k.checked_sub(1).and_then(|i| w.turns.get(i)) {
+            s.push_str(&format!(
+                ", \"turn\": {}, \"turn_cost\": {}",
+                json_str(&t.kind),
+                t.cost
+            ));
+        }
+        s.push('}');
+    }
+    s.push_str("\n      ]");
 }
 
 #[derive(Deserialize)]
@@ -192,11 +240,22 @@ struct FileService {
 }
 
 #[derive(Deserialize)]
+struct FileStep {
+    link: i64,
+    from: u64,
+    to: u64,
+    serve: bool,
+    turn: Option<TurnKind>,
+    turn_cost: Option<Cost>,
+}
+
+#[derive(Deserialize)]
 struct FileRoute {
     load: Option<Cost>,
     cost: Option<Cost>,
     time: Option<Cost>,
     services: Vec<FileService>,
+    walk: Option<Vec<FileStep>>,
 }
 
 #[derive(Deserialize)]
@@ -243,13 +302,6 @@ pub fn read_plan_claims(text: &str, file: &str) -> Result<PlanClaims> {
 fn parse_json(text: &str, file: &str) -> Result<FilePlan> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     serde_json::from_str(text).map_err(|e| Error::json(file, &e))
-}
-
-/// Line of the `k`-th (0-based) `"link"` key in the text: the line of the
-/// `k`-th service in documents that use `link` only as the service key.
-fn service_line(text: &str, k: usize) -> Option<usize> {
-    let (idx, _) = text.match_indices("\"link\"").nth(k)?;
-    Some(text[..idx].bytes().filter(|&b| b == b'\n').count() + 1)
 }
 
 /// Reads a plan file written by [`write_plan`] (or by any tool following the
@@ -347,17 +399,21 @@ fn services(
         task_of[t.link] = i;
     }
     let mut served = vec![false; inst.tasks().len()];
-    let mut global = 0usize;
     let mut routes = Vec::new();
     for (ri, r) in fp.routes.iter().enumerate() {
         let mut visits = Vec::new();
         for (k, s) in r.services.iter().enumerate() {
-            let line = service_line(text, global);
-            global += 1;
+            let path = [
+                Seg::Key("routes"),
+                Seg::Index(ri),
+                Seg::Key("services"),
+                Seg::Index(k),
+            ];
+            let line = || line_of(text, &path);
             let bad = || {
                 Error::parse(
                     file,
-                    line,
+                    line(),
                     ParseProblem::NotARequiredLink {
                         route: ri,
                         position: k,
@@ -386,7 +442,7 @@ fn services(
             if strict && served[ti] {
                 return Err(Error::parse(
                     file,
-                    line,
+                    line(),
                     ParseProblem::ServedTwice {
                         route: ri,
                         position: k,
@@ -409,7 +465,18 @@ fn services(
 /// As [`read_plan`] (apart from computing the distances).
 pub fn read_plan_with(text: &str, file: &str, inst: &Instance, dist: &Distances) -> Result<Plan> {
     let (fp, routes) = parse(text, file, inst, true)?;
-    let plan = Plan::from_visits(inst, dist, routes.clone());
+    let plan = match turn_table(inst, file)? {
+        Some(table) => {
+            let routes: Vec<Route> = routes
+                .into_iter()
+                .filter(|r| !r.is_empty())
+                .map(|v| route_with_turns(inst, &table, v))
+                .collect();
+            let cost = routes.iter().map(|r| r.cost).sum();
+            Plan { routes, cost }
+        }
+        None => Plan::from_visits(inst, dist, routes),
+    };
     // Stated values must match (empty routes are dropped by from_visits).
     let mut pi = 0;
     for (ri, r) in fp.routes.iter().enumerate() {
@@ -500,13 +567,26 @@ pub fn read_plan_as_written(
     dist: &Distances,
 ) -> Result<Plan> {
     let (fp, visits) = parse(text, file, inst, false)?;
+    let table = turn_table(inst, file)?;
     let mut computed_total: Cost = 0;
     let routes: Vec<Route> = fp
         .routes
         .iter()
         .zip(visits)
         .map(|(r, visits)| {
-            let Totals { load, cost, time } = totals(inst, dist, &visits);
+            let Totals { load, cost, time } = match &table {
+                // Visits as written may name a task twice or against its
+                // direction: price what can be priced.
+                Some(t) if visits.iter().all(|v| v.task < inst.tasks().len()) => {
+                    let x = route_with_turns(inst, t, visits.clone());
+                    Totals {
+                        load: x.load,
+                        cost: x.cost,
+                        time: x.time,
+                    }
+                }
+                _ => totals(inst, dist, &visits),
+            };
             computed_total = computed_total.saturating_add(cost);
             Route {
                 visits,
@@ -520,4 +600,143 @@ pub fn read_plan_as_written(
         routes,
         cost: fp.cost.unwrap_or(computed_total),
     })
+}
+
+/// The turn table of an instance with turn rules (`None` without).
+fn turn_table(inst: &Instance, file: &str) -> Result<Option<TurnTable>> {
+    let Some(rules) = inst.turn_rules() else {
+        return Ok(None);
+    };
+    TurnTable::new(inst, rules).map(Some).map_err(|e| {
+        Error::parse(
+            file,
+            None,
+            ParseProblem::Json {
+                message: format!(
+                    "the scenario's turn rules cannot be used: {}",
+                    e.iter()
+                        .map(|x| x.to_string())
+                        .collect::<Vec<_>>()
+                        .join("; ")
+                ),
+            },
+        )
+    })
+}
+
+/// Reads the explicit walks of a plan file (`routes[i].walk`, one per
+/// route, every step with its turn), for [`crate::check::check_turn_walks`];
+/// `Ok(None)` when no route has a walk. Steps are kept as written (a walk
+/// that does not connect, a wrong turn or cost is for the checker to find);
+/// junction ids are turned into junction indices.
+///
+/// ```
+/// use arcwright::io::plan_json::{read_walks, write_plan_record, PlanRecord};
+/// use arcwright::model::{Dir, Fleet, Instance, Network};
+/// use arcwright::plan::{Plan, Visit};
+/// use arcwright::turns::{route_with_turns, walks_with_turns, TurnRules, TurnTable};
+///
+/// let mut net = Network::with_junctions(3);
+/// net.add_edge(0, 1, 5);
+/// net.add_required_edge(1, 2, 4, 1);
+/// let inst = Instance::new("spur", net, Fleet::with_capacity(9), 0).unwrap()
+///     .with_turn_rules(Some(TurnRules::default())).unwrap();
+/// let table = TurnTable::new(&inst, inst.turn_rules().unwrap()).unwrap();
+/// let route = route_with_turns(&inst, &table, vec![Visit::new(0, Dir::Forward)]);
+/// let plan = Plan { cost: route.cost, routes: vec![route] };
+/// let walks = walks_with_turns(&inst, &table, &plan).unwrap();
+/// let record = PlanRecord { walks: Some(walks.clone()), ..PlanRecord::default() };
+/// let text = write_plan_record(&inst, &plan, &record);
+/// assert_eq!(read_walks(&text, "plan.json", &inst).unwrap(), Some(walks));
+/// ```
+///
+/// # Errors
+///
+/// [`Error::Parse`] naming `file` and the line for: JSON syntax or schema
+/// errors; some routes with a walk and others without; a negative `link`;
+/// a junction id no junction has; a step after the first without its
+/// `turn` and `turn_cost`.
+pub fn read_walks(text: &str, file: &str, inst: &Instance) -> Result<Option<Vec<TurnWalk>>> {
+    let fp = parse_json(text, file)?;
+    if fp.routes.iter().all(|r| r.walk.is_none()) {
+        return Ok(None);
+    }
+    let net = inst.network();
+    let index: std::collections::HashMap<u64, usize> = net
+        .junctions
+        .iter()
+        .enumerate()
+        .map(|(i, j)| (j.id, i))
+        .collect();
+    let mut walks = Vec::with_capacity(fp.routes.len());
+    for (ri, r) in fp.routes.iter().enumerate() {
+        let at = |k: Option<usize>, key: Option<&'static str>, problem: ParseProblem| {
+            let mut path = vec![Seg::Key("routes"), Seg::Index(ri), Seg::Key("walk")];
+            let mut shown = format!("routes[{ri}].walk");
+            if let Some(k) = k {
+                path.push(Seg::Index(k));
+                shown.push_str(&format!("[{k}]"));
+            }
+            if let Some(key) = key {
+                shown.push_str(&format!(".{key}"));
+            }
+            let line = line_of(text, &path).or_else(|| line_of(text, &path[..2]));
+            Error::parse(
+                file,
+                line,
+                ParseProblem::AtPath {
+                    path: shown,
+                    problem: Box::new(problem),
+                },
+            )
+        };
+        let Some(steps) = &r.walk else {
+            return Err(at(
+                None,
+                None,
+                ParseProblem::Json {
+                    message: "this route has no walk, but other routes have one: give every route its walk".into(),
+                },
+            ));
+        };
+        let mut w = TurnWalk::default();
+        for (k, st) in steps.iter().enumerate() {
+            let junction = |id: u64, key| {
+                index
+                    .get(&id)
+                    .copied()
+                    .ok_or_else(|| at(Some(k), Some(key), ParseProblem::UnknownJunction { id }))
+            };
+            let link = usize::try_from(st.link).map_err(|_| {
+                at(
+                    Some(k),
+                    Some("link"),
+                    ParseProblem::Negative {
+                        what: "street number (`link`)",
+                        value: st.link,
+                    },
+                )
+            })?;
+            w.steps.push(Step {
+                link,
+                from: junction(st.from, "from")?,
+                to: junction(st.to, "to")?,
+                serve: st.serve,
+            });
+            if k > 0 {
+                let (Some(kind), Some(cost)) = (st.turn, st.turn_cost) else {
+                    return Err(at(
+                        Some(k),
+                        None,
+                        ParseProblem::Json {
+                            message: "every step after the first states the turn into it: `turn` and `turn_cost`".into(),
+                        },
+                    ));
+                };
+                w.turns.push(Turn { kind, cost });
+            }
+        }
+        walks.push(w);
+    }
+    Ok(Some(walks))
 }

@@ -16,7 +16,7 @@
 //! | `yards` | array, optional | several yards: `{ "name": string, "junction": id }`; the first is the depot of the plain model |
 //! | `dump_sites` | array, optional | `{ "name": string?, "junction": id, "unload_time": integer, "unload_cost": integer?, "opens": integer?, "closes": integer? }` (unload cost default 0; opening hours in time units since the start of the shift, default always open) |
 //! | `return_empty` | bool, optional | with dump sites: whether a truck must tip before returning to its yard (default `true`) |
-//! | `truck_types` | array, optional | `{ "name": string, "count": integer?, "capacity": integer, "shift_limit": integer?, "yard": string?, "fixed_cost": integer?, "cost_per_mille": integer?, "no_entry": [street index]?, "no_service": [street index]? }` |
+//! | `truck_types` | array, optional | `{ "name": string, "count": integer?, "capacity": integer, "shift_limit": integer?, "yard": string?, "fixed_cost": integer?, "cost_per_mille": integer?, "no_entry": [street index or road class]?, "no_service": [street index or road class]? }` |
 //! | `balance` | object, optional | `{ "longest_shift_weight": integer }`: minimise total cost + weight × longest shift time (default: least total cost) |
 //!
 //! The dump sites, yards, truck types and balance setting are described in
@@ -27,8 +27,12 @@
 //! most one); `fixed_cost` (default 0) is paid per truck used,
 //! `cost_per_mille` (default 1000) scales the cost of every street the truck
 //! drives, in thousandths; `no_entry` and `no_service` list streets by their
-//! position in `streets` (0-based) that the type must not drive on, or must
-//! not serve. With `truck_types`, the plain model's fleet (what
+//! position in `streets` (0-based, as integers) and road classes (as strings,
+//! the streets' `class` values, such as `"primary"`) that the type must not
+//! drive on, or must not serve (`"no_entry": [12, "living_street"]`). A
+//! street without a `class` is barred only by its position; a class that no
+//! street has and that is not an OpenStreetMap `highway=*` road class is an
+//! error (a misspelling). With `truck_types`, the plain model's fleet (what
 //! [`Instance::fleet`] returns) has the largest capacity, no shift limit and
 //! as many trucks as all types together. Files without these fields read as
 //! before, with every feature off.
@@ -209,9 +213,80 @@ struct TruckTypeRec {
     #[serde(default = "per_mille_one", skip_serializing_if = "is_per_mille_one")]
     cost_per_mille: i64,
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    no_entry: Vec<usize>,
+    no_entry: Vec<StreetOrClass>,
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    no_service: Vec<usize>,
+    no_service: Vec<StreetOrClass>,
+}
+
+/// An entry of a truck type's `no_entry` / `no_service`: a street by its
+/// position in `streets`, or a road class by name.
+#[derive(Clone, Debug, PartialEq, Eq)]
+enum StreetOrClass {
+    Street(usize),
+    Class(String),
+}
+
+impl Serialize for StreetOrClass {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> std::result::Result<S::Ok, S::Error> {
+        match self {
+            StreetOrClass::Street(i) => s.serialize_u64(*i as u64),
+            StreetOrClass::Class(c) => s.serialize_str(c),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for StreetOrClass {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> std::result::Result<Self, D::Error> {
+        struct V;
+        impl serde::de::Visitor<'_> for V {
+            type Value = StreetOrClass;
+            fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+                f.write_str("a street (its position in `streets`, from 0) or a road class name")
+            }
+            fn visit_u64<E: serde::de::Error>(self, v: u64) -> std::result::Result<Self::Value, E> {
+                usize::try_from(v)
+                    .map(StreetOrClass::Street)
+                    .map_err(|_| E::custom(format!("street {v} is out of range")))
+            }
+            fn visit_i64<E: serde::de::Error>(self, v: i64) -> std::result::Result<Self::Value, E> {
+                u64::try_from(v)
+                    .map_err(|_| E::invalid_value(serde::de::Unexpected::Signed(v), &self))
+                    .and_then(|v| self.visit_u64(v))
+            }
+            fn visit_str<E: serde::de::Error>(
+                self,
+                v: &str,
+            ) -> std::result::Result<Self::Value, E> {
+                if v.trim().is_empty() {
+                    return Err(E::invalid_value(serde::de::Unexpected::Str(v), &self));
+                }
+                Ok(StreetOrClass::Class(v.to_string()))
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+/// The streets and the road classes of a `no_entry` / `no_service` list.
+fn split_list(list: &[StreetOrClass]) -> (Vec<usize>, Vec<String>) {
+    let mut streets = Vec::new();
+    let mut classes = Vec::new();
+    for x in list {
+        match x {
+            StreetOrClass::Street(i) => streets.push(*i),
+            StreetOrClass::Class(c) => classes.push(c.clone()),
+        }
+    }
+    (streets, classes)
+}
+
+/// A `no_entry` / `no_service` list from streets and road classes.
+fn join_list(streets: &[usize], classes: &[String]) -> Vec<StreetOrClass> {
+    streets
+        .iter()
+        .map(|&i| StreetOrClass::Street(i))
+        .chain(classes.iter().map(|c| StreetOrClass::Class(c.clone())))
+        .collect()
 }
 
 #[derive(Serialize, Deserialize)]
@@ -1064,6 +1139,8 @@ fn read_truck_types(rec: &FileRec, at: &At, limit: &Limit) -> Result<Vec<TruckTy
                     )
                 })?,
         };
+        let (no_entry, no_entry_classes) = split_list(&t.no_entry);
+        let (no_service, no_service_classes) = split_list(&t.no_service);
         truck_types.push(TruckType {
             name: t.name.clone(),
             count: t.count,
@@ -1072,8 +1149,10 @@ fn read_truck_types(rec: &FileRec, at: &At, limit: &Limit) -> Result<Vec<TruckTy
             yard,
             fixed_cost: t.fixed_cost,
             cost_per_mille: t.cost_per_mille,
-            no_entry: t.no_entry.clone(),
-            no_service: t.no_service.clone(),
+            no_entry,
+            no_service,
+            no_entry_classes,
+            no_service_classes,
         });
     }
     Ok(truck_types)
@@ -1100,7 +1179,8 @@ fn operations_error_path(
             _ => None,
         },
         OperationsError::BadHours { .. } => Some("closes"),
-        OperationsError::NoSuchStreet { list, .. } => Some(*list),
+        OperationsError::NoSuchStreet { list, .. }
+        | OperationsError::UnknownRoadClass { list, .. } => Some(*list),
         _ => None,
     };
     let mut p = match e.element() {
@@ -1353,8 +1433,8 @@ fn truck_type_recs(inst: &Instance) -> Vec<TruckTypeRec> {
             yard: ops.yards.get(t.yard).map(|y| y.name.clone()),
             fixed_cost: t.fixed_cost,
             cost_per_mille: t.cost_per_mille,
-            no_entry: t.no_entry.clone(),
-            no_service: t.no_service.clone(),
+            no_entry: join_list(&t.no_entry, &t.no_entry_classes),
+            no_service: join_list(&t.no_service, &t.no_service_classes),
         })
         .collect()
 }

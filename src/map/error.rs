@@ -144,6 +144,15 @@ pub enum MapError {
         /// The text given.
         text: String,
     },
+    /// The profile's turn rules cannot be used on the built network (a
+    /// street to serve that can only be left by a banned turn, ...).
+    #[error("{file}: the profile's turn rules cannot be used: {}", .problems.join("; "))]
+    TurnRules {
+        /// The map file.
+        file: String,
+        /// Every problem, with streets named.
+        problems: Vec<String>,
+    },
     /// The built network does not make a valid scenario.
     #[error("{file}: {problem}")]
     Model {

@@ -253,8 +253,9 @@ pub fn build_scenario(map: &RawMap, options: &MapOptions) -> Result<MapScenario,
         .trim_end_matches(".geojson")
         .trim_end_matches(".xml")
         .to_string();
-    let (instance, street_of_link) = to_instance(&graph, &options.profile, &name, &map.file)?;
-    let report = BuildReport::new(
+    let (instance, street_of_link, cut_off) =
+        to_instance(&graph, &options.profile, &name, &map.file)?;
+    let mut report = BuildReport::new(
         &map.file,
         map.format,
         &options.profile.name,
@@ -262,6 +263,7 @@ pub fn build_scenario(map: &RawMap, options: &MapOptions) -> Result<MapScenario,
         &instance,
         &street_of_link,
     );
+    report.cut_off_by_turns = cut_off;
     Ok(MapScenario {
         instance,
         graph,

@@ -24,6 +24,20 @@
 //! service     = { drive_kmh = 15, serve = "no" }
 //! ```
 //!
+//! The optional `[turn_rules]` table gives the built scenario turn rules,
+//! with the fields and defaults of the scenario's `turn_rules` object
+//! ([`crate::turns::TurnRules`]; penalties in metres, the maps' cost unit):
+//!
+//! ```toml
+//! [turn_rules]
+//! u_turns = "dead_ends_only"            # or "allowed"
+//! driving_side = "right"                # or "left"
+//! obey_restrictions = true              # the map's no_* / only_* turn restrictions
+//! penalties = { left = 30, u_turn = 60 }
+//! ```
+//!
+//! Without it the trucks turn freely (the built-in profiles have none).
+//!
 //! `serve` is `"no"` (driven, not served), `"both_sides"` (both kerbs in one
 //! pass: one required street, either direction on a two-way street) or
 //! `"each_side"` (one kerb per pass: two required streets, one each way on a
@@ -48,6 +62,7 @@ use toml::Spanned;
 
 use super::error::MapError;
 use crate::model::Cost;
+use crate::turns::TurnRules;
 
 /// Road classes a profile may name: the OpenStreetMap `highway=*` values of
 /// ways a vehicle can use. Anything else in a profile is an error.
@@ -142,6 +157,8 @@ struct ProfileRec {
     truck: TruckDefaults,
     demand: DemandRec,
     classes: BTreeMap<Spanned<String>, Spanned<ClassRule>>,
+    #[serde(default)]
+    turn_rules: Option<TurnRules>,
 }
 
 /// A service profile (see the module documentation for the file format).
@@ -167,6 +184,10 @@ pub struct Profile {
     pub address_snap_m: u32,
     /// The road classes the trucks may drive, with their rules.
     pub classes: BTreeMap<String, ClassRule>,
+    /// Turn rules for the built scenario (`[turn_rules]`; `None`: trucks
+    /// turn freely, as without the table). With `obey_restrictions` (the
+    /// default) the map's own turn restrictions are obeyed.
+    pub turn_rules: Option<TurnRules>,
 }
 
 const REFUSE: &str = include_str!("profiles/refuse.toml");
@@ -294,6 +315,7 @@ impl Profile {
             demand_per_address: rec.demand.per_address,
             address_snap_m: rec.demand.address_snap_m,
             classes,
+            turn_rules: rec.turn_rules,
         })
     }
 }

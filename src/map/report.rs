@@ -51,6 +51,9 @@ pub struct BuildReport {
     /// Address points given to a served street, when demand is counted by
     /// address.
     pub addresses_snapped: Option<usize>,
+    /// With the profile's turn rules: streets to serve that the rules (and
+    /// the map's restrictions) cut off from the yard, driven but not served.
+    pub cut_off_by_turns: Vec<String>,
 }
 
 impl BuildReport {
@@ -93,6 +96,7 @@ impl BuildReport {
             long_cuts: graph.long_cuts,
             addresses_read: graph.addresses_read,
             addresses_snapped: graph.addresses_snapped,
+            cut_off_by_turns: Vec::new(),
         }
     }
 }
@@ -161,6 +165,21 @@ impl fmt::Display for BuildReport {
                 } else {
                     format!(", such as {}", self.dropped.names.join(", "))
                 }
+            )?;
+        }
+        if !self.cut_off_by_turns.is_empty() {
+            let n = self.cut_off_by_turns.len();
+            let shown: Vec<&str> = self
+                .cut_off_by_turns
+                .iter()
+                .take(5)
+                .map(String::as_str)
+                .collect();
+            writeln!(
+                f,
+                "  not served: {n} streets that the turn rules and the map's restrictions cut off from the yard ({}{})",
+                shown.join(", "),
+                if n > 5 { ", ..." } else { "" }
             )?;
         }
         write!(f, "  yard: {}", self.yard)

@@ -8,6 +8,7 @@ use crate::model::{
     Coordinates, Cost, Fleet, Instance, Junction, Link, ModelError, Network, ServeDirection,
     ServiceSpec, TurnRestriction, Units,
 };
+use crate::turns::TurnTable;
 
 /// Whole metres (the unit of costs).
 fn cost_m(length_m: f64) -> Cost {
@@ -95,7 +96,9 @@ fn links_of(s: &Street, profile: &Profile, by_address: bool) -> Vec<Link> {
 }
 
 /// The instance of a street graph under a profile, with the street of each
-/// link (index into `graph.streets`).
+/// link (index into `graph.streets`) and, when the profile has turn rules,
+/// the streets to serve that the rules cut off from the yard
+/// ([`crate::turns::unservable`]): they are driven, not served.
 ///
 /// # Errors
 ///
@@ -106,7 +109,7 @@ pub fn to_instance(
     profile: &Profile,
     name: &str,
     file: &str,
-) -> Result<(Instance, Vec<usize>), MapError> {
+) -> Result<(Instance, Vec<usize>, Vec<String>), MapError> {
     let junctions = graph
         .junctions
         .iter()
@@ -161,6 +164,15 @@ pub fn to_instance(
         shift_limit: profile.truck.shift,
         max_vehicles: profile.truck.max_trucks,
     };
+    let mut network = network;
+    let cut_off = match &profile.turn_rules {
+        Some(rules) => {
+            let plain = Instance::new(name, network.clone(), fleet.clone(), graph.yard.0)
+                .map_err(|e| model_error(graph, &street_of, file, e))?;
+            unserve_cut_off(&plain, rules, &mut network, file)?
+        }
+        None => Vec::new(),
+    };
     let inst = Instance::new(name, network, fleet, graph.yard.0)
         .map_err(|e| model_error(graph, &street_of, file, e))?;
     let units = Units {
@@ -176,8 +188,36 @@ pub fn to_instance(
             file: file.to_string(),
             element: Element::Node(graph.junctions[j].node),
             problem: e.to_string(),
+        })?
+        .with_turn_rules(profile.turn_rules)
+        .map_err(|all| MapError::TurnRules {
+            file: file.to_string(),
+            problems: all.iter().map(|e| e.to_string()).collect(),
         })?;
-    Ok((inst, street_of))
+    Ok((inst, street_of, cut_off))
+}
+
+/// Streets the turn rules cut off from the yard ([`crate::turns::unservable`])
+/// made driven, not served, in `network`; returns their labels.
+fn unserve_cut_off(
+    plain: &Instance,
+    rules: &crate::turns::TurnRules,
+    network: &mut Network,
+    file: &str,
+) -> Result<Vec<String>, MapError> {
+    let table =
+        TurnTable::without_ways_out_check(plain, rules).map_err(|all| MapError::TurnRules {
+            file: file.to_string(),
+            problems: all.iter().map(|e| e.to_string()).collect(),
+        })?;
+    Ok(crate::turns::unservable(plain, &table)
+        .into_iter()
+        .map(|t| {
+            let link = plain.tasks()[t].link;
+            network.links[link].service = None;
+            network.street_label(link)
+        })
+        .collect())
 }
 
 fn model_error(graph: &StreetGraph, street_of: &[usize], file: &str, e: ModelError) -> MapError {

@@ -25,7 +25,7 @@ pub use fleet::Fleet;
 pub use instance::{Dir, Instance, ModelError, Reach, Task, MAX_PROBLEMS};
 pub use network::{Junction, Link, Network, ServeDirection, ServiceSpec, TurnRestriction};
 pub use operations::{
-    Balance, DumpSite, Element, Hours, Operations, OperationsError, TruckType, Yard,
+    known_class, Balance, DumpSite, Element, Hours, Operations, OperationsError, TruckType, Yard,
 };
 pub use units::{Units, MAX_UNIT_LEN};
 

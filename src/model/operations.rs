@@ -35,13 +35,17 @@
 //! (`no_entry`: it may neither drive nor serve them) and streets it must not
 //! serve (`no_service`: it may still drive along them). Streets are given by
 //! link index ([`crate::model::Network::links`], the position in the
-//! scenario's `streets` array).
+//! scenario's `streets` array) or by road class ([`crate::model::Link::class`],
+//! the OpenStreetMap `highway=*` value on maps): `no_entry_classes` and
+//! `no_service_classes` bar every street of those classes. A street without
+//! a class is never barred by a class. [`TruckType::no_entry_links`] and
+//! [`TruckType::no_service_links`] give the streets barred either way.
 
 use std::collections::VecDeque;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Cost, Dir, Instance};
+use super::{Cost, Dir, Instance, Network};
 
 /// A place where trucks unload: a landfill, a transfer station, an
 /// incinerator.
@@ -107,6 +111,84 @@ pub struct TruckType {
     pub no_entry: Vec<usize>,
     /// Links the type must not serve (it may drive along them).
     pub no_service: Vec<usize>,
+    /// Road classes the type must not drive on (nor serve): every link whose
+    /// [`crate::model::Link::class`] is one of them.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub no_entry_classes: Vec<String>,
+    /// Road classes the type must not serve (it may drive along them).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub no_service_classes: Vec<String>,
+}
+
+impl TruckType {
+    /// A type of `capacity` from yard 0 with every other setting at its
+    /// default: as many trucks as needed, no shift limit, no fixed cost,
+    /// factor 1000, no restrictions.
+    pub fn new(name: impl Into<String>, capacity: Cost) -> TruckType {
+        TruckType {
+            name: name.into(),
+            count: None,
+            capacity,
+            shift_limit: None,
+            yard: 0,
+            fixed_cost: 0,
+            cost_per_mille: 1000,
+            no_entry: Vec::new(),
+            no_service: Vec::new(),
+            no_entry_classes: Vec::new(),
+            no_service_classes: Vec::new(),
+        }
+    }
+
+    /// Whether the type has any street or road-class restriction.
+    pub fn is_restricted(&self) -> bool {
+        !(self.no_entry.is_empty()
+            && self.no_service.is_empty()
+            && self.no_entry_classes.is_empty()
+            && self.no_service_classes.is_empty())
+    }
+
+    /// The links of `net` the type may not drive on: `no_entry` and every
+    /// link of a class in `no_entry_classes`, sorted, without repeats.
+    pub fn no_entry_links(&self, net: &Network) -> Vec<usize> {
+        barred(net, &self.no_entry, &self.no_entry_classes)
+    }
+
+    /// The links of `net` the type may not serve: those it may not enter,
+    /// `no_service`, and every link of a class in `no_service_classes`;
+    /// sorted, without repeats.
+    pub fn no_service_links(&self, net: &Network) -> Vec<usize> {
+        let mut v = barred(net, &self.no_service, &self.no_service_classes);
+        v.extend(self.no_entry_links(net));
+        v.sort_unstable();
+        v.dedup();
+        v
+    }
+}
+
+/// `links` plus every link of `net` whose class is in `classes`, sorted and
+/// without repeats.
+fn barred(net: &Network, links: &[usize], classes: &[String]) -> Vec<usize> {
+    let mut v = links.to_vec();
+    if !classes.is_empty() {
+        v.extend(net.links.iter().enumerate().filter_map(|(i, l)| {
+            l.class
+                .as_ref()
+                .is_some_and(|c| classes.iter().any(|x| x == c))
+                .then_some(i)
+        }));
+    }
+    v.sort_unstable();
+    v.dedup();
+    v
+}
+
+/// Whether `class` may be named in a truck type's restrictions on `net`: some
+/// street of the network has it, or it is an OpenStreetMap road class
+/// arcwright knows ([`crate::map::ROAD_CLASSES`]).
+pub fn known_class(net: &Network, class: &str) -> bool {
+    crate::map::ROAD_CLASSES.contains(&class)
+        || net.links.iter().any(|l| l.class.as_deref() == Some(class))
 }
 
 /// The balance setting: what the solver minimises.
@@ -218,6 +300,17 @@ pub enum OperationsError {
         /// The street index.
         street: usize,
     },
+    /// A road class in a truck type's restrictions that no street of the
+    /// network has and that is not an OpenStreetMap road class.
+    #[error("truck type `{truck}`: {list} names road class `{class}`, which no street has and which is not an OpenStreetMap road class")]
+    UnknownRoadClass {
+        /// The truck type.
+        truck: String,
+        /// `no_entry` or `no_service`.
+        list: &'static str,
+        /// The class as written.
+        class: String,
+    },
     /// A yard that no truck type calls home.
     #[error("yard `{yard}` has no trucks (no truck type names it as its yard)")]
     YardWithoutTrucks {
@@ -295,6 +388,7 @@ impl OperationsError {
             E::BadCapacity { truck, .. }
             | E::NoSuchYard { truck, .. }
             | E::NoSuchStreet { truck, .. }
+            | E::UnknownRoadClass { truck, .. }
             | E::NoTrucksOfType { truck }
             | E::TypeServesNothing { truck } => Some(Element::TruckType(truck.clone())),
             E::YardWithoutTrucks { yard } => Some(Element::Yard(yard.clone())),
@@ -322,8 +416,7 @@ impl Operations {
                     && t.count == f.max_vehicles
                     && t.fixed_cost == 0
                     && t.cost_per_mille == 1000
-                    && t.no_entry.is_empty()
-                    && t.no_service.is_empty()
+                    && !t.is_restricted()
             }
             _ => false,
         };
@@ -363,6 +456,8 @@ impl Operations {
                 cost_per_mille: 1000,
                 no_entry: Vec::new(),
                 no_service: Vec::new(),
+                no_entry_classes: Vec::new(),
+                no_service_classes: Vec::new(),
             }]
         } else {
             self.truck_types.clone()
@@ -454,6 +549,18 @@ impl Operations {
                     });
                 }
             }
+            for (list, classes) in [
+                ("no_entry", &t.no_entry_classes),
+                ("no_service", &t.no_service_classes),
+            ] {
+                if let Some(class) = classes.iter().find(|c| !known_class(inst.network(), c)) {
+                    return Err(OperationsError::UnknownRoadClass {
+                        truck: t.name.clone(),
+                        list,
+                        class: class.clone(),
+                    });
+                }
+            }
         }
         for (i, y) in self.yards.iter().enumerate() {
             if !self.truck_types.is_empty() && !self.truck_types.iter().any(|t| t.yard == i) {
@@ -505,7 +612,9 @@ impl Operations {
         let types = self.types_of(inst);
         let mut served = vec![false; inst.tasks().len()];
         for ty in &types {
-            let r = Reach::new(inst, &ty.no_entry);
+            let no_entry = ty.no_entry_links(inst.network());
+            let no_service = ty.no_service_links(inst.network());
+            let r = Reach::new(inst, &no_entry);
             let y = yards[ty.yard].junction;
             let (fy, ty_) = (r.from(y), r.to(y));
             // Junctions from which some dump site that reaches the yard is reachable.
@@ -517,10 +626,7 @@ impl Operations {
             }
             let mut any = false;
             for (k, t) in inst.tasks().iter().enumerate() {
-                if ty.no_entry.contains(&t.link)
-                    || ty.no_service.contains(&t.link)
-                    || t.demand > ty.capacity
-                {
+                if no_service.binary_search(&t.link).is_ok() || t.demand > ty.capacity {
                     continue;
                 }
                 let ok = [Dir::Forward, Dir::Backward]
@@ -559,12 +665,13 @@ struct Reach {
 }
 
 impl Reach {
+    /// The network without the links of `without` (sorted).
     fn new(inst: &Instance, without: &[usize]) -> Reach {
         let n = inst.network().len();
         let mut out = vec![Vec::new(); n];
         let mut inn = vec![Vec::new(); n];
         for (i, l) in inst.network().links.iter().enumerate() {
-            if without.contains(&i) {
+            if without.binary_search(&i).is_ok() {
                 continue;
             }
             out[l.from].push(l.to);

@@ -4,9 +4,11 @@
 
 use std::fmt::Write as _;
 
-use super::{street_label, CAUTIONS};
-use crate::fleet::FleetPlan;
-use crate::model::{Cost, Instance};
+use super::sheets::{Action, SheetRow};
+use super::{street_label, street_ref, CAUTIONS};
+use crate::check::fleet::FleetViolation;
+use crate::fleet::{FleetPlan, FleetRoute, Tables};
+use crate::model::{Cost, Instance, TruckType};
 
 /// An unload time in the scenario's time unit, shown in minutes when the
 /// unit is seconds and the time is whole minutes (`15 min`).
@@ -25,6 +27,31 @@ pub fn site_name(inst: &Instance, i: usize) -> String {
         Some(n) if !n.trim().is_empty() => n.clone(),
         _ => format!("dump site {}", i + 1),
     }
+}
+
+/// What trucks of type `t` may not do, in the sheets' words: "Trucks of type
+/// large may not enter living_street streets or Mill Lane (junctions 1–2);
+/// may not serve primary streets."
+pub fn restrictions_text(inst: &Instance, t: &TruckType) -> String {
+    let list = |streets: &[usize], classes: &[String]| {
+        let mut parts: Vec<String> = classes.iter().map(|c| format!("{c} streets")).collect();
+        parts.extend(streets.iter().map(|&l| street_ref(inst, l)));
+        parts.join(", ")
+    };
+    let mut clauses = Vec::new();
+    if !(t.no_entry.is_empty() && t.no_entry_classes.is_empty()) {
+        clauses.push(format!(
+            "may not enter {}",
+            list(&t.no_entry, &t.no_entry_classes)
+        ));
+    }
+    if !(t.no_service.is_empty() && t.no_service_classes.is_empty()) {
+        clauses.push(format!(
+            "may not serve {}",
+            list(&t.no_service, &t.no_service_classes)
+        ));
+    }
+    format!("Trucks of type {} {}.", t.name, clauses.join("; "))
 }
 
 /// Markdown route sheets of a fleet plan: the cautions, then per truck its
@@ -52,23 +79,34 @@ pub fn fleet_markdown(inst: &Instance, plan: &FleetPlan) -> String {
         u.time_text(short),
         u.time_text(long)
     );
+    for t in types.iter().filter(|t| t.is_restricted()) {
+        let _ = writeln!(s, "\n{}", restrictions_text(inst, t));
+    }
+    // "the yard" when the scenario names none, else "yard NAME".
+    let yard_name = |y: &crate::model::Yard| {
+        if ops.yards.is_empty() {
+            "the yard".to_string()
+        } else {
+            format!("yard {}", y.name)
+        }
+    };
     for (r, route) in plan.routes.iter().enumerate() {
         let yard = &yards[route.yard];
         let loads: Vec<String> = route.trip_loads.iter().map(|&l| u.load_text(l)).collect();
         let _ = writeln!(
             s,
-            "\n## Truck {}: {} from yard {}\n\nCost {}, shift time {}, trip loads {}.\n",
+            "\n## Truck {}: {} from {}\n\nCost {}, shift time {}, trip loads {}.\n",
             r + 1,
             types[route.truck_type].name,
-            yard.name,
+            yard_name(yard),
             u.cost_text(route.cost),
             u.time_text(route.time),
             loads.join(", ")
         );
         let _ = writeln!(
             s,
-            "1. leave yard {} (junction {})",
-            yard.name,
+            "1. leave {} (junction {})",
+            yard_name(yard),
             id(yard.junction)
         );
         let mut tips = route.tips.iter().peekable();
@@ -97,10 +135,289 @@ pub fn fleet_markdown(inst: &Instance, plan: &FleetPlan) -> String {
         }
         let _ = writeln!(
             s,
-            "1. back to yard {} (junction {})",
-            yard.name,
+            "1. back to {} (junction {})",
+            yard_name(yard),
             id(yard.junction)
         );
     }
     s
+}
+
+/// One finding of [`crate::check::fleet::check_fleet_plan`] in the words of
+/// the fleet sheets: trucks numbered from 1 with their type and yard, trips
+/// and tips numbered from 1 (tips with their dump site), services numbered
+/// from 1 with the street's name, junctions by the scenario's ids, amounts
+/// with their units. The checker's own `Display` numbers from 0 and names
+/// streets by index.
+///
+/// ```
+/// use arcwright::check::fleet::FleetViolation;
+/// use arcwright::fleet::FleetPlan;
+/// use arcwright::model::{Fleet, Instance, Network};
+/// let mut net = Network::with_junctions(2);
+/// net.add_required_edge(0, 1, 4, 2);
+/// let inst = Instance::new("one", net, Fleet::with_capacity(9), 0).unwrap();
+/// let v = FleetViolation::ServedTimes { street: 0, times: 0 };
+/// let text = arcwright::report::fleet::describe_fleet(&inst, &FleetPlan::new(vec![]), &v);
+/// assert_eq!(text, "the street between junctions 1 and 2 (#0) is not served");
+/// ```
+pub fn describe_fleet(inst: &Instance, plan: &FleetPlan, v: &FleetViolation) -> String {
+    use FleetViolation as V;
+    let u = inst.units();
+    let types = inst.operations().types_of(inst);
+    let yards = inst.operations().yards_of(inst);
+    let truck = |r: usize| match plan.routes.get(r) {
+        Some(route) => match types.get(route.truck_type) {
+            Some(t) => format!("Truck {} ({})", r + 1, t.name),
+            None => format!("Truck {}", r + 1),
+        },
+        None => format!("Truck {}", r + 1),
+    };
+    let tip = |r: usize, t: usize| {
+        let site = plan
+            .routes
+            .get(r)
+            .and_then(|x| x.tips.get(t))
+            .filter(|x| x.site < inst.operations().dump_sites.len())
+            .map(|x| format!(" at {}", site_name(inst, x.site)))
+            .unwrap_or_default();
+        format!("{}, tip {}{site}", truck(r), t + 1)
+    };
+    let service = |r: usize, s: usize| format!("{}, service {}", truck(r), s + 1);
+    let street = |l: usize| street_ref(inst, l);
+    let junction = |j: usize| match inst.network().junctions.get(j) {
+        Some(x) => format!("junction {}", x.id),
+        None => format!("junction #{j}"),
+    };
+    let yard = |y: usize| match yards.get(y) {
+        Some(x) => format!("yard {}", x.name),
+        None => format!("yard #{}", y + 1),
+    };
+    match v {
+        V::UnknownType { route, truck_type } => format!(
+            "Truck {}: no truck type number {} (the scenario has {})",
+            route + 1,
+            truck_type + 1,
+            types.len()
+        ),
+        V::WrongYard { route, yard: y, home } => format!(
+            "{} starts from {}, but its type's home is {}",
+            truck(*route),
+            yard(*y),
+            yard(*home)
+        ),
+        V::TooManyTrucks {
+            truck_type,
+            used,
+            count,
+        } => format!("{used} trucks of type {truck_type} are used, but only {count} are available"),
+        V::UnknownTask { route, visit } => {
+            format!("{}: not a street to serve", service(*route, *visit))
+        }
+        V::WrongDirection {
+            route,
+            visit,
+            street: l,
+        } => format!(
+            "{}: {} is served against its direction",
+            service(*route, *visit),
+            street(*l)
+        ),
+        V::TypeMayNotServe {
+            route,
+            visit,
+            street: l,
+            truck_type,
+            list,
+        } => format!(
+            "{}: trucks of type {truck_type} may not {} {} (its {list})",
+            service(*route, *visit),
+            if *list == "no_entry" { "drive on" } else { "serve" },
+            street(*l)
+        ),
+        V::ServedTimes { street: l, times } => match times {
+            0 => format!("{} is not served", street(*l)),
+            n => format!("{} is served {n} times, not once", street(*l)),
+        },
+        V::BadTip { route, tip: t } => format!(
+            "{}: a tip must follow a service, at most one between two services, at a dump site of the scenario",
+            tip(*route, *t)
+        ),
+        V::Overloaded {
+            route,
+            trip,
+            load,
+            capacity,
+        } => format!(
+            "{}, trip {}: load {} over the load limit of {}",
+            truck(*route),
+            trip + 1,
+            u.load_text(*load),
+            u.load_text(*capacity)
+        ),
+        V::ReturnsLoaded { route, load } => format!(
+            "{} returns to its yard with {} on board; it must tip first",
+            truck(*route),
+            u.load_text(*load)
+        ),
+        V::SiteClosed {
+            route,
+            tip: t,
+            arrival,
+            closes,
+        } => format!(
+            "{}: arrives at {}, after the dump site closes at {}",
+            tip(*route, *t),
+            u.time_text(*arrival),
+            u.time_text(*closes)
+        ),
+        V::NoPath { route, from, to } => format!(
+            "{}: no way to drive from {} to {} on the streets its type may enter",
+            truck(*route),
+            junction(*from),
+            junction(*to)
+        ),
+        V::OverShift { route, time, limit } => format!(
+            "{}: shift time {} over the shift limit of {}",
+            truck(*route),
+            u.time_text(*time),
+            u.time_text(*limit)
+        ),
+        V::Mismatch {
+            route,
+            what,
+            stated,
+            actual,
+        } => format!(
+            "{}: the plan states {what} {stated}, recomputed {actual}",
+            truck(*route)
+        ),
+        V::WrongTotal { stated, actual } => format!(
+            "the plan states a total cost of {}, its trucks' costs add up to {}",
+            u.cost_text(*stated),
+            u.cost_text(*actual)
+        ),
+    }
+}
+
+/// The explicit walk of every route of a fleet plan, street by street, as
+/// sheet rows: the shortest paths of each truck's type (around the streets
+/// it may not enter), legs to a dump site marked [`Action::ToDumpSite`] and
+/// legs leaving one [`Action::FromDumpSite`]. `cost` is the street's cost
+/// before the type's cost factor; `load` the load of the current trip (0
+/// after a tip); `time` includes waiting for a dump site to open and
+/// unloading. Routes whose legs cannot be driven (a plan that fails the
+/// checker) miss those legs.
+pub fn fleet_rows(inst: &Instance, tables: &Tables, plan: &FleetPlan) -> Vec<Vec<SheetRow>> {
+    plan.routes
+        .iter()
+        .map(|r| route_rows(inst, tables, r))
+        .collect()
+}
+
+/// Rows of one route (see [`fleet_rows`]).
+fn route_rows(inst: &Instance, tables: &Tables, r: &FleetRoute) -> Vec<SheetRow> {
+    let ops = inst.operations();
+    let Some(tt) = tables.types.get(r.truck_type) else {
+        return Vec::new();
+    };
+    let dist = tables.dist(r.truck_type);
+    let mut w = RowWalk {
+        inst,
+        rows: Vec::new(),
+        load: 0,
+        cost: 0,
+        time: 0,
+        length: Some(0),
+    };
+    let mut at = tt.yard;
+    let mut served = false;
+    let mut from_site = false;
+    let mut tips = r.tips.iter().peekable();
+    for pos in 0..=r.visits.len() {
+        while let Some(t) = tips.next_if(|t| t.after == pos) {
+            let Some(site) = ops.dump_sites.get(t.site) else {
+                continue;
+            };
+            w.leg(dist, at, site.junction, Action::ToDumpSite);
+            if let Some(h) = site.hours {
+                w.time = w.time.max(h.opens);
+            }
+            w.time += site.unload_time;
+            w.load = 0;
+            at = site.junction;
+            from_site = true;
+        }
+        let Some(v) = r.visits.get(pos) else { break };
+        let Some(task) = inst.tasks().get(v.task) else {
+            continue;
+        };
+        let (s, e) = task.ends(v.dir);
+        let action = match (from_site, served) {
+            (true, _) => Action::FromDumpSite,
+            (false, false) => Action::FromYard,
+            (false, true) => Action::Deadhead,
+        };
+        w.leg(dist, at, s, action);
+        w.load += task.demand;
+        w.push(task.link, (s, e), Action::Serve, task.cost, task.time);
+        at = e;
+        served = true;
+        from_site = false;
+    }
+    if !r.visits.is_empty() {
+        let action = if from_site {
+            Action::FromDumpSite
+        } else {
+            Action::ToYard
+        };
+        w.leg(dist, at, tt.yard, action);
+    }
+    w.rows
+}
+
+/// Rows of a route being built, with the running figures.
+struct RowWalk<'a> {
+    inst: &'a Instance,
+    rows: Vec<SheetRow>,
+    load: Cost,
+    cost: Cost,
+    time: Cost,
+    length: Option<Cost>,
+}
+
+impl RowWalk<'_> {
+    /// The deadhead path from `a` to `b` on the type's network.
+    fn leg(&mut self, dist: &crate::paths::Distances, a: usize, b: usize, action: Action) {
+        for h in dist.path(a, b).unwrap_or_default() {
+            let l = &self.inst.network().links[h.link];
+            self.push(h.link, (h.from, h.to), action, l.cost, l.drive_time());
+        }
+    }
+
+    fn push(&mut self, link: usize, ends: (usize, usize), action: Action, cost: Cost, dt: Cost) {
+        let net = self.inst.network();
+        let l = &net.links[link];
+        self.cost += cost;
+        self.time += dt;
+        self.length = self.length.zip(l.length).map(|(a, b)| a + b);
+        self.rows.push(SheetRow {
+            step: self.rows.len() + 1,
+            link,
+            street: street_label(self.inst, link),
+            from: net.junctions[ends.0].id,
+            to: net.junctions[ends.1].id,
+            ends,
+            action,
+            cost,
+            length: l.length,
+            step_time: dt,
+            load: self.load,
+            cost_so_far: self.cost,
+            length_so_far: self.length,
+            time: self.time,
+            turn: None,
+            manoeuvre: None,
+        });
+    }
 }

@@ -9,6 +9,9 @@
 //! - [`geo`]: a GeoJSON FeatureCollection (RFC 7946) of every step;
 //! - [`svg`]: a map of the network and the routes;
 //! - [`summary_table`]: a plain-text table of the routes and totals;
+//! - [`directions`]: with turn rules, one manoeuvre per street ("left onto
+//!   Mill Lane", "U-turn at the dead end of ...") and the turns counted;
+//!   [`route_walks`] gives the walks the sheets, maps and plan file share;
 //! - [`fleet`]: route sheets of fleet plans, with every tip ("tip at
 //!   Landfill, unload 15 min"); the SVG map marks the operations' other
 //!   yards and dump sites.
@@ -18,6 +21,7 @@
 //! labelled with the unit the scenario declares ([`crate::model::Units`]),
 //! and [`describe`] puts the checker's findings in the sheets' words.
 
+pub mod directions;
 pub mod fleet;
 pub mod geo;
 pub mod sheets;
@@ -76,12 +80,62 @@ pub fn bundle(
     extras: &SummaryExtras,
 ) -> Vec<OutputFile> {
     // The walks are expanded once (one shortest-path search per deadhead leg).
-    let rows = sheets::all_rows(inst, dist, plan);
+    bundle_walks(inst, plan, &route_walks(inst, dist, plan), extras)
+}
+
+/// The explicit walk of every route as the trucks drive it. With turn rules
+/// it is the walk with its turns ([`crate::turns::walks_with_turns`]: every
+/// leg least-cost with turn penalties, banned turns avoided); without, the
+/// walk of [`crate::plan::walk`] with no turns recorded.
+///
+/// # Panics
+///
+/// With turn rules, when a route has a leg with no allowed way: plans of
+/// the solver never do, and [`crate::check::check_plan`] reports such a
+/// plan (`NoPath`) before anything is drawn.
+pub fn route_walks(
+    inst: &Instance,
+    dist: &crate::paths::Distances,
+    plan: &Plan,
+) -> Vec<crate::turns::TurnWalk> {
+    match inst.turn_rules() {
+        Some(rules) => {
+            // Instance::with_turn_rules has checked that the table can be built.
+            let table = crate::turns::TurnTable::new(inst, rules).expect("checked turn rules");
+            crate::turns::walks_with_turns(inst, &table, plan)
+                .expect("every leg of a checked plan has an allowed way")
+        }
+        None => plan
+            .routes
+            .iter()
+            .map(|r| crate::turns::TurnWalk {
+                steps: crate::plan::walk(inst, dist, &r.visits),
+                turns: Vec::new(),
+            })
+            .collect(),
+    }
+}
+
+/// [`bundle`] from walks already expanded ([`route_walks`], or the walks a
+/// plan file states).
+pub fn bundle_walks(
+    inst: &Instance,
+    plan: &Plan,
+    walks: &[crate::turns::TurnWalk],
+    extras: &SummaryExtras,
+) -> Vec<OutputFile> {
+    let rows = sheets::rows_of_walks(inst, walks);
     let mut extras = extras.clone();
     if extras.route_lengths.is_none() && sheets::shows_lengths(inst) {
         extras.route_lengths = rows
             .iter()
             .map(|r| r.last().map_or(Some(0), |x| x.length_so_far))
+            .collect();
+    }
+    if extras.turn_counts.is_none() && inst.turn_rules().is_some() {
+        extras.turn_counts = rows
+            .iter()
+            .map(|r| sheets::counts_of_rows(inst, r))
             .collect();
     }
     let mut out = vec![
@@ -133,6 +187,9 @@ pub struct SummaryExtras {
     /// length column only when these are given. [`bundle`] fills them in
     /// from the sheets when the scenario has lengths.
     pub route_lengths: Option<Vec<Cost>>,
+    /// With turn rules, the turns each route makes; the summary shows left
+    /// turns and U-turns per truck when given. [`bundle`] fills them in.
+    pub turn_counts: Option<Vec<directions::TurnCounts>>,
 }
 
 /// The plan as a plain-text table: one line per truck (streets served, load,
@@ -159,9 +216,21 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
     if times {
         let _ = write!(head, "  {:>20}", "time");
     }
+    let counts = extras
+        .turn_counts
+        .as_ref()
+        .filter(|c| c.len() == plan.routes.len());
+    if counts.is_some() {
+        let _ = write!(head, "  {:>6}  {:>7}", "left", "U-turns");
+    }
     let _ = writeln!(out, "{head}");
+    let mut all = directions::TurnCounts::default();
     let (mut total_service, mut total_time, mut total_load, mut total_len) = (0, 0, 0, 0);
-    let line = |out: &mut String, cells: [String; 6], len: Cost, time: Cost| {
+    let line = |out: &mut String,
+                cells: [String; 6],
+                len: Cost,
+                time: Cost,
+                turns: Option<&directions::TurnCounts>| {
         let mut l = format!(
             "{:>5}  {:>8}  {:>12}  {:>10}  {:>10}  {:>10}",
             cells[0], cells[1], cells[2], cells[3], cells[4], cells[5]
@@ -175,6 +244,9 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
                 None => time.to_string(),
             };
             let _ = write!(l, "  {t:>20}");
+        }
+        if let Some(c) = turns {
+            let _ = write!(l, "  {:>6}  {:>7}", c.left, c.u_turns);
         }
         let _ = writeln!(out, "{l}");
     };
@@ -197,7 +269,11 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
             ],
             len,
             route.time,
+            counts.map(|c| &c[r]),
         );
+        if let Some(c) = counts {
+            all.add(&c[r]);
+        }
     }
     line(
         &mut out,
@@ -211,7 +287,11 @@ pub fn summary_table(inst: &Instance, plan: &Plan, extras: &SummaryExtras) -> St
         ],
         total_len,
         total_time,
+        counts.map(|_| &all),
     );
+    if counts.is_some() {
+        let _ = writeln!(out, "Turns (all trucks): {}.", sheets::counts_text(&all));
+    }
     summary_footer(&mut out, inst, extras);
     out
 }
@@ -266,15 +346,32 @@ pub fn route_lengths(
     if !sheets::shows_lengths(inst) {
         return None;
     }
-    plan.routes
+    route_walks(inst, dist, plan)
         .iter()
-        .map(|r| {
-            crate::plan::walk(inst, dist, &r.visits)
+        .map(|w| {
+            w.steps
                 .iter()
                 .map(|s| inst.network().links[s.link].length)
                 .sum::<Option<Cost>>()
         })
         .collect()
+}
+
+/// With turn rules, the turns each route of `plan` makes along its walk
+/// ([`route_walks`]); `None` without turn rules.
+pub fn turn_counts(
+    inst: &Instance,
+    dist: &crate::paths::Distances,
+    plan: &Plan,
+) -> Option<Vec<directions::TurnCounts>> {
+    inst.turn_rules()?;
+    let ends = directions::dead_ends(inst);
+    Some(
+        route_walks(inst, dist, plan)
+            .iter()
+            .map(|w| directions::turn_counts(w, &ends))
+            .collect(),
+    )
 }
 
 /// Why a map or GeoJSON is not written, when it is not.

@@ -11,8 +11,10 @@ use std::fmt::Write as _;
 
 use crate::model::{Cost, Instance, Units};
 use crate::paths::Distances;
-use crate::plan::{walk, Plan};
+use crate::plan::Plan;
+use crate::turns::{Turn, TurnWalk};
 
+use super::directions::{dead_ends, manoeuvre, turn_counts, TurnCounts};
 use super::{street_label, CAUTIONS};
 
 /// What a truck does on one step of its walk.
@@ -26,6 +28,10 @@ pub enum Action {
     Deadhead,
     /// Drive without serving, back to the yard after the last service.
     ToYard,
+    /// Drive loaded to a dump site to tip (fleet plans).
+    ToDumpSite,
+    /// Drive empty from a dump site to the next street or the yard (fleet plans).
+    FromDumpSite,
 }
 
 impl Action {
@@ -36,10 +42,12 @@ impl Action {
             Action::Serve => "serve",
             Action::Deadhead => "deadhead",
             Action::ToYard => "deadhead (return to yard)",
+            Action::ToDumpSite => "deadhead (to dump site)",
+            Action::FromDumpSite => "deadhead (from dump site)",
         }
     }
 
-    /// True for the three deadhead kinds.
+    /// True for every kind but [`Action::Serve`].
     pub fn is_deadhead(self) -> bool {
         self != Action::Serve
     }
@@ -77,17 +85,35 @@ pub struct SheetRow {
     pub length_so_far: Option<Cost>,
     /// Time used so far on this route, after the step.
     pub time: Cost,
+    /// With turn rules: the turn made into this step (none on the first),
+    /// its penalty counted in `cost_so_far`.
+    pub turn: Option<Turn>,
+    /// With turn rules: the manoeuvre in words ([`super::directions::manoeuvre`]).
+    pub manoeuvre: Option<String>,
 }
 
-/// The rows of route `r`'s sheet: the explicit walk from [`walk`], with
+/// The rows of route `r`'s sheet: the explicit walk ([`super::route_walks`]:
+/// with turn rules the walk with its turns, else [`crate::plan::walk`]) with
 /// running totals. The last row's `cost_so_far` is the route's cost and its
 /// `time` the route's time, when the plan's figures are right.
 pub fn route_rows(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> Vec<SheetRow> {
-    let steps = walk(inst, dist, &plan.routes[r].visits);
+    let one = Plan {
+        routes: vec![plan.routes[r].clone()],
+        cost: plan.routes[r].cost,
+    };
+    let walks = super::route_walks(inst, dist, &one);
+    rows_of_walk(inst, &dead_ends(inst), &walks[0])
+}
+
+/// The rows of one walk's sheet, with running totals; with turn rules each
+/// row carries its turn and manoeuvre (`dead_ends`: [`dead_ends`]).
+pub fn rows_of_walk(inst: &Instance, dead_ends: &[bool], w: &TurnWalk) -> Vec<SheetRow> {
+    let steps = &w.steps;
     let first_serve = steps.iter().position(|s| s.serve).unwrap_or(steps.len());
     let last_serve = steps.iter().rposition(|s| s.serve).unwrap_or(0);
     let net = inst.network();
     let task_of_link = task_index(inst);
+    let turns = inst.turn_rules().is_some();
     let (mut load, mut cost, mut time, mut length) = (0, 0, 0, Some(0));
     steps
         .iter()
@@ -101,7 +127,8 @@ pub fn route_rows(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> V
             } else {
                 (link.cost, link.drive_time())
             };
-            cost += step_cost;
+            let turn = i.checked_sub(1).and_then(|k| w.turns.get(k)).copied();
+            cost += step_cost + turn.map_or(0, |t| t.cost);
             time += dt;
             length = length.zip(link.length).map(|(a, b)| a + b);
             let action = if s.serve {
@@ -113,6 +140,7 @@ pub fn route_rows(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> V
             } else {
                 Action::Deadhead
             };
+            let prev = i.checked_sub(1).map(|k| &steps[k]);
             SheetRow {
                 step: i + 1,
                 link: s.link,
@@ -128,6 +156,8 @@ pub fn route_rows(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> V
                 cost_so_far: cost,
                 length_so_far: length,
                 time,
+                turn: turns.then_some(turn).flatten(),
+                manoeuvre: turns.then(|| manoeuvre(inst, dead_ends, prev, s, turn)),
             }
         })
         .collect()
@@ -161,16 +191,24 @@ pub fn shows_times(inst: &Instance) -> bool {
 /// ([`shows_lengths`], [`shows_times`]), `load_after (U)`,
 /// `cost_so_far (U)`, and `length_so_far (U)`, `time_so_far (U)` likewise;
 /// `U` is the unit the scenario declares, or `cost units`, `load units`...
-/// The cautions are in the summary and the Markdown sheets.
+/// With turn rules, three more: `turn` (the turn into the step: `left`,
+/// `right`, `straight`, `u_turn`, `unknown`; empty on the first step),
+/// `turn_cost (U)` (its penalty, counted in `cost_so_far`) and `manoeuvre`
+/// (the instruction in words). The cautions are in the summary and the
+/// Markdown sheets.
 pub fn route_csv(inst: &Instance, dist: &Distances, plan: &Plan, r: usize) -> String {
     csv_of_rows(inst, &route_rows(inst, dist, plan, r))
 }
 
 /// The rows of every route ([`route_rows`]), computed once for all outputs.
 pub fn all_rows(inst: &Instance, dist: &Distances, plan: &Plan) -> Vec<Vec<SheetRow>> {
-    (0..plan.routes.len())
-        .map(|r| route_rows(inst, dist, plan, r))
-        .collect()
+    rows_of_walks(inst, &super::route_walks(inst, dist, plan))
+}
+
+/// The rows of every walk ([`rows_of_walk`]).
+pub fn rows_of_walks(inst: &Instance, walks: &[TurnWalk]) -> Vec<Vec<SheetRow>> {
+    let ends = dead_ends(inst);
+    walks.iter().map(|w| rows_of_walk(inst, &ends, w)).collect()
 }
 
 /// [`route_csv`] from rows already computed.
@@ -203,6 +241,12 @@ pub fn csv_of_rows(inst: &Instance, rows: &[SheetRow]) -> String {
     if times {
         head.push(with("time_so_far", u.time_label()));
     }
+    let turns = inst.turn_rules().is_some();
+    if turns {
+        head.push("turn".into());
+        head.push(with("turn_cost", u.cost_label()));
+        head.push("manoeuvre".into());
+    }
     let opt = |v: Option<Cost>| v.map_or(String::new(), |x| x.to_string());
     let mut w = csv::Writer::from_writer(Vec::new());
     // Writing to memory cannot fail; a failure would be a bug here.
@@ -230,6 +274,11 @@ pub fn csv_of_rows(inst: &Instance, rows: &[SheetRow]) -> String {
         }
         if times {
             rec.push(x.time.to_string());
+        }
+        if turns {
+            rec.push(x.turn.map_or(String::new(), |t| turn_word(t.kind)));
+            rec.push(x.turn.map_or(String::new(), |t| t.cost.to_string()));
+            rec.push(x.manoeuvre.clone().unwrap_or_default());
         }
         w.write_record(&rec).expect("CSV to memory");
     }
@@ -309,10 +358,19 @@ pub fn markdown_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> 
         if times {
             let _ = write!(line, ", time {}", u.time_text(route.time));
         }
+        if let Some(c) = counts_of_rows(inst, rows) {
+            let _ = write!(line, ". Turns: {}", counts_text(&c));
+        }
         let _ = writeln!(out, "{line}.\n");
         let _ = writeln!(out, "{head}\n{align}");
         for x in rows {
             let _ = writeln!(out, "{}", md_row(u, lengths, times, x));
+        }
+        if inst.turn_rules().is_some() {
+            let _ = writeln!(
+                out,
+                "\nArrive at the yard (junction {yard}). Turn costs are counted in the cost so far."
+            );
         }
         out.push('\n');
     }
@@ -328,6 +386,14 @@ fn md_header(inst: &Instance) -> (String, String) {
         u.cost_label()
     );
     let mut align = String::from("|---:|---|---|---|---:|");
+    if inst.turn_rules().is_some() {
+        head = format!(
+            "| step | manoeuvre | street | from → to | action | turn cost ({}) | cost ({}) |",
+            u.cost_label(),
+            u.cost_label()
+        );
+        align = String::from("|---:|---|---|---|---|---:|---:|");
+    }
     if lengths {
         let _ = write!(head, " length ({}) |", u.length_label());
         align.push_str("---:|");
@@ -351,15 +417,28 @@ fn md_header(inst: &Instance) -> (String, String) {
 
 /// One step as a row of a Markdown sheet table (columns of [`md_header`]).
 fn md_row(u: &Units, lengths: bool, times: bool, x: &SheetRow) -> String {
-    let mut cells = format!(
-        "| {} | {} | {} → {} | {} | {} |",
-        x.step,
-        md_cell(&x.street),
-        x.from,
-        x.to,
-        x.action.label(),
-        x.cost
-    );
+    let mut cells = match &x.manoeuvre {
+        Some(m) => format!(
+            "| {} | {} | {} | {} → {} | {} | {} | {} |",
+            x.step,
+            md_cell(m),
+            md_cell(&x.street),
+            x.from,
+            x.to,
+            x.action.label(),
+            x.turn.map_or(String::new(), |t| t.cost.to_string()),
+            x.cost
+        ),
+        None => format!(
+            "| {} | {} | {} → {} | {} | {} |",
+            x.step,
+            md_cell(&x.street),
+            x.from,
+            x.to,
+            x.action.label(),
+            x.cost
+        ),
+    };
     if lengths {
         let _ = write!(
             cells,
@@ -386,4 +465,49 @@ fn md_row(u: &Units, lengths: bool, times: bool, x: &SheetRow) -> String {
         let _ = write!(cells, " {t} |");
     }
     cells
+}
+
+/// The word of a turn kind in CSV sheets and plan files (its `Display`).
+pub fn turn_word(k: crate::turns::TurnKind) -> String {
+    k.to_string()
+}
+
+/// The turns of one route's rows counted, with turn rules (`None` without).
+pub fn counts_of_rows(inst: &Instance, rows: &[SheetRow]) -> Option<TurnCounts> {
+    inst.turn_rules()?;
+    let w = TurnWalk {
+        steps: rows
+            .iter()
+            .map(|x| crate::plan::Step {
+                link: x.link,
+                from: x.ends.0,
+                to: x.ends.1,
+                serve: x.action == Action::Serve,
+            })
+            .collect(),
+        turns: rows.iter().filter_map(|x| x.turn).collect(),
+    };
+    Some(turn_counts(&w, &dead_ends(inst)))
+}
+
+/// "4 left, 6 right, 1 U-turn (at a dead end)" in words.
+pub fn counts_text(c: &TurnCounts) -> String {
+    let mut s = format!("{} left, {} right", c.left, c.right);
+    let u = c.u_turns;
+    let _ = write!(s, ", {u} U-turn{}", if u == 1 { "" } else { "s" });
+    if u > 0 {
+        if c.u_turns_at_dead_ends == u {
+            s.push_str(if u == 1 {
+                " (at a dead end)"
+            } else {
+                " (all at dead ends)"
+            });
+        } else {
+            let _ = write!(s, " ({} at dead ends)", c.u_turns_at_dead_ends);
+        }
+    }
+    if c.unknown > 0 {
+        let _ = write!(s, ", {} of unknown angle (no coordinates)", c.unknown);
+    }
+    s
 }

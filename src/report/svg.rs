@@ -6,10 +6,14 @@
 //!   with its name and junction numbers.
 //! - Each truck in its own colour ([`PALETTE`], 30 colours that stay apart):
 //!   served streets solid with an arrow in the direction of service;
-//!   deadhead legs dashed. Trucks that drive the same street empty in the
+//!   deadhead legs dashed (with turn rules, with a small arrow in the
+//!   direction of travel too, and a ring where a truck makes a U-turn). Trucks that drive the same street empty in the
 //!   same direction are drawn side by side in lanes, so none hides another.
 //! - Junction numbers (as in the sheets' `from → to`) at every turning point
 //!   of a route: where a truck starts or stops serving.
+//! - Fleet plans ([`fleet_map`]): each truck's way to a dump site and back
+//!   from it dotted in its colour; every yard (squares) and dump site (dark
+//!   red triangles) labelled with its name.
 //! - The yard, labelled inside the picture; a scale bar below the network
 //!   (never over it) when the coordinate system is declared; a legend beside it.
 //!
@@ -21,12 +25,13 @@
 use std::collections::{BTreeSet, HashMap};
 use std::fmt::Write as _;
 
+use crate::fleet::FleetPlan;
 use crate::model::{Coordinates, Instance};
 use crate::paths::Distances;
 use crate::plan::Plan;
 
 use super::geo::points;
-use super::sheets::{all_rows, SheetRow};
+use super::sheets::{all_rows, Action, SheetRow};
 use super::street_ref;
 
 /// Route colours, in order, for up to 30 trucks (then they repeat). Our own
@@ -49,6 +54,8 @@ const GAP: f64 = 16.0;
 const SCALE_H: f64 = 36.0;
 const NETWORK_GREY: &str = "#d4d4d4";
 const ONE_WAY_GREY: &str = "#a6a6a6";
+/// Dash pattern of the way to a dump site and back (fleet plans).
+const TIP_DASH: &str = "1.5 3";
 
 /// Escapes text for XML content and attribute values.
 pub fn xml_escape(s: &str) -> String {
@@ -150,7 +157,67 @@ impl Frame {
 
 /// [`map`] from the rows of every route ([`all_rows`]).
 pub fn map_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> Option<String> {
-    let f = Frame::new(inst, plan.routes.len())?;
+    let u = inst.units();
+    let trucks: Vec<(String, Option<String>)> = plan
+        .routes
+        .iter()
+        .enumerate()
+        .map(|(r, route)| {
+            (
+                format!("Truck {}: {}", r + 1, u.cost_text(route.cost)),
+                None,
+            )
+        })
+        .collect();
+    draw(inst, all, &u.cost_text(plan.cost), &trucks, false)
+}
+
+/// The map of a fleet plan from its rows ([`super::fleet::fleet_rows`]): as
+/// [`map`], and each truck's way to a dump site and back from it dotted in
+/// its colour, every yard and dump site labelled, the legend naming each
+/// truck's type, yard and trips. `None` when the scenario has no coordinates.
+pub fn fleet_map(inst: &Instance, plan: &FleetPlan, all: &[Vec<SheetRow>]) -> Option<String> {
+    let u = inst.units();
+    let types = inst.operations().types_of(inst);
+    let yards = inst.operations().yards_of(inst);
+    let trucks: Vec<(String, Option<String>)> = plan
+        .routes
+        .iter()
+        .enumerate()
+        .map(|(r, route)| {
+            let trips = route.trip_loads.iter().filter(|&&l| l > 0).count().max(1);
+            let yard = match yards.get(route.yard) {
+                Some(y) if yards.len() > 1 => format!(" from {}", y.name),
+                _ => String::new(),
+            };
+            let detail = format!(
+                "{}{yard}, {trips} trip{}, {} tip{}",
+                types.get(route.truck_type).map_or("?", |t| t.name.as_str()),
+                if trips == 1 { "" } else { "s" },
+                route.tips.len(),
+                if route.tips.len() == 1 { "" } else { "s" }
+            );
+            (
+                format!("Truck {}: {}", r + 1, u.cost_text(route.cost)),
+                Some(detail),
+            )
+        })
+        .collect();
+    draw(inst, all, &u.cost_text(plan.cost), &trucks, true)
+}
+
+/// The picture: network, routes, labels, yards and dump sites, scale bar,
+/// and a legend with the total, one line per truck and (with `tips`) the
+/// dotted way to and from a dump site.
+fn draw(
+    inst: &Instance,
+    all: &[Vec<SheetRow>],
+    total: &str,
+    trucks: &[(String, Option<String>)],
+    tips: bool,
+) -> Option<String> {
+    let lines = trucks.len() + trucks.iter().filter(|t| t.1.is_some()).count();
+    let f = Frame::new(inst, lines + usize::from(tips))?;
     let mut s = String::new();
     let _ = writeln!(
         s,
@@ -159,14 +226,17 @@ pub fn map_of_rows(inst: &Instance, plan: &Plan, all: &[Vec<SheetRow>]) -> Optio
     );
     let _ = writeln!(s, "<title>{}</title>", xml_escape(&inst.name));
     let _ = writeln!(s, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##);
-    defs(&mut s, plan.routes.len());
+    defs(&mut s, trucks.len());
     network(&mut s, inst, &f);
     routes(&mut s, inst, &f, all);
+    if inst.turn_rules().is_some() {
+        u_turns(&mut s, &f, all);
+    }
     junction_labels(&mut s, inst, &f, all);
     yard(&mut s, inst, &f);
     sites(&mut s, inst, &f);
     scale_bar(&mut s, &f);
-    legend(&mut s, inst, plan, &f);
+    legend(&mut s, inst, total, trucks, tips, &f);
     s.push_str("</svg>\n");
     Some(s)
 }
@@ -187,6 +257,7 @@ fn defs(s: &mut String, routes: usize) {
     marker(s, "one-way", ONE_WAY_GREY, 7.0);
     for r in 0..routes {
         marker(s, &format!("arrow-{}", r + 1), colour(r), 9.0);
+        marker(s, &format!("travel-{}", r + 1), colour(r), 6.0);
     }
     s.push_str("</defs>\n");
 }
@@ -367,8 +438,17 @@ fn routes(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetRow>]) {
                     xml_escape(&row.street),
                     row.from,
                     row.to,
-                    if serve { "serve" } else { "deadhead" }
+                    match row.action {
+                        Action::Serve => "serve",
+                        Action::ToDumpSite | Action::FromDumpSite => row.action.label(),
+                        _ => "deadhead",
+                    }
                 );
+                // The way to a dump site and back: dotted and a little wider.
+                let (width, dash) = match row.action {
+                    Action::ToDumpSite | Action::FromDumpSite => ("2.4", TIP_DASH),
+                    _ => ("1.6", "5 4"),
+                };
                 if serve {
                     let pts = shifted_poly(&pts, 1.8);
                     if pts.len() == 2 {
@@ -395,17 +475,31 @@ fn routes(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetRow>]) {
                 } else {
                     let lane = lanes[&(r, row.link, row.ends)];
                     let pts = shifted_poly(&pts, 2.0 + 2.2 * lane as f64);
+                    if row.manoeuvre.is_some() {
+                        // With turn rules the deadhead legs show the direction of travel too.
+                        let m = if pts.len() == 2 {
+                            [pts[0], mid(pts[0], pts[1]), pts[1]]
+                        } else {
+                            middle(&pts)
+                        };
+                        let _ = writeln!(
+                            s,
+                            r#"<polyline class="travel" points="{}" stroke="none" marker-mid="url(#travel-{})"/>"#,
+                            points_attr(&m),
+                            r + 1
+                        );
+                    }
                     if pts.len() == 2 {
                         let (a, b) = (pts[0], pts[1]);
                         let _ = writeln!(
                             s,
-                            r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke-width="1.6" stroke-dasharray="5 4">{title}</line>"#,
+                            r#"<line x1="{:.1}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke-width="{width}" stroke-dasharray="{dash}">{title}</line>"#,
                             a.0, a.1, b.0, b.1
                         );
                     } else {
                         let _ = writeln!(
                             s,
-                            r#"<polyline points="{}" stroke-width="1.6" stroke-dasharray="5 4">{title}</polyline>"#,
+                            r#"<polyline points="{}" stroke-width="{width}" stroke-dasharray="{dash}">{title}</polyline>"#,
                             points_attr(&pts)
                         );
                     }
@@ -414,6 +508,29 @@ fn routes(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetRow>]) {
             s.push_str("</g>\n");
         }
     }
+}
+
+/// With turn rules: a ring in the truck's colour where it makes a U-turn
+/// (at a dead end, or anywhere U-turns are allowed), with a tooltip.
+fn u_turns(s: &mut String, f: &Frame, all: &[Vec<SheetRow>]) {
+    use crate::turns::TurnKind;
+    s.push_str("<g id=\"u-turns\" fill=\"#ffffff\" stroke-width=\"1.5\">\n");
+    for (r, rows) in all.iter().enumerate() {
+        for row in rows {
+            if row.turn.is_some_and(|t| t.kind == TurnKind::UTurn) {
+                let (x, y) = f.px[row.ends.0];
+                let _ = writeln!(
+                    s,
+                    r#"<circle cx="{x:.1}" cy="{y:.1}" r="4" stroke="{}"><title>Truck {} step {}: U-turn at junction {}</title></circle>"#,
+                    colour(r),
+                    r + 1,
+                    row.step,
+                    row.from
+                );
+            }
+        }
+    }
+    s.push_str("</g>\n");
 }
 
 /// Junction numbers where a truck starts or stops serving (its turning
@@ -447,7 +564,11 @@ fn junction_labels(s: &mut String, inst: &Instance, f: &Frame, all: &[Vec<SheetR
 /// square when there is no room on the right).
 fn yard(s: &mut String, inst: &Instance, f: &Frame) {
     let (yx, yy) = f.px[inst.depot()];
-    let label = format!("Yard ({})", inst.network().junctions[inst.depot()].id);
+    let id = inst.network().junctions[inst.depot()].id;
+    let label = match inst.operations().yards.first() {
+        Some(y) => format!("Yard {} ({id})", y.name),
+        None => format!("Yard ({id})"),
+    };
     let text_w = 7.5 * label.len() as f64;
     let (tx, anchor) = if yx + 11.0 + text_w <= f.map_right + GAP {
         (yx + 11.0, "start")
@@ -501,10 +622,16 @@ fn sites(s: &mut String, inst: &Instance, f: &Frame) {
                 y - 7.0
             )
         };
+        // Left of the mark when the label would run into the legend.
+        let text_w = 7.5 * label.chars().count() as f64;
+        let (tx, anchor) = if x + 11.0 + text_w <= f.map_right + GAP {
+            (x + 11.0, "start")
+        } else {
+            (x - 11.0, "end")
+        };
         let _ = writeln!(
             s,
-            r##"{shape}<text x="{:.1}" y="{:.1}" font-weight="bold" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
-            x + 11.0,
+            r##"{shape}<text x="{tx:.1}" y="{:.1}" text-anchor="{anchor}" font-weight="bold" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
             y + 4.0,
             xml_escape(&label)
         );
@@ -554,9 +681,15 @@ fn legend_entry(s: &mut String, lx: f64, y: f64, sample: &str, text: &str) {
     );
 }
 
-fn legend(s: &mut String, inst: &Instance, plan: &Plan, f: &Frame) {
+fn legend(
+    s: &mut String,
+    inst: &Instance,
+    total: &str,
+    trucks: &[(String, Option<String>)],
+    tips: bool,
+    f: &Frame,
+) {
     let lx = WIDTH - LEGEND_W - MARGIN / 2.0;
-    let u = inst.units();
     let _ = writeln!(
         s,
         r##"<g id="legend"><rect x="{lx:.1}" y="{MARGIN:.1}" width="{LEGEND_W:.0}" height="{:.0}" fill="#ffffff" stroke="#999999" rx="4"/>"##,
@@ -567,25 +700,44 @@ fn legend(s: &mut String, inst: &Instance, plan: &Plan, f: &Frame) {
         s,
         r#"<text x="{:.1}" y="{y:.1}" font-weight="bold">Total cost {}</text>"#,
         lx + 10.0,
-        xml_escape(&u.cost_text(plan.cost))
+        xml_escape(total)
     );
-    for (r, route) in plan.routes.iter().enumerate() {
+    for (r, (line, detail)) in trucks.iter().enumerate() {
         y += 18.0;
         let sample = format!(r#"stroke="{}" stroke-width="4""#, colour(r));
-        legend_entry(
-            s,
-            lx,
-            y,
-            &sample,
-            &format!("Truck {}: {}", r + 1, u.cost_text(route.cost)),
-        );
+        legend_entry(s, lx, y, &sample, line);
+        if let Some(d) = detail {
+            y += 15.0;
+            let _ = writeln!(
+                s,
+                r##"<text x="{:.1}" y="{y:.1}" font-size="10" fill="#444444">{}</text>"##,
+                lx + 42.0,
+                xml_escape(d)
+            );
+        }
     }
     y += 24.0;
     let served = r##"stroke="#333333" stroke-width="2.6" marker-end="url(#one-way)""##;
     legend_entry(s, lx, y, served, "served, arrow: direction");
     y += 18.0;
     let dashed = r##"stroke="#333333" stroke-width="1.6" stroke-dasharray="5 4""##;
-    legend_entry(s, lx, y, dashed, "deadhead (not served)");
+    legend_entry(
+        s,
+        lx,
+        y,
+        dashed,
+        if inst.turn_rules().is_some() {
+            "deadhead, arrow: direction"
+        } else {
+            "deadhead (not served)"
+        },
+    );
+    if tips {
+        y += 18.0;
+        let dotted =
+            format!(r##"stroke="#333333" stroke-width="2.4" stroke-dasharray="{TIP_DASH}""##);
+        legend_entry(s, lx, y, &dotted, "to or from a dump site");
+    }
     y += 18.0;
     let one_way = format!(r#"stroke="{ONE_WAY_GREY}" stroke-width="3" marker-end="url(#one-way)""#);
     legend_entry(s, lx, y, &one_way, "one-way street");

@@ -7,7 +7,11 @@
 //! - [`TurnTable`]: the allowed turns after each driving arc and their
 //!   penalties, with the typed [`TurnError`]s of rules that cannot be used;
 //! - [`TurnDistances`]: turn-aware deadhead costs between served streets
-//!   (the street-to-street graph).
+//!   (the street-to-street graph);
+//! - [`unservable`]: streets to serve that the rules cut off from the yard;
+//! - [`walk_with_turns`]: the explicit walk of a route, every street driven
+//!   with the [`Turn`] made before it ([`TurnWalk`]), for plan files, the
+//!   checker and the drivers' sheets.
 //!
 //! **U-turns.** A U-turn is leaving a junction along the street one arrived
 //! on. By default ([`UTurns::DeadEndsOnly`]) trucks make them only at a dead
@@ -25,11 +29,15 @@
 mod angle;
 mod paths;
 mod plan;
+mod reach;
 mod rules;
 mod table;
+mod walk;
 
 pub use angle::turn_kind;
 pub use paths::{driving_arc, search, source_of, Search, Source, TurnDistances, FULL_MATRIX_TASKS};
 pub use plan::{plan_from_visits, totals_with_turns};
+pub use reach::unservable;
 pub use rules::{DrivingSide, TurnKind, TurnPenalties, TurnRules, UTurns};
 pub use table::{arc_of, head, tail, TurnError, TurnTable, TurnsFrom};
+pub use walk::{route_with_turns, walk_with_turns, walks_with_turns, Turn, TurnWalk};

@@ -135,3 +135,17 @@ pub enum TurnKind {
     /// coordinates, as in the public research sets): no penalty.
     Unknown,
 }
+
+impl std::fmt::Display for TurnKind {
+    /// The word plan files and CSV sheets use: `straight`, `right`, `left`,
+    /// `u_turn`, `unknown`.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            TurnKind::Straight => "straight",
+            TurnKind::Right => "right",
+            TurnKind::Left => "left",
+            TurnKind::UTurn => "u_turn",
+            TurnKind::Unknown => "unknown",
+        })
+    }
+}

@@ -77,6 +77,26 @@ impl TurnTable {
     /// whose streets do not meet at its junction, a street to serve that
     /// cannot be left in any allowed service direction.
     pub fn new(inst: &Instance, rules: &TurnRules) -> Result<TurnTable, Vec<TurnError>> {
+        Self::build(inst, rules, true)
+    }
+
+    /// [`TurnTable::new`] without the check that every street to serve can
+    /// be left (for finding the streets the rules cut off, [`super::unservable`]).
+    ///
+    /// # Errors
+    /// A negative penalty, a turn restriction whose streets do not meet.
+    pub fn without_ways_out_check(
+        inst: &Instance,
+        rules: &TurnRules,
+    ) -> Result<TurnTable, Vec<TurnError>> {
+        Self::build(inst, rules, false)
+    }
+
+    fn build(
+        inst: &Instance,
+        rules: &TurnRules,
+        ways_out: bool,
+    ) -> Result<TurnTable, Vec<TurnError>> {
         let net = inst.network();
         let mut problems = Vec::new();
         let p = &rules.penalties;
@@ -137,7 +157,9 @@ impl TurnTable {
             penalty,
             drivable,
         };
-        table.check_ways_out(inst, &mut problems);
+        if ways_out {
+            table.check_ways_out(inst, &mut problems);
+        }
         if problems.is_empty() {
             Ok(table)
         } else {
