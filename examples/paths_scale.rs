@@ -38,7 +38,11 @@ fn main() {
             }
         };
         let t = Instant::now();
-        let d = match Distances::new(&inst) {
+        // The full matrices (what `Distances::new` builds up to
+        // `FULL_MATRIX_KEYS` key junctions; above, it answers on demand).
+        let mut keys = vec![inst.depot()];
+        keys.extend(inst.tasks().iter().flat_map(|t| [t.tail, t.head]));
+        let d = match Distances::between(inst.network(), keys, inst.has_times()) {
             Ok(d) => d,
             Err(e) => {
                 eprintln!("distances: {e}");

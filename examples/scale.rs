@@ -10,7 +10,12 @@
 //!
 //! Options: `--seconds N` (default 60), `--workers N` (default 2), `--seed N`
 //! (default 1), `--districts auto|off|STREETS` (default auto),
-//! `--marks 30,60,300` (times at which the best cost is reported).
+//! `--marks 30,60,300` (times at which the best cost is reported),
+//! `--turns banned|trucks` (turn rules: `banned` bans U-turns except at dead
+//! ends, no penalties; `trucks` also charges left 30, right 5, U-turn 60),
+//! `--any-fleet` (drop the scenario's bound on the number of trucks: with
+//! turn rules the town of `make_town --blocks 64` needs more routes than its
+//! bound of 202 allows the constructions to find).
 //!
 //! **Glued references** (`--glue FILE --copies K`): `K` copies of a
 //! research instance whose optimum is published, sharing only the yard
@@ -31,6 +36,7 @@ use std::time::{Duration, Instant};
 use arcwright::check::check_plan;
 use arcwright::io::{read_dat_file, read_reference, read_scenario_file};
 use arcwright::model::{Cost, Fleet, Instance, Link, Network};
+use arcwright::turns::{TurnPenalties, TurnRules};
 use arcwright::{Decomposition, Progress, Solver};
 
 struct Opts {
@@ -42,6 +48,8 @@ struct Opts {
     seed: u64,
     districts: Decomposition,
     marks: Vec<u64>,
+    turns: Option<TurnRules>,
+    any_fleet: bool,
 }
 
 fn parse() -> Result<Opts, String> {
@@ -54,11 +62,17 @@ fn parse() -> Result<Opts, String> {
         seed: 1,
         districts: Decomposition::Auto,
         marks: vec![10, 30, 60, 120, 300],
+        turns: None,
+        any_fleet: false,
     };
     let mut args = std::env::args().skip(1);
     while let Some(a) = args.next() {
         if !a.starts_with("--") {
             o.file = Some(a.into());
+            continue;
+        }
+        if a == "--any-fleet" {
+            o.any_fleet = true;
             continue;
         }
         let v = args.next().ok_or(format!("{a} needs a value"))?;
@@ -74,6 +88,18 @@ fn parse() -> Result<Opts, String> {
             "--seed" => o.seed = num(&v)?,
             "--marks" => {
                 o.marks = v.split(',').map(num).collect::<Result<_, _>>()?;
+            }
+            "--turns" => {
+                o.turns = Some(match v.as_str() {
+                    "banned" => TurnRules::default(),
+                    "trucks" => TurnRules::trucks(TurnPenalties {
+                        left: 30,
+                        right: 5,
+                        u_turn: 60,
+                        straight: 0,
+                    }),
+                    _ => return Err(format!("--turns: banned or trucks, not {v}")),
+                })
             }
             "--districts" => {
                 o.districts = match v.as_str() {
@@ -155,15 +181,31 @@ fn main() {
             std::process::exit(2);
         }
     };
+    let inst = if o.any_fleet {
+        let mut fleet = inst.fleet().clone();
+        fleet.max_vehicles = None;
+        inst.with_fleet(fleet).unwrap_or_else(|e| panic!("{e}"))
+    } else {
+        inst
+    };
+    let inst = match o.turns {
+        Some(rules) => inst.with_turn_rules(Some(rules)).unwrap_or_else(|e| {
+            eprintln!("scale: turn rules: {e:?}");
+            std::process::exit(2);
+        }),
+        None => inst,
+    };
     println!(
-        "{}: {} streets to serve, read in {:.1} s; {} workers, seed {}, limit {} s, {:?}",
+        "{}: {} streets to serve, read in {:.1} s; {} workers, seed {}, limit {} s, {:?}, turns {}, at most {:?} trucks",
         inst.name,
         inst.tasks().len(),
         t0.elapsed().as_secs_f64(),
         o.workers,
         o.seed,
         o.seconds,
-        o.districts
+        o.districts,
+        o.turns.as_ref().map_or("off".into(), |t| format!("{:?} U-turns, {:?}", t.u_turns, t.penalties)),
+        inst.fleet().max_vehicles
     );
     let log: Mutex<Vec<(Duration, Option<Cost>)>> = Mutex::new(Vec::new());
     let offset = t0.elapsed();

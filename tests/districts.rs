@@ -152,3 +152,52 @@ fn glued_copies_of_gdb1_reach_k_times_the_published_optimum() {
     // each copy (gdb1 is solved to optimality by the island search).
     assert!(sol.cost <= opt + opt / 50, "{} vs optimum {opt}", sol.cost);
 }
+
+/// Distances answered on demand give exactly the plan of the full matrices
+/// (same values, so the same search), and with turn rules the district
+/// search keeps plans valid and deterministic for the seed and worker count.
+#[test]
+fn on_demand_distances_and_turn_rules_in_districts() {
+    use arcwright::paths::Distances;
+    use arcwright::turns::TurnRules;
+    let inst = small_town();
+    let run = |dist: &Distances| {
+        Solver::new(&inst)
+            .seed(3)
+            .workers(2)
+            .distances(dist)
+            .decomposition(districts(40))
+            .max_iterations(200)
+            .solve()
+            .expect("plan")
+    };
+    let full = Distances::new(&inst).unwrap();
+    let lazy = Distances::on_demand(&inst);
+    let (a, b) = (run(&full), run(&lazy));
+    assert_eq!(a.plan.routes, b.plan.routes);
+    assert_eq!(a.cost, b.cost);
+    assert!(check_plan(&inst, &b.plan).is_ok());
+
+    let turned = small_town()
+        .with_turn_rules(Some(TurnRules::default()))
+        .unwrap();
+    let solve = |workers| {
+        Solver::new(&turned)
+            .seed(4)
+            .workers(workers)
+            .decomposition(districts(40))
+            .max_iterations(200)
+            .solve()
+            .expect("plan")
+    };
+    let (x, y) = (solve(2), solve(1));
+    assert!(
+        check_plan(&turned, &x.plan).is_ok(),
+        "{:?}",
+        check_plan(&turned, &x.plan)
+    );
+    assert_eq!(x.plan.routes, y.plan.routes);
+    assert_eq!(x.cost, y.cost);
+    // Banned U-turns can only make the plan dearer than free turns allow.
+    assert!(x.cost >= a.lower_bound.value);
+}

@@ -130,3 +130,78 @@ fn distances_and_paths_agree_with_floyd_warshall() {
     println!("{pairs} pairs compared, {reachable} reachable");
     assert!(reachable > pairs / 3);
 }
+
+/// On-demand distances (searched when asked, cached rows that grow, blocks
+/// of legs) equal Floyd–Warshall on random mixed instances, asked in a
+/// random order so that rows are searched, found short and searched again.
+#[test]
+fn on_demand_distances_agree_with_floyd_warshall() {
+    use arcwright::model::{Fleet, Instance, ServeDirection, ServiceSpec};
+    let mut rng = ChaCha8Rng::seed_from_u64(20261203);
+    let mut checked = 0;
+    for _ in 0..300 {
+        let mut net = random_network(&mut rng);
+        let n = net.len();
+        for l in net.links.iter_mut() {
+            if rng.random_bool(0.4) {
+                l.service = Some(ServiceSpec {
+                    demand: 1,
+                    cost: l.cost,
+                    time: None,
+                    direction: if l.oneway {
+                        ServeDirection::Forward
+                    } else {
+                        ServeDirection::Either
+                    },
+                });
+            }
+        }
+        let with_times = net.links.iter().any(|l| l.time.is_some());
+        let depot = rng.random_range(0..n);
+        let Ok(inst) = Instance::new("random", net.clone(), Fleet::with_capacity(1000), depot)
+        else {
+            continue;
+        };
+        let fw = floyd(&net, with_times || inst.has_times());
+        let dist = Distances::on_demand(&inst);
+        assert!(dist.is_on_demand());
+        let keys = dist.keys().to_vec();
+        let mut pairs: Vec<(usize, usize)> = keys
+            .iter()
+            .flat_map(|&u| keys.iter().map(move |&v| (u, v)))
+            .collect();
+        for i in (1..pairs.len()).rev() {
+            pairs.swap(i, rng.random_range(0..=i));
+        }
+        for (u, v) in pairs {
+            let (fc, ft) = fw[u][v];
+            if fc == i64::MAX {
+                assert_eq!(dist.cost(u, v), UNREACHABLE, "{u}->{v} in {net:?}");
+            } else {
+                assert_eq!(dist.leg(u, v), (fc, ft), "{u}->{v} in {net:?}");
+            }
+            checked += 1;
+        }
+    }
+    assert!(checked > 2000, "only {checked} pairs");
+}
+
+/// On a town larger than a cached row (hundreds of junctions), on-demand
+/// distances equal the full matrices (themselves equal to Floyd–Warshall
+/// above) for every pair of key junctions, asked in a random order.
+#[test]
+fn on_demand_distances_equal_the_full_matrix_on_a_town() {
+    use arcwright::demo::{town, TownSpec};
+    let inst = town(&TownSpec::new(3, 14)).expect("town");
+    let full = Distances::new(&inst).unwrap();
+    assert!(!full.is_on_demand());
+    let lazy = Distances::on_demand(&inst);
+    let keys = full.keys().to_vec();
+    assert!(keys.len() > 2 * 256, "{} keys", keys.len());
+    let mut rng = ChaCha8Rng::seed_from_u64(7);
+    for _ in 0..60_000 {
+        let u = keys[rng.random_range(0..keys.len())];
+        let v = keys[rng.random_range(0..keys.len())];
+        assert_eq!(lazy.leg(u, v), full.leg(u, v), "{u}->{v}");
+    }
+}

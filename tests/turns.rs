@@ -592,3 +592,34 @@ fn left_turn_penalties_change_the_enumerated_optimum() {
     check_plan(&turned, &sol.plan).unwrap();
     assert!(sol.lower_bound.value <= best_turned);
 }
+
+/// Turn-aware distances answered on demand (yard row and column from a
+/// forward and a reversed search, other legs by cached searches and by
+/// blocks) equal the full matrices, which equal the petgraph reference above.
+#[test]
+fn on_demand_turn_distances_equal_the_full_matrices() {
+    // The larger town has more driving arcs than a new cached row holds.
+    for inst in [small_town(true), town(&TownSpec::new(5, 9)).unwrap()] {
+        for rules in [
+            TurnRules::default(),
+            TurnRules::trucks(TurnPenalties {
+                straight: 0,
+                right: 3,
+                left: 11,
+                u_turn: 40,
+            }),
+        ] {
+            let table = TurnTable::new(&inst, &rules).unwrap();
+            let full = TurnDistances::full(&inst, &table);
+            let lazy = TurnDistances::on_demand(&inst, &table);
+            assert!(lazy.is_on_demand() && !full.is_on_demand());
+            let w = full.width();
+            // Backwards, so that rows are asked far targets first and near later.
+            for a in (0..w).rev() {
+                for b in (0..w).rev() {
+                    assert_eq!(lazy.leg(a, b), full.leg(a, b), "{a} -> {b} under {rules:?}");
+                }
+            }
+        }
+    }
+}

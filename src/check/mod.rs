@@ -59,6 +59,8 @@ use std::cmp::Reverse;
 use std::collections::{BTreeMap, BinaryHeap};
 use std::fmt;
 
+use rayon::prelude::*;
+
 use crate::model::{Cost, Dir, Instance};
 use crate::plan::{Plan, Step};
 use crate::turns::{TurnKind, TurnWalk};
@@ -397,9 +399,24 @@ fn adjacency(inst: &Instance) -> Vec<Vec<(usize, Cost, Cost)>> {
 }
 
 /// Lexicographic (cost, time) Dijkstra from `s`; `None` for unreachable.
-fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost, Cost)>> {
+/// Least (cost, time) from `s` to every junction, found in order; the search
+/// stops once every junction of `targets` is settled (values of junctions
+/// not settled by then may be missing or too high: read only the targets).
+fn shortest_from(
+    adj: &[Vec<(usize, Cost, Cost)>],
+    s: usize,
+    targets: &[usize],
+) -> Vec<Option<(Cost, Cost)>> {
     let mut best: Vec<Option<(Cost, Cost)>> = vec![None; adj.len()];
     let mut done = vec![false; adj.len()];
+    let mut wanted = vec![false; adj.len()];
+    let mut left = 0usize;
+    for &t in targets {
+        if !wanted[t] {
+            wanted[t] = true;
+            left += 1;
+        }
+    }
     let mut heap = BinaryHeap::new();
     best[s] = Some((0, 0));
     heap.push(Reverse((0 as Cost, 0 as Cost, s)));
@@ -408,6 +425,12 @@ fn shortest_from(adj: &[Vec<(usize, Cost, Cost)>], s: usize) -> Vec<Option<(Cost
             continue;
         }
         done[v] = true;
+        if wanted[v] {
+            left -= 1;
+            if left == 0 {
+                break;
+            }
+        }
         for &(w, lc, lt) in &adj[v] {
             let cand = (c.saturating_add(lc), t.saturating_add(lt));
             if !done[w] && best[w].is_none_or(|b| cand < b) {
@@ -485,13 +508,25 @@ pub fn check_plan(inst: &Instance, plan: &Plan) -> Result<(), Vec<Violation>> {
     } else {
         leg_distances(inst, &legs)
     };
+    // Routes are priced in parallel (rayon); their findings are listed in
+    // route order as before.
+    let priced: Vec<(Found, Vec<Violation>)> = plan
+        .routes
+        .par_iter()
+        .enumerate()
+        .map(|(r, route)| {
+            let mut own = Vec::new();
+            let found = match &turns {
+                Some(t) => turns::route_totals(inst, t, r, route, &mut own),
+                None => route_totals(inst, r, route, &legs[r], &leg_dist, &mut own),
+            };
+            (found, own)
+        })
+        .collect();
     let mut total: Cost = 0;
     let mut total_known = true;
-    for (r, route) in plan.routes.iter().enumerate() {
-        let found = match &turns {
-            Some(t) => turns::route_totals(inst, t, r, route, &mut out),
-            None => route_totals(inst, r, route, &legs[r], &leg_dist, &mut out),
-        };
+    for ((r, route), (found, own)) in plan.routes.iter().enumerate().zip(priced) {
+        out.extend(own);
         limits(
             inst,
             r,
@@ -636,7 +671,10 @@ fn legs_of(inst: &Instance, route: &crate::plan::Route) -> Vec<(usize, usize)> {
     legs
 }
 
-type LegDistances = BTreeMap<(usize, usize), Option<(Cost, Cost)>>;
+type LegDistances = BTreeMap<Leg, Option<(Cost, Cost)>>;
+
+/// A leg: from junction, to junction.
+type Leg = (usize, usize);
 
 /// Least cost (and its time) of every leg, one search per distinct start.
 fn leg_distances(inst: &Instance, legs: &[Vec<(usize, usize)>]) -> LegDistances {
@@ -645,14 +683,16 @@ fn leg_distances(inst: &Instance, legs: &[Vec<(usize, usize)>]) -> LegDistances 
     for l in legs.iter().flatten() {
         by_source.entry(l.0).or_default().push(l.1);
     }
-    let mut leg_dist = BTreeMap::new();
-    for (s, targets) in by_source {
-        let d = shortest_from(&adj, s);
-        for t in targets {
-            leg_dist.insert((s, t), d[t]);
-        }
-    }
-    leg_dist
+    // One search per distinct start, stopped when its ends are reached; in
+    // parallel (rayon), collected in the starts' order.
+    let found: Vec<LegDistances> = by_source
+        .into_par_iter()
+        .map(|(s, targets)| {
+            let d = shortest_from(&adj, s, &targets);
+            targets.iter().map(|&t| ((s, t), d[t])).collect()
+        })
+        .collect();
+    found.into_iter().flatten().collect()
 }
 
 /// A route's recomputed load, cost (`None` when a leg has no path) and time.

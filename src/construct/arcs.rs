@@ -20,6 +20,16 @@
 //! so the lookup has no branch (measured with `cargo bench --bench kernels`:
 //! no change on egl-e4-C against a plain `a * arcs + b`).
 //!
+//! - *on demand*, when the distances given are
+//!   ([`Distances::is_on_demand`], above 8,192 key junctions;
+//!   [`TurnDistances::is_on_demand`], above 2,048 streets with turn rules):
+//!   no square matrix; each leg is asked of the distances (searched and
+//!   cached there), and [`ArcMatrix::restrict`] builds a district's dense
+//!   matrix by one search per district junction that stops when every
+//!   street of the district is reached. A leg longer than the route-length
+//!   check assumed (twice the longest yard leg, see `on_demand`) reads as
+//!   missing; without turns no leg is (the way through the yard bounds it).
+//!
 //! Entries are `i32` (a deadhead of at most [`MAX_LEG`]); a missing path is
 //! stored as `-1` and read as [`BIG`] (`2^40`), which no feasible route ever
 //! pays: the solver refuses instances on which a route could cost or take
@@ -54,7 +64,22 @@ fn decode(x: i32) -> i64 {
 /// Largest number of arcs stored in the by-arc layout (64 MiB per matrix).
 pub const DENSE_ARCS: usize = 4096;
 
-/// Dense arc-to-arc deadhead costs (and times) plus per-task data.
+/// Where the legs of an on-demand matrix come from.
+#[derive(Clone, Debug)]
+enum Legs {
+    /// Plain deadheads between junctions: each arc's start and end junction.
+    Junctions {
+        dist: Box<Distances>,
+        start: Vec<u32>,
+        end: Vec<u32>,
+    },
+    /// Turn-aware deadheads between task arcs (the yard is `2n`).
+    Turns(TurnDistances),
+}
+
+/// Arc-to-arc deadhead costs (and times) plus per-task data: dense
+/// matrices, or answered on demand when the distances are
+/// ([`Distances::is_on_demand`], [`TurnDistances::is_on_demand`]).
 #[derive(Clone, Debug)]
 pub struct ArcMatrix {
     /// Number of tasks `n`.
@@ -85,6 +110,11 @@ pub struct ArcMatrix {
     pub shift: Option<i64>,
     /// Fleet bound, if any.
     pub max_routes: Option<usize>,
+    /// On-demand legs (the matrices are then empty).
+    legs: Option<Legs>,
+    /// On demand: legs above this read as missing ([`BIG`]); the longest
+    /// leg the route-length check assumes.
+    cap: i64,
 }
 
 /// The deadheads do not fit the solver's 32-bit matrix.
@@ -155,6 +185,33 @@ impl ArcMatrix {
             }
         }
         let timed = inst.fleet().shift_limit.is_some();
+        if dist.is_on_demand() {
+            let legs = Legs::Junctions {
+                dist: Box::new(dist.clone()),
+                start: start.iter().map(|&v| v as u32).collect(),
+                end: end.iter().map(|&v| v as u32).collect(),
+            };
+            let base = ArcMatrix {
+                n,
+                arcs,
+                depot: (2 * n) as u32,
+                keys: 0,
+                kstart: Vec::new(),
+                kend_row: Vec::new(),
+                cost: Vec::new(),
+                time: None,
+                serve_cost,
+                serve_time,
+                demand,
+                allowed,
+                capacity: inst.fleet().capacity,
+                shift: inst.fleet().shift_limit,
+                max_routes: inst.fleet().max_vehicles,
+                legs: None,
+                cap: MAX_LEG,
+            };
+            return Ok(base.on_demand(legs));
+        }
         // Local numbering of the junctions the arcs touch (all are keys of
         // `dist`, which holds at least the depot and the task ends).
         let mut local: Vec<usize> = start.iter().chain(&end).copied().collect();
@@ -208,6 +265,8 @@ impl ArcMatrix {
             capacity: inst.fleet().capacity,
             shift: inst.fleet().shift_limit,
             max_routes: inst.fleet().max_vehicles,
+            legs: None,
+            cap: MAX_LEG,
         })
     }
 
@@ -235,6 +294,28 @@ impl ArcMatrix {
             }
         }
         let timed = inst.fleet().shift_limit.is_some();
+        if td.is_on_demand() {
+            let base = ArcMatrix {
+                n,
+                arcs,
+                depot: (2 * n) as u32,
+                keys: 0,
+                kstart: Vec::new(),
+                kend_row: Vec::new(),
+                cost: Vec::new(),
+                time: None,
+                serve_cost,
+                serve_time,
+                demand,
+                allowed,
+                capacity: inst.fleet().capacity,
+                shift: inst.fleet().shift_limit,
+                max_routes: inst.fleet().max_vehicles,
+                legs: None,
+                cap: MAX_LEG,
+            };
+            return Ok(base.on_demand(Legs::Turns(td.clone())));
+        }
         let conv = |x: Cost| -> Result<i32, MatrixOverflow> {
             if x >= UNREACHABLE {
                 Ok(MISSING)
@@ -272,13 +353,104 @@ impl ArcMatrix {
             capacity: inst.fleet().capacity,
             shift: inst.fleet().shift_limit,
             max_routes: inst.fleet().max_vehicles,
+            legs: None,
+            cap: MAX_LEG,
         })
     }
 
     /// Deadhead cost from the end of `a` to the start of `b`.
     #[inline(always)]
     pub fn d(&self, a: u32, b: u32) -> i64 {
+        if self.legs.is_some() {
+            return self.leg(a, b).0;
+        }
         decode(self.cost[self.cell(a, b)])
+    }
+
+    /// The matrix answering on demand from `legs`, with its length cap set
+    /// from the yard's legs (see [`ArcMatrix::longest_legs`]).
+    fn on_demand(mut self, legs: Legs) -> ArcMatrix {
+        self.legs = Some(legs);
+        self.cap = i64::MAX;
+        let (d, t) = self.yard_legs();
+        // Without turns a leg is at most the way through the yard; with turns
+        // (a turn at the yard may be banned) the same bound is assumed and a
+        // longer leg reads as missing, which only forgoes such routes.
+        self.cap = (2 * d.max(t)).min(MAX_LEG);
+        self
+    }
+
+    /// The longest leg out of the yard plus the longest into it (cost, time).
+    fn yard_legs(&self) -> (i64, i64) {
+        let (mut d, mut t) = ((0, 0), (0, 0));
+        for a in 0..2 * self.n as u32 {
+            let (c1, t1) = self.leg(self.depot, a);
+            let (c2, t2) = self.leg(a, self.depot);
+            if c1 < BIG {
+                d.0 = d.0.max(c1);
+                t.0 = t.0.max(t1);
+            }
+            if c2 < BIG {
+                d.1 = d.1.max(c2);
+                t.1 = t.1.max(t2);
+            }
+        }
+        (d.0 + d.1, t.0 + t.1)
+    }
+
+    /// An on-demand leg (cost, time); [`BIG`] when missing or above the cap.
+    #[inline(never)]
+    fn leg(&self, a: u32, b: u32) -> (i64, i64) {
+        let (c, t) = match self.legs.as_ref().expect("on-demand legs") {
+            Legs::Junctions { dist, start, end } => {
+                dist.leg(end[a as usize] as usize, start[b as usize] as usize)
+            }
+            Legs::Turns(td) => {
+                let key = |x: u32| (x as usize).min(2 * self.n);
+                td.leg(key(a), key(b))
+            }
+        };
+        self.capped(c, t)
+    }
+
+    fn capped(&self, c: Cost, t: Cost) -> (i64, i64) {
+        if c >= UNREACHABLE || c > self.cap || t > self.cap {
+            (BIG, BIG)
+        } else {
+            (c, t)
+        }
+    }
+
+    /// The legs (cost, time) from the end of `a` to the start of every arc,
+    /// from one full search when on demand ([`BIG`] for missing ones).
+    pub fn row_from(&self, a: u32) -> Vec<(i64, i64)> {
+        let Some(legs) = &self.legs else {
+            return (0..self.arcs as u32).map(|b| (self.d(a, b), self.t(a, b))).collect();
+        };
+        let pick = |(c, t): (i64, i64)| if self.timed() { (c, t) } else { (c, c) };
+        match legs {
+            Legs::Junctions { dist, start, end } => {
+                let row = dist.row(end[a as usize] as usize);
+                start
+                    .iter()
+                    .map(|&v| pick(self.capped(row[v as usize].0, row[v as usize].1)))
+                    .collect()
+            }
+            Legs::Turns(td) => {
+                let row = td.row((a as usize).min(2 * self.n));
+                (0..self.arcs)
+                    .map(|b| {
+                        let (c, t) = row[b.min(2 * self.n)];
+                        pick(self.capped(c, t))
+                    })
+                    .collect()
+            }
+        }
+    }
+
+    /// Whether the legs are answered on demand.
+    pub fn is_on_demand(&self) -> bool {
+        self.legs.is_some()
     }
 
     #[inline(always)]
@@ -288,6 +460,9 @@ impl ArcMatrix {
 
     /// The longest stored deadhead cost and time (missing paths left out).
     pub fn longest_legs(&self) -> (i64, i64) {
+        if self.legs.is_some() {
+            return (self.cap, self.cap);
+        }
         let longest = |v: &[i32]| v.iter().copied().max().unwrap_or(0).max(0) as i64;
         let d = longest(&self.cost);
         (d, self.time.as_deref().map_or(d, longest))
@@ -307,6 +482,13 @@ impl ArcMatrix {
     /// there is no shift limit).
     #[inline(always)]
     pub fn t(&self, a: u32, b: u32) -> i64 {
+        if self.legs.is_some() {
+            return if self.timed() {
+                self.leg(a, b).1
+            } else {
+                self.leg(a, b).0
+            };
+        }
         match &self.time {
             Some(t) => decode(t[self.cell(a, b)]),
             None => self.d(a, b),
@@ -372,7 +554,8 @@ impl ArcMatrix {
     /// distinct): a matrix in the by-arc layout whose task `i` is task
     /// `tasks[i]` here (arc `2i + k` is arc `2 tasks[i] + k`), with the same
     /// depot, capacity and shift and the fleet bound `max_routes`. Entries
-    /// are copied, so costs are exactly this matrix's. Memory `4 (2s + 2)^2`
+    /// are copied (on demand: searched among the district's streets only),
+    /// so costs are exactly this matrix's. Memory `4 (2s + 2)^2`
     /// bytes (twice with times) for `s` tasks: the district search's matrix.
     pub fn restrict(&self, tasks: &[usize], max_routes: Option<usize>) -> ArcMatrix {
         let s = tasks.len();
@@ -389,6 +572,10 @@ impl ArcMatrix {
             }
             out
         };
+        let (cost, time) = match &self.legs {
+            None => (copy(&self.cost), self.time.as_deref().map(copy)),
+            Some(legs) => self.block(legs, &parent),
+        };
         let pick_i64 = |v: &[i64]| parent.iter().map(|&a| v[a as usize]).collect();
         ArcMatrix {
             n: s,
@@ -397,8 +584,8 @@ impl ArcMatrix {
             keys: arcs,
             kstart: (0..arcs as u32).collect(),
             kend_row: (0..arcs).map(|a| a * arcs).collect(),
-            cost: copy(&self.cost),
-            time: self.time.as_deref().map(copy),
+            cost,
+            time,
             serve_cost: pick_i64(&self.serve_cost),
             serve_time: pick_i64(&self.serve_time),
             demand: pick_i64(&self.demand),
@@ -406,7 +593,35 @@ impl ArcMatrix {
             capacity: self.capacity,
             shift: self.shift,
             max_routes,
+            legs: None,
+            cap: MAX_LEG,
         }
+    }
+
+    /// The dense cost (and time) matrix among `arcs` from on-demand legs:
+    /// one bounded search per row (see [`crate::paths::on_demand`]).
+    fn block(&self, legs: &Legs, arcs: &[u32]) -> (Vec<i32>, Option<Vec<i32>>) {
+        let found = match legs {
+            Legs::Junctions { dist, start, end } => {
+                let rows: Vec<usize> = arcs.iter().map(|&a| end[a as usize] as usize).collect();
+                let cols: Vec<usize> = arcs.iter().map(|&a| start[a as usize] as usize).collect();
+                dist.block(&rows, &cols)
+            }
+            Legs::Turns(td) => {
+                let keys: Vec<usize> = arcs.iter().map(|&a| (a as usize).min(2 * self.n)).collect();
+                td.block(&keys, &keys)
+            }
+        };
+        let store = |x: i64| if x >= BIG { MISSING } else { x as i32 };
+        let (mut cost, mut time) = (Vec::with_capacity(found.len()), Vec::new());
+        for &(c, t) in &found {
+            let (c, t) = self.capped(c, t);
+            cost.push(store(c));
+            if self.timed() {
+                time.push(store(t));
+            }
+        }
+        (cost, self.timed().then_some(time))
     }
 
     /// Minimum deadhead between two tasks in any allowed directions, both ways.

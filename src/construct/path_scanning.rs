@@ -203,7 +203,13 @@ pub fn path_scan_listed<R: Rng>(
                 nearest(m, near.filter(|&t| !served[t]), at, load, time, &mut ties);
             }
             if ties.is_empty() {
-                nearest(m, left.iter().copied(), at, load, time, &mut ties);
+                if m.is_on_demand() && at != m.depot {
+                    // One full search instead of a leg asked per unserved task.
+                    let row = m.row_from(at);
+                    nearest_by(m, left.iter().copied(), |a| row[a as usize], load, time, &mut ties);
+                } else {
+                    nearest(m, left.iter().copied(), at, load, time, &mut ties);
+                }
             }
             if ties.is_empty() {
                 break;
@@ -238,6 +244,18 @@ fn nearest(
     time: i64,
     ties: &mut Vec<u32>,
 ) {
+    nearest_by(m, tasks, |a| (m.d(at, a), m.t(at, a)), load, time, ties)
+}
+
+/// [`nearest`] with the legs from the current arc given by `leg` (cost, time).
+fn nearest_by(
+    m: &ArcMatrix,
+    tasks: impl Iterator<Item = usize>,
+    leg: impl Fn(u32) -> (i64, i64),
+    load: i64,
+    time: i64,
+    ties: &mut Vec<u32>,
+) {
     let mut best_d = i64::MAX;
     for t in tasks {
         if load + m.demand[2 * t] > m.capacity {
@@ -247,12 +265,12 @@ fn nearest(
             if !m.allowed[a as usize] {
                 continue;
             }
-            let d = m.d(at, a);
+            let (d, lt) = leg(a);
             if d >= BIG || d > best_d {
                 continue;
             }
             if let Some(s) = m.shift {
-                if time + m.t(at, a) + m.serve_time[a as usize] + m.t(a, m.depot) > s {
+                if time + lt + m.serve_time[a as usize] + m.t(a, m.depot) > s {
                     continue;
                 }
             }

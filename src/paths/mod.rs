@@ -9,8 +9,12 @@
 //! **Memory.** With `K` key junctions the matrices take `4·K²` bytes (cost
 //! only) or `8·K²` bytes (when times differ from costs), plus `O(N + M)` for
 //! the adjacency of a network of `N` junctions and `M` links. A network whose
-//! 20,000 junctions are all key junctions needs 1.6 GB (3.2 GB with times).
-//! Paths are not stored: [`Distances::path`] re-runs one Dijkstra search to
+//! 20,000 junctions are all key junctions would need 1.6 GB (3.2 GB with
+//! times): above [`FULL_MATRIX_KEYS`] key junctions [`Distances::new`]
+//! therefore answers on demand ([`Distances::on_demand`]): the yard's row and
+//! column in full, any other leg by a search from its start when first asked,
+//! kept in a bounded cache (at most [`CACHE_ENTRIES`] entries of 20 bytes).
+//! The values are the same either way. Paths are not stored: [`Distances::path`] re-runs one Dijkstra search to
 //! write a deadhead out street by street, which is only needed for output.
 //!
 //! Sources are processed in parallel with rayon; the result does not depend
@@ -18,8 +22,15 @@
 
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
+use std::sync::Arc;
 
 use rayon::prelude::*;
+
+pub(crate) mod on_demand;
+
+pub use on_demand::CACHE_ENTRIES;
+
+use on_demand::{RowCache, Settled, StateGraph, Until};
 
 use crate::model::{Cost, Instance, Network};
 
@@ -49,14 +60,38 @@ struct Adjacency {
     link: Vec<u32>,
 }
 
+impl StateGraph for Adjacency {
+    fn states(&self) -> usize {
+        self.start.len() - 1
+    }
+
+    fn moves(&self, s: u32, f: &mut dyn FnMut(u32, Cost, Cost)) {
+        for p in self.start[s as usize] as usize..self.start[s as usize + 1] as usize {
+            f(self.to[p], self.cost[p], self.time[p]);
+        }
+    }
+}
+
 impl Adjacency {
     fn new(net: &Network) -> Self {
+        Self::build(net, false)
+    }
+
+    /// The adjacency of `net`, with every link turned round when `reversed`.
+    fn build(net: &Network, reversed: bool) -> Self {
         let n = net.junctions.len();
         let mut deg = vec![0u32; n + 1];
+        let ends = |l: &crate::model::Link| {
+            if reversed {
+                (l.to, l.from)
+            } else {
+                (l.from, l.to)
+            }
+        };
         for l in &net.links {
-            deg[l.from] += 1;
+            deg[ends(l).0] += 1;
             if !l.oneway {
-                deg[l.to] += 1;
+                deg[ends(l).1] += 1;
             }
         }
         let mut start = vec![0u32; n + 1];
@@ -76,9 +111,10 @@ impl Adjacency {
                 time[p] = l.drive_time();
                 link[p] = i as u32;
             };
-            put(l.from, l.to);
+            let (a, b) = ends(l);
+            put(a, b);
             if !l.oneway {
-                put(l.to, l.from);
+                put(b, a);
             }
         }
         Adjacency {
@@ -141,7 +177,13 @@ pub enum DistanceError {
 /// One source's rows of the cost and (optional) time matrices.
 type Row<'a> = (usize, &'a mut [u32], Option<&'a mut [u32]>);
 
-/// All-pairs shortest deadhead costs and times between key junctions.
+/// Above this many key junctions [`Distances::new`] answers on demand
+/// ([`Distances::on_demand`]) instead of holding square matrices (which
+/// would take more than 256 MiB, 512 MiB with times).
+pub const FULL_MATRIX_KEYS: usize = 8192;
+
+/// Shortest deadhead costs and times between key junctions: all pairs in
+/// square matrices, or on demand with a cache for large networks.
 #[derive(Clone, Debug)]
 pub struct Distances {
     adj: Adjacency,
@@ -149,6 +191,17 @@ pub struct Distances {
     key_of: Vec<u32>,
     cost: Vec<u32>,
     time: Option<Vec<u32>>,
+    lazy: Option<Arc<Lazy>>,
+}
+
+/// The on-demand side of [`Distances`]: the yard's row and column in full,
+/// other legs searched when asked and cached ([`on_demand`]).
+#[derive(Debug)]
+struct Lazy {
+    depot: usize,
+    from_depot: Vec<(Cost, Cost)>,
+    to_depot: Vec<(Cost, Cost)>,
+    cache: RowCache,
 }
 
 impl Distances {
@@ -174,12 +227,188 @@ impl Distances {
     /// assert_eq!(dist.cost(0, 2), 7); // 0 -> 1 -> 2 beats the direct 9
     /// ```
     pub fn new(inst: &Instance) -> Result<Self, DistanceError> {
+        let keys = Self::keys_of(inst);
+        if keys.len() > FULL_MATRIX_KEYS {
+            return Ok(Self::on_demand(inst));
+        }
+        Self::between(inst.network(), keys, inst.has_times())
+    }
+
+    /// The yard and every street end of `inst`, sorted, without repeats.
+    fn keys_of(inst: &Instance) -> Vec<usize> {
         let mut keys = vec![inst.depot()];
         for t in inst.tasks() {
             keys.push(t.tail);
             keys.push(t.head);
         }
-        Self::between(inst.network(), keys, inst.has_times())
+        keys.sort_unstable();
+        keys.dedup();
+        keys
+    }
+
+    /// Distances of `inst` answered on demand: the yard's row and column are
+    /// computed in full (two searches), any other leg by a search from its
+    /// start when first asked, kept in a bounded cache: a row of the nearest
+    /// junctions per start (grown when a leg falls outside it, up to 4,096
+    /// junctions) and single far legs beyond; the whole cache is dropped
+    /// when it would pass [`CACHE_ENTRIES`]. Values equal those of
+    /// [`Distances::new`] with square matrices, and are not limited to 32
+    /// bits. What [`Distances::new`] chooses above [`FULL_MATRIX_KEYS`] key
+    /// junctions.
+    ///
+    /// # Complexity
+    /// `O(V + E)` memory for the network and the yard's row and column, plus
+    /// the cache (at most [`CACHE_ENTRIES`] entries); each
+    /// question not in the cache costs one search that stops as soon as it
+    /// reaches the asked junction (and a minimum number of others).
+    ///
+    /// ```
+    /// use arcwright::model::{Fleet, Instance, Network};
+    /// use arcwright::paths::Distances;
+    /// let mut net = Network::with_junctions(3);
+    /// net.add_required_edge(1, 2, 4, 1);
+    /// net.add_edge(0, 1, 3);
+    /// net.add_edge(0, 2, 9);
+    /// let inst = Instance::new("detour", net, Fleet::with_capacity(5), 0).unwrap();
+    /// let dist = Distances::on_demand(&inst);
+    /// assert_eq!(dist.cost(0, 2), 7);
+    /// assert_eq!(dist.cost(2, 1), 4);
+    /// ```
+    pub fn on_demand(inst: &Instance) -> Self {
+        let net = inst.network();
+        let keys = Self::keys_of(inst);
+        let adj = Adjacency::new(net);
+        let rev = Adjacency::build(net, true);
+        let depot = inst.depot();
+        let n = net.junctions.len();
+        let mut key_of = vec![NONE; n];
+        for (i, &v) in keys.iter().enumerate() {
+            key_of[v] = i as u32;
+        }
+        let init = [(depot as u32, 0, 0)];
+        let (from_depot, to_depot) = rayon::join(
+            || on_demand::full_values(n, &on_demand::settle(&adj, &init, Until::All)),
+            || on_demand::full_values(n, &on_demand::settle(&rev, &init, Until::All)),
+        );
+        Distances {
+            adj,
+            keys,
+            key_of,
+            cost: Vec::new(),
+            time: None,
+            lazy: Some(Arc::new(Lazy {
+                depot,
+                from_depot,
+                to_depot,
+                cache: RowCache::new(n),
+            })),
+        }
+    }
+
+    /// Whether the legs are answered on demand (not held in matrices).
+    pub fn is_on_demand(&self) -> bool {
+        self.lazy.is_some()
+    }
+
+    /// The least cost from `u` to `v` and the time along that path
+    /// ([`UNREACHABLE`] for both when there is none).
+    ///
+    /// # Panics
+    /// If `u` or `v` is not a key junction (a programming error).
+    pub fn leg(&self, u: usize, v: usize) -> (Cost, Cost) {
+        match &self.lazy {
+            None => (self.cost(u, v), self.time(u, v)),
+            Some(z) => {
+                let _ = self.idx(u, v);
+                self.lazy_leg(z, u, v)
+            }
+        }
+    }
+
+    fn lazy_leg(&self, z: &Lazy, u: usize, v: usize) -> (Cost, Cost) {
+        if u == z.depot {
+            z.from_depot[v]
+        } else if v == z.depot {
+            z.to_depot[u]
+        } else if u == v {
+            (0, 0)
+        } else {
+            let init = [(u as u32, 0, 0)];
+            z.cache.leg(u, v as u32, |v, min| -> Settled {
+                on_demand::settle(&self.adj, &init, Until::Reach(v, min))
+            })
+        }
+    }
+
+    /// Legs from `u` to every junction (indexed by junction): one full
+    /// search when on demand (not cached), the matrix row otherwise (key
+    /// junctions only; others read unreachable).
+    pub(crate) fn row(&self, u: usize) -> Vec<(Cost, Cost)> {
+        match &self.lazy {
+            Some(z) if u == z.depot => z.from_depot.clone(),
+            Some(_) => {
+                let n = self.key_of.len();
+                on_demand::full_values(
+                    n,
+                    &on_demand::settle(&self.adj, &[(u as u32, 0, 0)], Until::All),
+                )
+            }
+            None => {
+                let mut out = vec![(UNREACHABLE, UNREACHABLE); self.key_of.len()];
+                for &v in &self.keys {
+                    out[v] = self.leg(u, v);
+                }
+                out
+            }
+        }
+    }
+
+    /// Legs from every junction of `rows` to every junction of `cols`
+    /// (row-major): lookups in the matrices, or on demand one search per
+    /// row that stops when every column is reached (not cached).
+    pub(crate) fn block(&self, rows: &[usize], cols: &[usize]) -> Vec<(Cost, Cost)> {
+        let Some(z) = &self.lazy else {
+            return rows
+                .iter()
+                .flat_map(|&u| cols.iter().map(move |&v| (u, v)))
+                .map(|(u, v)| self.leg(u, v))
+                .collect();
+        };
+        let mut uniq = rows.to_vec();
+        uniq.sort_unstable();
+        uniq.dedup();
+        let inits: Vec<Vec<(u32, Cost, Cost)>> = uniq
+            .iter()
+            .map(|&u| {
+                if u == z.depot {
+                    Vec::new()
+                } else {
+                    vec![(u as u32, 0, 0)]
+                }
+            })
+            .collect();
+        let targets: Vec<u32> = cols
+            .iter()
+            .filter(|&&v| v != z.depot)
+            .map(|&v| v as u32)
+            .collect();
+        let found = on_demand::block(&self.adj, &inits, &targets);
+        let mut out = Vec::with_capacity(rows.len() * cols.len());
+        for &u in rows {
+            let i = uniq.binary_search(&u).expect("a row");
+            let mut k = i * targets.len();
+            for &v in cols {
+                out.push(if u == z.depot {
+                    z.from_depot[v]
+                } else if v == z.depot {
+                    z.to_depot[u]
+                } else {
+                    k += 1;
+                    found[k - 1]
+                });
+            }
+        }
+        out
     }
 
     /// Computes distances between arbitrary junctions of a network.
@@ -250,6 +479,7 @@ impl Distances {
             key_of,
             cost,
             time: with_times.then_some(time),
+            lazy: None,
         })
     }
 
@@ -258,7 +488,7 @@ impl Distances {
     /// instance has them.
     pub(crate) fn serves(&self, inst: &Instance) -> bool {
         self.key_of.len() == inst.network().len()
-            && (self.time.is_some() || !inst.has_times())
+            && (self.time.is_some() || self.lazy.is_some() || !inst.has_times())
             && self.key_index(inst.depot()).is_some()
             && inst
                 .tasks()
@@ -292,6 +522,10 @@ impl Distances {
     /// # Panics
     /// If `u` or `v` is not a key junction (a programming error).
     pub fn cost(&self, u: usize, v: usize) -> Cost {
+        if let Some(z) = &self.lazy {
+            let _ = self.idx(u, v);
+            return self.lazy_leg(z, u, v).0;
+        }
         let x = self.cost[self.idx(u, v)];
         if x == NONE {
             UNREACHABLE
@@ -302,6 +536,10 @@ impl Distances {
 
     /// Driving time along the shortest deadhead path from `u` to `v`.
     pub fn time(&self, u: usize, v: usize) -> Cost {
+        if let Some(z) = &self.lazy {
+            let _ = self.idx(u, v);
+            return self.lazy_leg(z, u, v).1;
+        }
         match &self.time {
             Some(t) => {
                 let x = t[self.idx(u, v)];
@@ -346,7 +584,10 @@ impl Distances {
 
     /// Bytes held by the matrices (for reports).
     pub fn matrix_bytes(&self) -> usize {
-        4 * (self.cost.len() + self.time.as_ref().map_or(0, |t| t.len()))
+        let lazy = self.lazy.as_ref().map_or(0, |z| {
+            z.cache.bytes() + 16 * (z.from_depot.len() + z.to_depot.len())
+        });
+        4 * (self.cost.len() + self.time.as_ref().map_or(0, |t| t.len())) + lazy
     }
 }
 

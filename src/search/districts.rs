@@ -25,7 +25,12 @@
 //! stream derived from the seed, the round and its index; with iteration
 //! limits the result depends only on the seed (not even on the number of
 //! workers). Memory per district is `4 (2s + 2)^2` bytes for `s` streets
-//! (1 MiB for 400 streets; twice that with times).
+//! (1 MiB for 400 streets; twice that with times). When the solver's
+//! matrix answers on demand (city scale, with or without turn rules) a
+//! district's matrix comes from one search per district junction, stopped
+//! when the district's streets are reached; with turn rules it prices turns
+//! like the whole plan. A district not started by the deadline or stop flag
+//! is skipped.
 
 use std::sync::atomic::AtomicBool;
 use std::sync::Arc;
@@ -46,6 +51,17 @@ pub(super) struct Limits {
     pub deadline: Option<Instant>,
     pub stop: Option<Arc<AtomicBool>>,
     pub start: Instant,
+}
+
+impl Limits {
+    /// Whether the deadline has passed or the stop flag is set.
+    fn reached(&self) -> bool {
+        self.deadline.is_some_and(|d| Instant::now() >= d)
+            || self
+                .stop
+                .as_ref()
+                .is_some_and(|f| f.load(std::sync::atomic::Ordering::Relaxed))
+    }
 }
 
 /// What one round did.
@@ -76,6 +92,9 @@ pub(super) fn round(
         .par_iter()
         .enumerate()
         .map(|(k, g)| {
+            if limits.reached() {
+                return (None, 0);
+            }
             let mut rng = ChaCha12Rng::seed_from_u64(seed ^ round.rotate_left(32));
             rng.set_stream(k as u64 + 1);
             let picked: Vec<&[u32]> = g.iter().map(|&r| routes[r].as_slice()).collect();
@@ -115,7 +134,28 @@ pub(super) fn group(
             [at(1), at(2), at(3)]
         })
         .collect();
+    // On demand, far legs cost a search each: one full search per
+    // representative gives its legs to every other one instead.
+    let directed: Option<Vec<Vec<i64>>> = m.is_on_demand().then(|| {
+        (0..routes.len())
+            .into_par_iter()
+            .map(|x| {
+                let rows: Vec<Vec<(i64, i64)>> = reps[x].iter().map(|&a| m.row_from(a)).collect();
+                reps.iter()
+                    .map(|ry| {
+                        ry.iter()
+                            .flat_map(|&b| rows.iter().map(move |row| row[b as usize].0))
+                            .min()
+                            .unwrap_or(i64::MAX)
+                    })
+                    .collect()
+            })
+            .collect()
+    });
     let gap = |x: usize, y: usize| -> i64 {
+        if let Some(g) = &directed {
+            return g[x][y].min(g[y][x]);
+        }
         let mut best = i64::MAX;
         for &a in &reps[x] {
             for &b in &reps[y] {

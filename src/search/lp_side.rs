@@ -71,7 +71,15 @@ pub(crate) struct LpSide {
     handle: JoinHandle<LpResult>,
     stop: Arc<AtomicBool>,
     best: Arc<AtomicI64>,
+    /// The last progress report (what is known if the thread is left to end alone).
+    last: Arc<std::sync::Mutex<Option<LpResult>>>,
+    deadline: Option<Instant>,
+    started: Instant,
 }
+
+/// How long [`LpSide::finish`] waits past the solver's deadline for the
+/// LP solve under way before it leaves the thread to end by itself.
+const GRACE: Duration = Duration::from_millis(500);
 
 impl LpSide {
     /// Starts the bound of `inst` within `budget` and the solver's
@@ -94,11 +102,30 @@ impl LpSide {
             run = run.deadline(d);
         }
         let shared = best.clone();
+        let last = Arc::new(std::sync::Mutex::new(None));
+        let seen = last.clone();
         run = run.on_progress(move |p| {
-            shared.fetch_max(p.bound, Ordering::Relaxed);
+            let now = shared.fetch_max(p.bound, Ordering::Relaxed).max(p.bound);
+            if let Ok(mut l) = seen.lock() {
+                *l = Some(LpResult {
+                    bound: now,
+                    lp_value: p.lp_value,
+                    rounds: p.round,
+                    cuts: p.cuts,
+                    elapsed: p.elapsed,
+                    finished: false,
+                });
+            }
         });
         let handle = std::thread::spawn(move || run.run());
-        Ok(LpSide { handle, stop, best })
+        Ok(LpSide {
+            handle,
+            stop,
+            best,
+            last,
+            deadline,
+            started: Instant::now(),
+        })
     }
 
     /// The best bound reached so far (0 before the first LP solve).
@@ -107,16 +134,44 @@ impl LpSide {
     }
 
     /// Waits for the bound to end within its budget, or stops it now
-    /// (`stop_now`, or as soon as `external` is set). A stopped bound ends
-    /// after the LP solve or separation under way. `None` if the thread
-    /// panicked (a defect; the combinatorial bound is then used).
+    /// (`stop_now`, at the solver's deadline, or as soon as `external` is
+    /// set). A stopped bound ends after the LP solve or separation under
+    /// way; when that takes longer than [`GRACE`], the bound reported so far
+    /// is returned (not finished; 0 when no LP was solved yet) and the thread
+    /// ends by itself. `None` if the thread panicked (a defect; the
+    /// combinatorial bound is then used).
     pub(crate) fn finish(self, stop_now: bool, external: Option<&AtomicBool>) -> Option<LpResult> {
         if stop_now {
             self.stop.store(true, Ordering::Relaxed);
         }
+        let mut stopped_at: Option<Instant> = stop_now.then(Instant::now);
         while !self.handle.is_finished() {
-            if external.is_some_and(|f| f.load(Ordering::Relaxed)) {
+            let late = self.deadline.is_some_and(|d| Instant::now() >= d);
+            if stopped_at.is_none() && (late || external.is_some_and(|f| f.load(Ordering::Relaxed)))
+            {
                 self.stop.store(true, Ordering::Relaxed);
+                stopped_at = Some(Instant::now());
+            }
+            if stopped_at.is_some_and(|t| t.elapsed() >= GRACE) {
+                // An LP solve of a large network can take long to notice the
+                // stop: the run ends now with the bound reported so far, and
+                // the thread ends by itself after that solve (detached).
+                let mut r = self
+                    .last
+                    .lock()
+                    .ok()
+                    .and_then(|l| l.clone())
+                    .unwrap_or(LpResult {
+                        bound: 0,
+                        lp_value: 0.0,
+                        rounds: 0,
+                        cuts: 0,
+                        elapsed: Duration::ZERO,
+                        finished: false,
+                    });
+                r.bound = r.bound.max(self.current());
+                r.elapsed = self.started.elapsed();
+                return Some(r);
             }
             std::thread::sleep(Duration::from_millis(2));
         }

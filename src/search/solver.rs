@@ -416,7 +416,10 @@ impl<'a> Solver<'a> {
     /// # Complexity
     /// Shortest paths `O(K (V + E) log V)` for `K` key junctions (skipped
     /// with [`Solver::distances`]), arc matrices `O(n^2)` for `n` required
-    /// streets (`O(K^2)` memory above 2,048 streets), then the limits set:
+    /// streets (`O(K^2)` memory above 2,048 streets; no square matrix at all
+    /// above [`crate::paths::FULL_MATRIX_KEYS`] key junctions, or above
+    /// [`crate::turns::FULL_MATRIX_TASKS`] streets with turn rules: legs are
+    /// then searched on demand and cached), then the limits set:
     /// each offspring costs one split `O(n^2)` at worst and local-search
     /// passes of `O(n k)` move evaluations (`k` = 8 neighbours).
     ///
@@ -468,9 +471,9 @@ impl<'a> Solver<'a> {
         std::thread::scope(|scope| {
             let pending = scope.spawn(|| bound(inst, dist));
             let m = prepare(inst, dist, turned.as_ref())?;
-            // District improvement prices plans without turns: off with turn rules.
+            // With turn rules the districts' matrices are restricted from
+            // the turn-aware one, so they price turns too.
             let districts = match self.decomposition {
-                _ if turned.is_some() => None,
                 Decomposition::Auto => (m.n > DISTRICTS_FROM).then_some(DISTRICT_STREETS),
                 Decomposition::Off => None,
                 Decomposition::Districts { streets } => Some(streets.max(2)),
@@ -947,7 +950,13 @@ pub(super) struct Island {
 impl Island {
     pub(super) fn new(rng: ChaCha12Rng, m: &ArcMatrix) -> Self {
         let mut max_d = 1i64;
-        for a in (0..m.arcs as u32).step_by(7) {
+        // On demand, sampling far legs would search the whole network: the
+        // cap (twice the longest yard leg) stands in for the longest leg.
+        let sample = if m.is_on_demand() { 0 } else { m.arcs as u32 };
+        if m.is_on_demand() {
+            max_d = m.longest_legs().0.max(1);
+        }
+        for a in (0..sample).step_by(7) {
             for b in (0..m.arcs as u32).step_by(5) {
                 let d = m.d(a, b);
                 if d < BIG {

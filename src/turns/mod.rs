@@ -35,7 +35,7 @@ mod table;
 mod walk;
 
 pub use angle::turn_kind;
-pub use paths::{driving_arc, search, source_of, Search, Source, TurnDistances};
+pub use paths::{driving_arc, search, source_of, Search, Source, TurnDistances, FULL_MATRIX_TASKS};
 pub use plan::{plan_from_visits, totals_with_turns};
 pub use reach::unservable;
 pub use rules::{DrivingSide, TurnKind, TurnPenalties, TurnRules, UTurns};

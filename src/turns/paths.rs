@@ -11,20 +11,56 @@
 //! Costs are lexicographic like [`crate::paths`]: least cost, then least
 //! driving time (turn penalties add to the cost only).
 //!
-//! **Cost.** One Dijkstra search per task arc and one from the yard: time
-//! `O(A · T log T)` for `A = 2n + 1` sources and `T` allowed turns; memory
-//! `16·A²` bytes for the cost and time matrices (1 GB at 4,000 streets to
-//! serve; 25 GB at 20,000, too much: see the README). Sources run in
+//! **Cost.** In full ([`TurnDistances::full`], up to [`FULL_MATRIX_TASKS`]
+//! streets to serve): one Dijkstra search per task arc and one from the
+//! yard, time `O(A · T log T)` for `A = 2n + 1` sources and `T` allowed
+//! turns, memory `16·A²` bytes for the cost and time matrices (1 GB at 4,000
+//! streets to serve, 25 GB at 20,000). Above that, on demand
+//! ([`TurnDistances::on_demand`]): the yard's row and column in full (a
+//! forward search and one on the reversed turns), any other leg by a search
+//! when first asked, kept in a bounded cache (see
+//! [`crate::paths::Distances::on_demand`]); measured 874 MiB peak for the
+//! whole solver run at 19,510 streets with U-turns banned. Sources run in
 //! parallel with rayon; the result does not depend on the number of threads.
 
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
+use std::sync::Arc;
+
 use rayon::prelude::*;
 
 use super::table::{arc_of, head, tail, TurnTable};
 use crate::model::{Cost, Dir, Instance};
+use crate::paths::on_demand::{full_values, settle, RowCache, StateGraph, Until};
 use crate::paths::UNREACHABLE;
+
+impl Graph {
+    /// The initial states of a search having just driven arc `e`.
+    fn out_of(&self, e: u32) -> Vec<(u32, Cost, Cost)> {
+        let mut v = Vec::new();
+        self.moves(e, &mut |f, c, t| v.push((f, c, t)));
+        v
+    }
+
+    /// The cost of starting to drive arc `f` given the value of having
+    /// driven it (that value less its own deadhead).
+    fn enter_value(&self, f: u32, (c, t): (Cost, Cost)) -> (Cost, Cost) {
+        if c >= UNREACHABLE {
+            return (UNREACHABLE, UNREACHABLE);
+        }
+        let (lc, lt) = self.link[f as usize / 2];
+        (c - lc, t - lt)
+    }
+
+    /// [`Graph::enter_value`] of `f` in a full search's values.
+    fn enter(&self, f: u32, values: &[(Cost, Cost)]) -> (Cost, Cost) {
+        if f == u32::MAX {
+            return (UNREACHABLE, UNREACHABLE);
+        }
+        self.enter_value(f, values[f as usize])
+    }
+}
 
 /// Where a search starts.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -96,17 +132,115 @@ pub fn search(inst: &Instance, table: &TurnTable, src: Source) -> Search {
 
 /// Turn-aware deadhead costs and times between the task arcs and the yard,
 /// numbered as the solver numbers them: task `t` served forward is `2t`,
-/// backward `2t + 1`, the yard is `2n`.
+/// backward `2t + 1`, the yard is `2n`. Held in full matrices, or answered
+/// on demand for large networks ([`TurnDistances::on_demand`]).
 #[derive(Clone, Debug)]
 pub struct TurnDistances {
     n: usize,
     cost: Vec<Cost>,
     time: Vec<Cost>,
+    lazy: Option<Arc<Lazy>>,
+}
+
+/// Above this many streets to serve [`TurnDistances::new`] answers on
+/// demand instead of holding the full matrices (which would take more than
+/// 256 MiB).
+pub const FULL_MATRIX_TASKS: usize = 2048;
+
+/// The street-to-street graph searched on demand: states are driving arcs,
+/// a move is a turn plus the next street's deadhead.
+#[derive(Debug)]
+struct Graph {
+    table: TurnTable,
+    /// Deadhead cost and drive time of each link.
+    link: Vec<(Cost, Cost)>,
+}
+
+impl StateGraph for Graph {
+    fn states(&self) -> usize {
+        self.table.arcs()
+    }
+
+    fn moves(&self, s: u32, f: &mut dyn FnMut(u32, Cost, Cost)) {
+        let tr = self.table.turns(s);
+        for (&g, &pen) in tr.next.iter().zip(tr.penalty) {
+            let (c, t) = self.link[g as usize / 2];
+            f(g, pen + c, t);
+        }
+    }
+}
+
+/// The turns of [`Graph`] reversed (for the legs into the yard).
+struct Reversed {
+    start: Vec<u32>,
+    /// (earlier arc, penalty + cost of the later arc, its time).
+    prev: Vec<(u32, Cost, Cost)>,
+}
+
+impl StateGraph for Reversed {
+    fn states(&self) -> usize {
+        self.start.len() - 1
+    }
+
+    fn moves(&self, s: u32, f: &mut dyn FnMut(u32, Cost, Cost)) {
+        for &(e, c, t) in
+            &self.prev[self.start[s as usize] as usize..self.start[s as usize + 1] as usize]
+        {
+            f(e, c, t);
+        }
+    }
+}
+
+impl Reversed {
+    fn of(g: &Graph) -> Reversed {
+        let n = g.table.arcs();
+        let mut deg = vec![0u32; n + 1];
+        for e in 0..n as u32 {
+            g.moves(e, &mut |f, _, _| deg[f as usize] += 1);
+        }
+        let mut start = vec![0u32; n + 1];
+        for v in 0..n {
+            start[v + 1] = start[v] + deg[v];
+        }
+        let mut fill = start.clone();
+        let mut prev = vec![(0, 0, 0); start[n] as usize];
+        for e in 0..n as u32 {
+            g.moves(e, &mut |f, c, t| {
+                prev[fill[f as usize] as usize] = (e, c, t);
+                fill[f as usize] += 1;
+            });
+        }
+        Reversed { start, prev }
+    }
+}
+
+/// The on-demand side of [`TurnDistances`].
+#[derive(Debug)]
+struct Lazy {
+    graph: Graph,
+    /// Driving arc of each task arc (`u32::MAX` when it may not be driven).
+    entry: Vec<u32>,
+    /// Driving arc of each task arc, drivable or not (the source of its row).
+    arc: Vec<u32>,
+    /// From the yard to each task arc; from each task arc to the yard.
+    from_yard: Vec<(Cost, Cost)>,
+    to_yard: Vec<(Cost, Cost)>,
+    cache: RowCache,
 }
 
 impl TurnDistances {
-    /// Computes every entry (one search per source, in parallel).
+    /// Computes every entry (one search per source, in parallel), or, above
+    /// [`FULL_MATRIX_TASKS`] streets to serve, answers on demand
+    /// ([`TurnDistances::on_demand`]).
     pub fn new(inst: &Instance, table: &TurnTable) -> TurnDistances {
+        if inst.tasks().len() > FULL_MATRIX_TASKS {
+            return Self::on_demand(inst, table);
+        }
+        Self::full(inst, table)
+    }
+
+    /// Every entry in full matrices: `16 (2n + 1)^2` bytes.
+    pub fn full(inst: &Instance, table: &TurnTable) -> TurnDistances {
         let n = inst.tasks().len();
         let w = 2 * n + 1;
         let rows: Vec<(Vec<Cost>, Vec<Cost>)> = (0..w)
@@ -119,7 +253,174 @@ impl TurnDistances {
             cost.extend(c);
             time.extend(t);
         }
-        TurnDistances { n, cost, time }
+        TurnDistances {
+            n,
+            cost,
+            time,
+            lazy: None,
+        }
+    }
+
+    /// Turn-aware distances answered on demand, equal to
+    /// [`TurnDistances::full`]: the yard's row and column in full (one
+    /// search each, the column on the reversed turns), other legs by a
+    /// search on the street-to-street graph when first asked, kept in a
+    /// bounded cache (see [`crate::paths::Distances::on_demand`]).
+    ///
+    /// # Complexity
+    /// `O(A + T)` memory for `A` driving arcs and `T` allowed turns, plus the
+    /// cache; each question not cached costs one search that stops when it
+    /// reaches the asked street.
+    pub fn on_demand(inst: &Instance, table: &TurnTable) -> TurnDistances {
+        let net = inst.network();
+        let n = inst.tasks().len();
+        let graph = Graph {
+            table: table.clone(),
+            link: net.links.iter().map(|l| (l.cost, l.drive_time())).collect(),
+        };
+        let mut entry = vec![u32::MAX; 2 * n];
+        let mut arc = vec![0u32; 2 * n];
+        for (t, task) in inst.tasks().iter().enumerate() {
+            for (k, dir) in [Dir::Forward, Dir::Backward].into_iter().enumerate() {
+                let e = arc_of(task.link, dir);
+                arc[2 * t + k] = e;
+                if k == 0 || table.drivable(e) {
+                    entry[2 * t + k] = e;
+                }
+            }
+        }
+        let depot = inst.depot();
+        let arcs = table.arcs();
+        let out_of_yard: Vec<(u32, Cost, Cost)> = (0..arcs as u32)
+            .filter(|&f| table.drivable(f) && tail(net, f) == depot)
+            .map(|f| {
+                (
+                    f,
+                    graph.link[f as usize / 2].0,
+                    graph.link[f as usize / 2].1,
+                )
+            })
+            .collect();
+        let into_yard: Vec<(u32, Cost, Cost)> = (0..arcs as u32)
+            .filter(|&e| head(net, e) == depot)
+            .map(|e| (e, 0, 0))
+            .collect();
+        let rev = Reversed::of(&graph);
+        let (fwd, back) = rayon::join(
+            || full_values(arcs, &settle(&graph, &out_of_yard, Until::All)),
+            || full_values(arcs, &settle(&rev, &into_yard, Until::All)),
+        );
+        let from_yard = entry.iter().map(|&f| graph.enter(f, &fwd)).collect();
+        let to_yard = arc.iter().map(|&e| back[e as usize]).collect();
+        TurnDistances {
+            n,
+            cost: Vec::new(),
+            time: Vec::new(),
+            lazy: Some(Arc::new(Lazy {
+                graph,
+                entry,
+                arc,
+                from_yard,
+                to_yard,
+                cache: RowCache::new(arcs),
+            })),
+        }
+    }
+
+    /// Whether the legs are answered on demand (not held in matrices).
+    pub fn is_on_demand(&self) -> bool {
+        self.lazy.is_some()
+    }
+
+    /// Cost and time from the end of task arc (or yard) `a` to the start of
+    /// `b` ([`UNREACHABLE`] for both when no allowed way exists).
+    pub fn leg(&self, a: usize, b: usize) -> (Cost, Cost) {
+        let Some(z) = &self.lazy else {
+            let i = a * self.width() + b;
+            return (self.cost[i], self.time[i]);
+        };
+        let yard = 2 * self.n;
+        if a == yard && b == yard {
+            (0, 0)
+        } else if a == yard {
+            z.from_yard[b]
+        } else if b == yard {
+            z.to_yard[a]
+        } else if z.entry[b] == u32::MAX {
+            (UNREACHABLE, UNREACHABLE)
+        } else {
+            let init = z.graph.out_of(z.arc[a]);
+            let f = z.entry[b];
+            let got = z.cache.leg(z.arc[a] as usize, f, |v, min| {
+                settle(&z.graph, &init, Until::Reach(v, min))
+            });
+            z.graph.enter_value(f, got)
+        }
+    }
+
+    /// Legs from task arc (or yard) `a` to every task arc and the yard
+    /// (indexed like the columns): one full search when on demand (not
+    /// cached).
+    pub(crate) fn row(&self, a: usize) -> Vec<(Cost, Cost)> {
+        let w = self.width();
+        let Some(z) = &self.lazy else {
+            return (0..w).map(|b| self.leg(a, b)).collect();
+        };
+        if a == 2 * self.n {
+            return (0..w).map(|b| self.leg(a, b)).collect();
+        }
+        let found = full_values(
+            z.graph.table.arcs(),
+            &settle(&z.graph, &z.graph.out_of(z.arc[a]), Until::All),
+        );
+        let mut out: Vec<(Cost, Cost)> =
+            z.entry.iter().map(|&f| z.graph.enter(f, &found)).collect();
+        out.push(z.to_yard[a]);
+        out
+    }
+
+    /// Legs from every task arc (or yard) of `rows` to every one of `cols`
+    /// (row-major): one search per row, stopped when every column is
+    /// reached (not cached) when on demand.
+    pub(crate) fn block(&self, rows: &[usize], cols: &[usize]) -> Vec<(Cost, Cost)> {
+        let Some(z) = &self.lazy else {
+            return rows
+                .iter()
+                .flat_map(|&a| cols.iter().map(move |&b| self.leg(a, b)))
+                .collect();
+        };
+        let yard = 2 * self.n;
+        let inits: Vec<Vec<(u32, Cost, Cost)>> = rows
+            .iter()
+            .map(|&a| {
+                if a == yard {
+                    Vec::new()
+                } else {
+                    z.graph.out_of(z.arc[a])
+                }
+            })
+            .collect();
+        let targets: Vec<u32> = cols
+            .iter()
+            .filter(|&&b| b != yard && z.entry[b] != u32::MAX)
+            .map(|&b| z.entry[b])
+            .collect();
+        let found = crate::paths::on_demand::block(&z.graph, &inits, &targets);
+        let mut out = Vec::with_capacity(rows.len() * cols.len());
+        for (i, &a) in rows.iter().enumerate() {
+            let mut k = i * targets.len();
+            for &b in cols {
+                out.push(if b == yard || a == yard {
+                    self.leg(a, b)
+                } else if z.entry[b] == u32::MAX {
+                    (UNREACHABLE, UNREACHABLE)
+                } else {
+                    k += 1;
+                    z.graph.enter_value(z.entry[b], found[k - 1])
+                });
+            }
+        }
+        out
     }
 
     /// Number of rows and columns (`2n + 1`).
@@ -130,17 +431,20 @@ impl TurnDistances {
     /// Least cost from the end of task arc (or yard) `a` to the start of `b`,
     /// turns included; [`UNREACHABLE`] when no allowed way exists.
     pub fn cost(&self, a: usize, b: usize) -> Cost {
-        self.cost[a * self.width() + b]
+        self.leg(a, b).0
     }
 
     /// Driving time along the path of [`TurnDistances::cost`].
     pub fn time(&self, a: usize, b: usize) -> Cost {
-        self.time[a * self.width() + b]
+        self.leg(a, b).1
     }
 
     /// Bytes held.
     pub fn bytes(&self) -> usize {
-        8 * (self.cost.len() + self.time.len())
+        let lazy = self.lazy.as_ref().map_or(0, |z| {
+            z.cache.bytes() + 16 * (z.from_yard.len() + z.to_yard.len()) + z.graph.table.bytes()
+        });
+        8 * (self.cost.len() + self.time.len()) + lazy
     }
 }
 

@@ -1,0 +1,395 @@
+//! Deadheads computed when asked, with a bounded cache: the distances of
+//! networks too large for a square matrix.
+//!
+//! A search graph ([`StateGraph`]) is either the junction graph (plain
+//! deadheads) or the street-to-street graph of turn rules. Questions come in
+//! two kinds:
+//! - one leg `u → v` ([`RowCache::leg`]): a lexicographic Dijkstra search
+//!   from `u` settles states in order until `v` is settled and at least a
+//!   minimum number of states are; the settled states are kept as the *row*
+//!   of `u`. A later question about a state outside the row searches again
+//!   with twice the minimum. Rows of the legs a local search asks about are
+//!   small (the states near `u`);
+//! - a block of legs among a set of states ([`settle`] with targets): one
+//!   search per row state, stopped as soon as every target is settled. A
+//!   district's targets are near each other, so each search settles a small
+//!   part of the network.
+//!
+//! Values are exact (least cost, ties by least time, the same values as the
+//! full matrices), so results never depend on what the cache holds. The
+//! cache keeps at most [`CACHE_ENTRIES`] settled states in all rows; when a
+//! new row would pass that, every row is dropped (memory stays bounded,
+//! values stay the same).
+
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::{Arc, RwLock};
+
+use super::UNREACHABLE;
+use crate::model::Cost;
+
+/// Settled states kept in all cached rows together (20 bytes each: 320 MB).
+pub const CACHE_ENTRIES: usize = 16 << 20;
+
+/// States settled at least per new row.
+const MIN_ROW: usize = 256;
+
+/// States kept at most per row; a leg beyond the row is kept on its own.
+const ROW_MAX: usize = 4096;
+
+/// A graph searched state by state (junctions, or driving arcs with turns).
+pub(crate) trait StateGraph: Send + Sync {
+    /// Number of states.
+    fn states(&self) -> usize;
+    /// Calls `f(next, cost, time)` for every move out of state `s`.
+    fn moves(&self, s: u32, f: &mut dyn FnMut(u32, Cost, Cost));
+}
+
+/// When a search may stop.
+pub(crate) enum Until<'a> {
+    /// Every state (the whole reachable graph).
+    All,
+    /// Every state marked true is settled.
+    Targets(&'a [bool], usize),
+    /// This state is settled and at least this many states are.
+    Reach(u32, usize),
+}
+
+/// States settled by a search, in the order settled, with their (cost,
+/// time); `complete` when the whole reachable graph was settled.
+pub(crate) struct Settled {
+    pub order: Vec<(u32, Cost, Cost)>,
+    pub complete: bool,
+}
+
+/// Lexicographic Dijkstra (least cost, then least time) from the initial
+/// states `init` (state, cost, time) until `until` holds.
+pub(crate) fn settle<G: StateGraph + ?Sized>(
+    g: &G,
+    init: &[(u32, Cost, Cost)],
+    until: Until<'_>,
+) -> Settled {
+    SCRATCH.with(|cell| {
+        let mut scratch = cell.borrow_mut();
+        let Scratch {
+            best,
+            done,
+            touched,
+        } = &mut *scratch;
+        if best.len() < g.states() {
+            best.resize(g.states(), (UNREACHABLE, UNREACHABLE));
+            done.resize(g.states(), false);
+        }
+        let out = settle_in(g, init, until, best, done, touched);
+        for &v in touched.iter() {
+            best[v as usize] = (UNREACHABLE, UNREACHABLE);
+            done[v as usize] = false;
+        }
+        touched.clear();
+        out
+    })
+}
+
+/// Per-thread search arrays, reset after each search (only the states it
+/// touched), so that a short search does not pay for the whole network.
+#[derive(Default)]
+struct Scratch {
+    best: Vec<(Cost, Cost)>,
+    done: Vec<bool>,
+    touched: Vec<u32>,
+}
+
+thread_local! {
+    static SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::new(Scratch::default());
+}
+
+fn settle_in<G: StateGraph + ?Sized>(
+    g: &G,
+    init: &[(u32, Cost, Cost)],
+    until: Until<'_>,
+    best: &mut [(Cost, Cost)],
+    done: &mut [bool],
+    touched: &mut Vec<u32>,
+) -> Settled {
+    let mut heap = BinaryHeap::new();
+    for &(s, c, t) in init {
+        if (c, t) < best[s as usize] {
+            best[s as usize] = (c, t);
+            touched.push(s);
+            heap.push(Reverse((c, t, s)));
+        }
+    }
+    let mut order = Vec::new();
+    let mut left = match until {
+        Until::Targets(_, k) => k,
+        _ => usize::MAX,
+    };
+    let mut reached = false;
+    while let Some(Reverse((c, t, s))) = heap.pop() {
+        let si = s as usize;
+        if done[si] || (c, t) != best[si] {
+            continue;
+        }
+        done[si] = true;
+        order.push((s, c, t));
+        match until {
+            Until::All => {}
+            Until::Targets(marks, _) => {
+                if marks[si] {
+                    left -= 1;
+                }
+                if left == 0 {
+                    return Settled {
+                        order,
+                        complete: false,
+                    };
+                }
+            }
+            Until::Reach(v, min) => {
+                reached |= s == v;
+                if reached && order.len() >= min {
+                    return Settled {
+                        order,
+                        complete: false,
+                    };
+                }
+            }
+        }
+        g.moves(s, &mut |w, dc, dt| {
+            let nv = (c + dc, t + dt);
+            if !done[w as usize] && nv < best[w as usize] {
+                if best[w as usize].0 >= UNREACHABLE {
+                    touched.push(w);
+                }
+                best[w as usize] = nv;
+                heap.push(Reverse((nv.0, nv.1, w)));
+            }
+        });
+    }
+    Settled {
+        order,
+        complete: true,
+    }
+}
+
+/// The settled states of one search, sorted by state for lookups.
+#[derive(Debug)]
+struct Row {
+    ids: Vec<u32>,
+    val: Vec<(Cost, Cost)>,
+    complete: bool,
+}
+
+impl Row {
+    fn of(s: Settled) -> Row {
+        let mut order = s.order;
+        order.sort_unstable_by_key(|x| x.0);
+        Row {
+            ids: order.iter().map(|x| x.0).collect(),
+            val: order.iter().map(|x| (x.1, x.2)).collect(),
+            complete: s.complete,
+        }
+    }
+
+    /// `Some(value)` when the row answers for `v` (unreachable when the
+    /// row is complete and `v` is not in it).
+    fn get(&self, v: u32) -> Option<(Cost, Cost)> {
+        match self.ids.binary_search(&v) {
+            Ok(i) => Some(self.val[i]),
+            Err(_) if self.complete => Some((UNREACHABLE, UNREACHABLE)),
+            Err(_) => None,
+        }
+    }
+}
+
+/// Cached rows, one slot per source key.
+#[derive(Debug)]
+pub(crate) struct RowCache {
+    rows: Vec<RwLock<Option<Arc<Row>>>>,
+    /// Far legs (beyond a full row), by (source key, state).
+    pairs: RwLock<std::collections::HashMap<(u32, u32), (Cost, Cost)>>,
+    entries: AtomicUsize,
+    /// Least states of a new row, most states kept per row, most entries.
+    limits: (usize, usize, usize),
+}
+
+impl RowCache {
+    /// An empty cache for `keys` sources.
+    pub(crate) fn new(keys: usize) -> Self {
+        RowCache {
+            rows: (0..keys).map(|_| RwLock::new(None)).collect(),
+            pairs: RwLock::new(std::collections::HashMap::new()),
+            entries: AtomicUsize::new(0),
+            limits: (MIN_ROW, ROW_MAX, CACHE_ENTRIES),
+        }
+    }
+
+    /// The value from source `key` to state `v`; `search(v, min)` runs the
+    /// search of the source until `v` and at least `min` states are settled.
+    pub(crate) fn leg(
+        &self,
+        key: usize,
+        v: u32,
+        search: impl Fn(u32, usize) -> Settled,
+    ) -> (Cost, Cost) {
+        let old = {
+            let slot = self.rows[key].read().expect("row cache");
+            if let Some(r) = slot.as_ref() {
+                if let Some(x) = r.get(v) {
+                    return x;
+                }
+            }
+            slot.as_ref().map_or(0, |r| r.ids.len())
+        };
+        if let Some(&x) = self.pairs.read().expect("pair cache").get(&(key as u32, v)) {
+            return x;
+        }
+        let (min_row, row_max, cap) = self.limits;
+        let min = (2 * old).max(min_row).min(row_max);
+        let mut found = search(v, min);
+        // The searched state is the last settled (or none: unreachable).
+        let x = match found.order.iter().rev().find(|s| s.0 == v) {
+            Some(&(_, c, t)) => (c, t),
+            None => (UNREACHABLE, UNREACHABLE),
+        };
+        if found.order.len() > min {
+            // A far leg (beyond the grown row): kept on its own; the row
+            // grows only by legs near its start (a new row keeps its
+            // nearest `min` states), so far questions do not fill the cache.
+            let mut pairs = self.pairs.write().expect("pair cache");
+            pairs.insert((key as u32, v), x);
+            drop(pairs);
+            self.entries.fetch_add(1, Ordering::Relaxed);
+            if old > 0 {
+                return x;
+            }
+            found.order.truncate(min);
+            found.complete = false;
+        }
+        let row = Row::of(found);
+        let added = row.ids.len();
+        if self.entries.fetch_add(added, Ordering::Relaxed) + added > cap {
+            self.clear();
+            self.entries.fetch_add(added, Ordering::Relaxed);
+        }
+        let mut slot = self.rows[key].write().expect("row cache");
+        if let Some(r) = slot.as_ref() {
+            self.entries.fetch_sub(r.ids.len(), Ordering::Relaxed);
+        }
+        *slot = Some(Arc::new(row));
+        x
+    }
+
+    /// Drops every row.
+    fn clear(&self) {
+        let mut pairs = self.pairs.write().expect("pair cache");
+        self.entries.fetch_sub(pairs.len(), Ordering::Relaxed);
+        pairs.clear();
+        drop(pairs);
+        for r in &self.rows {
+            let mut slot = r.write().expect("row cache");
+            if let Some(r) = slot.take() {
+                self.entries.fetch_sub(r.ids.len(), Ordering::Relaxed);
+            }
+        }
+    }
+
+    /// Bytes held by the cached rows (about).
+    pub(crate) fn bytes(&self) -> usize {
+        20 * self.entries.load(Ordering::Relaxed) + 16 * self.rows.len()
+    }
+}
+
+/// Values of a search at every state (unreachable where not settled).
+pub(crate) fn full_values(n: usize, s: &Settled) -> Vec<(Cost, Cost)> {
+    let mut out = vec![(UNREACHABLE, UNREACHABLE); n];
+    for &(v, c, t) in &s.order {
+        out[v as usize] = (c, t);
+    }
+    out
+}
+
+/// Legs from each of `rows` (initial states of a search each) to each of
+/// `cols` (states), one search per row stopped when every column is settled;
+/// row-major. Rows are searched in parallel (rayon).
+pub(crate) fn block<G: StateGraph + ?Sized>(
+    g: &G,
+    rows: &[Vec<(u32, Cost, Cost)>],
+    cols: &[u32],
+) -> Vec<(Cost, Cost)> {
+    use rayon::prelude::*;
+    let mut marks = vec![false; g.states()];
+    let mut distinct = 0;
+    for &c in cols {
+        if !marks[c as usize] {
+            marks[c as usize] = true;
+            distinct += 1;
+        }
+    }
+    let out: Vec<Vec<(Cost, Cost)>> = rows
+        .par_iter()
+        .map(|init| {
+            let s = settle(g, init, Until::Targets(&marks, distinct));
+            let mut at: std::collections::HashMap<u32, (Cost, Cost)> =
+                std::collections::HashMap::with_capacity(s.order.len());
+            for &(v, c, t) in &s.order {
+                at.insert(v, (c, t));
+            }
+            cols.iter()
+                .map(|c| at.get(c).copied().unwrap_or((UNREACHABLE, UNREACHABLE)))
+                .collect()
+        })
+        .collect();
+    out.into_iter().flatten().collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A one-way ring of `n` states with a chord every 7 states; costs
+    /// small so that ties (and the time tie-break) occur.
+    struct Ring(u32);
+
+    impl StateGraph for Ring {
+        fn states(&self) -> usize {
+            self.0 as usize
+        }
+        fn moves(&self, s: u32, f: &mut dyn FnMut(u32, Cost, Cost)) {
+            f((s + 1) % self.0, 1 + (s % 3) as Cost, 2);
+            if s.is_multiple_of(7) {
+                f((s * 5 + 3) % self.0, 4, 1);
+            }
+        }
+    }
+
+    /// Rows that grow, rows cut at their limit with far legs kept on their
+    /// own, and a cache cleared when full all give the values of full
+    /// searches (computed here without the cache).
+    #[test]
+    fn cached_legs_equal_full_searches_under_every_limit() {
+        let g = Ring(700);
+        let full: Vec<Vec<(Cost, Cost)>> = (0..700)
+            .map(|u| full_values(700, &settle(&g, &[(u, 0, 0)], Until::All)))
+            .collect();
+        for limits in [(16, 64, 500), (4, 700, 100_000), (256, 4096, 1 << 20)] {
+            let mut cache = RowCache::new(700);
+            cache.limits = limits;
+            let mut x: u64 = 12345;
+            for _ in 0..20_000 {
+                x = x
+                    .wrapping_mul(6364136223846793005)
+                    .wrapping_add(1442695040888963407);
+                let (u, v) = ((x >> 33) as u32 % 700, (x >> 13) as u32 % 700);
+                let got = cache.leg(u as usize, v, |v, min| {
+                    settle(&g, &[(u, 0, 0)], Until::Reach(v, min))
+                });
+                assert_eq!(
+                    got, full[u as usize][v as usize],
+                    "{u} -> {v} under {limits:?}"
+                );
+            }
+        }
+    }
+}
