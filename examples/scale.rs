@@ -39,6 +39,11 @@ use arcwright::model::{Cost, Fleet, Instance, Link, Network};
 use arcwright::turns::{TurnPenalties, TurnRules};
 use arcwright::{Decomposition, Progress, Solver};
 
+/// The options, printed for `--help` and after a bad option (see the module docs).
+const USAGE: &str = "usage: scale [SCENARIO | --glue FILE.dat --copies K] [--seconds N] \
+[--workers N] [--seed N] [--districts auto|off|STREETS] [--marks 30,60,300] \
+[--turns banned|trucks] [--any-fleet]";
+
 struct Opts {
     file: Option<PathBuf>,
     glue: Option<PathBuf>,
@@ -158,10 +163,14 @@ fn peak_mib() -> Option<u64> {
 }
 
 fn main() {
+    if std::env::args().any(|a| a == "--help" || a == "-h") {
+        println!("{USAGE}");
+        return;
+    }
     let o = match parse() {
         Ok(o) => o,
         Err(e) => {
-            eprintln!("scale: {e}");
+            eprintln!("scale: {e}\n{USAGE}");
             std::process::exit(2);
         }
     };

@@ -624,6 +624,47 @@ impl ArcMatrix {
         (cost, self.timed().then_some(time))
     }
 
+    /// [`ArcMatrix::task_gap`] from task `u` to each of `others`, the same
+    /// values. With junction legs on demand it takes four searches (out of
+    /// the ends of `u`'s two arcs, and into their starts on the reversed
+    /// network, each stopped when `others`' arcs are settled) instead of a
+    /// leg search per pair: the pairs of a candidate list may be far apart
+    /// by the directed network although near on the map.
+    pub fn task_gaps(&self, u: usize, others: &[u32]) -> Vec<i64> {
+        let Some(Legs::Junctions { dist, start, end }) = &self.legs else {
+            return others.iter().map(|&v| self.task_gap(u, v as usize)).collect();
+        };
+        let arcs = |t: usize| {
+            [2 * t as u32, 2 * t as u32 + 1]
+                .into_iter()
+                .filter(|&a| self.allowed[a as usize])
+        };
+        let mut best = vec![i64::MAX; others.len()];
+        for a in arcs(u) {
+            // Out of `a` to the start of every arc of the others, and from
+            // the end of every arc of the others into `a`.
+            for into in [false, true] {
+                let (from, of) = if into { (start, end) } else { (end, start) };
+                let targets: Vec<usize> = others
+                    .iter()
+                    .flat_map(|&v| arcs(v as usize))
+                    .map(|b| of[b as usize] as usize)
+                    .collect();
+                let found = dist
+                    .legs_between(from[a as usize] as usize, &targets, into)
+                    .expect("on-demand distances");
+                let mut next = found.into_iter();
+                for (i, &v) in others.iter().enumerate() {
+                    for _ in arcs(v as usize) {
+                        let (c, t) = next.next().expect("one leg per arc");
+                        best[i] = best[i].min(self.capped(c, t).0);
+                    }
+                }
+            }
+        }
+        best
+    }
+
     /// Minimum deadhead between two tasks in any allowed directions, both ways.
     pub fn task_gap(&self, u: usize, v: usize) -> i64 {
         let mut best = i64::MAX;

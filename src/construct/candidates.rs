@@ -138,8 +138,8 @@ pub fn candidate_lists(inst: &Instance, m: &ArcMatrix, k: usize) -> Vec<Vec<u32>
                 // Marks are stamped with the task (`u + 1`), unique per
                 // search, so they never need clearing.
                 let pool = near.pool(inst, u, POOL * k, seen);
-                let mut v: Vec<(i64, u32)> =
-                    pool.into_iter().map(|x| (m.task_gap(u, x as usize), x)).collect();
+                let gaps = m.task_gaps(u, &pool);
+                let mut v: Vec<(i64, u32)> = gaps.into_iter().zip(pool).collect();
                 v.sort_unstable();
                 v.truncate(k);
                 v.into_iter().map(|(_, x)| x).collect()
@@ -180,6 +180,22 @@ mod tests {
             same += usize::from(gaps[0] == best);
         }
         assert!(same * 100 >= m.n * 95, "{same} of {}", m.n);
+    }
+
+    #[test]
+    fn batched_gaps_on_demand_equal_the_gaps_pair_by_pair_and_the_full_matrix() {
+        let (inst, full) = setup();
+        let lazy = ArcMatrix::new(&inst, &Distances::on_demand(&inst)).expect("matrix");
+        assert!(lazy.is_on_demand() && !full.is_on_demand());
+        let all: Vec<u32> = (0..full.n as u32).collect();
+        for u in (0..full.n).step_by(7) {
+            let batched = lazy.task_gaps(u, &all);
+            for (v, &g) in batched.iter().enumerate() {
+                assert_eq!(g, lazy.task_gap(u, v), "{u} {v}");
+                assert_eq!(g, full.task_gap(u, v), "{u} {v}");
+            }
+        }
+        assert_eq!(candidate_lists(&inst, &lazy, 16), candidate_lists(&inst, &full, 16));
     }
 
     #[test]

@@ -202,6 +202,8 @@ struct Lazy {
     from_depot: Vec<(Cost, Cost)>,
     to_depot: Vec<(Cost, Cost)>,
     cache: RowCache,
+    /// The network with every link turned round (searches into a junction).
+    rev: Adjacency,
 }
 
 impl Distances {
@@ -301,6 +303,7 @@ impl Distances {
                 from_depot,
                 to_depot,
                 cache: RowCache::new(n),
+                rev,
             })),
         }
     }
@@ -338,6 +341,42 @@ impl Distances {
                 on_demand::settle(&self.adj, &init, Until::Reach(v, min))
             })
         }
+    }
+
+    /// The legs between `u` and each of `targets` (junctions, key or not):
+    /// from `u` to each target, or from each target to `u` when `into`;
+    /// one search from `u` (on the reversed network when `into`), stopped
+    /// as soon as every target is settled. The values are those of
+    /// [`Distances::leg`] (the least cost, then least time, over the same
+    /// paths). `None` unless on demand (the matrices answer directly).
+    pub(crate) fn legs_between(
+        &self,
+        u: usize,
+        targets: &[usize],
+        into: bool,
+    ) -> Option<Vec<(Cost, Cost)>> {
+        let z = self.lazy.as_ref()?;
+        let mut marks = vec![false; self.key_of.len()];
+        let mut k = 0;
+        for &t in targets {
+            k += usize::from(!marks[t]);
+            marks[t] = true;
+        }
+        let init = [(u as u32, 0, 0)];
+        let graph = if into { &z.rev } else { &self.adj };
+        let mut found = on_demand::settle(graph, &init, Until::Targets(&marks, k)).order;
+        found.sort_unstable_by_key(|x| x.0);
+        Some(
+            targets
+                .iter()
+                .map(
+                    |&t| match found.binary_search_by_key(&(t as u32), |x| x.0) {
+                        Ok(i) => (found[i].1, found[i].2),
+                        Err(_) => (UNREACHABLE, UNREACHABLE),
+                    },
+                )
+                .collect(),
+        )
     }
 
     /// Legs from `u` to every junction (indexed by junction): one full
