@@ -191,26 +191,8 @@ impl ArcMatrix {
                 start: start.iter().map(|&v| v as u32).collect(),
                 end: end.iter().map(|&v| v as u32).collect(),
             };
-            let base = ArcMatrix {
-                n,
-                arcs,
-                depot: (2 * n) as u32,
-                keys: 0,
-                kstart: Vec::new(),
-                kend_row: Vec::new(),
-                cost: Vec::new(),
-                time: None,
-                serve_cost,
-                serve_time,
-                demand,
-                allowed,
-                capacity: inst.fleet().capacity,
-                shift: inst.fleet().shift_limit,
-                max_routes: inst.fleet().max_vehicles,
-                legs: None,
-                cap: MAX_LEG,
-            };
-            return Ok(base.on_demand(legs));
+            let per_arc = (serve_cost, serve_time, demand, allowed);
+            return Ok(Self::answering(inst, per_arc, legs));
         }
         // Local numbering of the junctions the arcs touch (all are keys of
         // `dist`, which holds at least the depot and the task ends).
@@ -295,26 +277,8 @@ impl ArcMatrix {
         }
         let timed = inst.fleet().shift_limit.is_some();
         if td.is_on_demand() {
-            let base = ArcMatrix {
-                n,
-                arcs,
-                depot: (2 * n) as u32,
-                keys: 0,
-                kstart: Vec::new(),
-                kend_row: Vec::new(),
-                cost: Vec::new(),
-                time: None,
-                serve_cost,
-                serve_time,
-                demand,
-                allowed,
-                capacity: inst.fleet().capacity,
-                shift: inst.fleet().shift_limit,
-                max_routes: inst.fleet().max_vehicles,
-                legs: None,
-                cap: MAX_LEG,
-            };
-            return Ok(base.on_demand(Legs::Turns(td.clone())));
+            let per_arc = (serve_cost, serve_time, demand, allowed);
+            return Ok(Self::answering(inst, per_arc, Legs::Turns(td.clone())));
         }
         let conv = |x: Cost| -> Result<i32, MatrixOverflow> {
             if x >= UNREACHABLE {
@@ -365,6 +329,39 @@ impl ArcMatrix {
             return self.leg(a, b).0;
         }
         decode(self.cost[self.cell(a, b)])
+    }
+
+    /// A matrix of `inst` with no square arrays, answering from `legs`;
+    /// `per_arc` is each arc's (service cost, service time, demand,
+    /// allowed).
+    fn answering(
+        inst: &Instance,
+        per_arc: (Vec<i64>, Vec<i64>, Vec<i64>, Vec<bool>),
+        legs: Legs,
+    ) -> ArcMatrix {
+        let (serve_cost, serve_time, demand, allowed) = per_arc;
+        let arcs = serve_cost.len();
+        let n = (arcs - 2) / 2;
+        let base = ArcMatrix {
+            n,
+            arcs,
+            depot: (2 * n) as u32,
+            keys: 0,
+            kstart: Vec::new(),
+            kend_row: Vec::new(),
+            cost: Vec::new(),
+            time: None,
+            serve_cost,
+            serve_time,
+            demand,
+            allowed,
+            capacity: inst.fleet().capacity,
+            shift: inst.fleet().shift_limit,
+            max_routes: inst.fleet().max_vehicles,
+            legs: None,
+            cap: MAX_LEG,
+        };
+        base.on_demand(legs)
     }
 
     /// The matrix answering on demand from `legs`, with its length cap set

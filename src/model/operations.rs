@@ -447,17 +447,9 @@ impl Operations {
         if self.truck_types.is_empty() {
             let f = inst.fleet();
             vec![TruckType {
-                name: "truck".to_string(),
                 count: f.max_vehicles,
-                capacity: f.capacity,
                 shift_limit: f.shift_limit,
-                yard: 0,
-                fixed_cost: 0,
-                cost_per_mille: 1000,
-                no_entry: Vec::new(),
-                no_service: Vec::new(),
-                no_entry_classes: Vec::new(),
-                no_service_classes: Vec::new(),
+                ..TruckType::new("truck", f.capacity)
             }]
         } else {
             self.truck_types.clone()
