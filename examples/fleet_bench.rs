@@ -3,7 +3,8 @@
 //! balancing.
 //!
 //! ```text
-//! cargo run --release --example fleet_bench [-- [OUT_DIR] [--demo-only]]
+//! cargo run --release --example fleet_bench [-- [OUT_DIR] [--demo-only | --egl-all]
+//!     [--iterations N] [--rounds N]]
 //! ```
 //!
 //! 1. *Demo town with a landfill*: `instances/demo-town.json` plus a
@@ -18,13 +19,17 @@
 //!    invented town): lanes, walks, paths, closes, courts and ends are
 //!    `living_street`, the streets served one side at a time `primary`, the
 //!    rest `residential`; Landfill Road is `primary`.
-//! 2. *egl with a dump site*: each `egl-e1-A` … `egl-s1-A` file of
-//!    `../shared/instances/egl` plus a dump site at the junction farthest
-//!    (least-cost path) from the depot, no unload time, unlimited trucks.
+//! 2. *egl with a dump site*: `egl-e1-A` and `egl-s1-A` of
+//!    `../shared/instances/egl` (with `--egl-all`: all 24 egl files, and no
+//!    demo town) plus a dump site at the junction farthest (least-cost path)
+//!    from the depot, no unload time, unlimited trucks.
 //!
 //! Each is solved with least cost, then with `longest_shift_weight` 2
-//! (total cost + 2 × longest shift). The derived scenarios are written to
-//! OUT_DIR (default `target/fleet-bench`) so that anyone can re-run them.
+//! (total cost + 2 × longest shift), one worker, seed 1, with iteration
+//! limits only (deterministic): `--iterations` of today's solver per
+//! relaxation (default 200) and `--rounds` of iterated local search per
+//! start (default 40). The derived scenarios are written to OUT_DIR
+//! (default `target/fleet-bench`) so that anyone can re-run them.
 
 use std::path::PathBuf;
 use std::time::Instant;
@@ -40,24 +45,43 @@ use arcwright::paths::Distances;
 fn main() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
     let args: Vec<String> = std::env::args().skip(1).collect();
-    let demo_only = args.iter().any(|a| a == "--demo-only");
+    let flag = |f: &str| args.iter().any(|a| a == f);
+    let number = |f: &str, default: u64| match args.iter().position(|a| a == f) {
+        Some(i) => args
+            .get(i + 1)
+            .and_then(|v| v.parse().ok())
+            .unwrap_or_else(|| panic!("{f} needs a whole number")),
+        None => default,
+    };
+    let (demo_only, egl_all) = (flag("--demo-only"), flag("--egl-all"));
+    let (iterations, rounds) = (number("--iterations", 200), number("--rounds", 40));
     let out = args
         .iter()
-        .find(|a| !a.starts_with("--"))
-        .map(PathBuf::from)
+        .enumerate()
+        .find(|(i, a)| {
+            !a.starts_with("--")
+                && (*i == 0 || !matches!(args[i - 1].as_str(), "--iterations" | "--rounds"))
+        })
+        .map(|(_, a)| PathBuf::from(a))
         .unwrap_or_else(|| root.join("target/fleet-bench"));
     std::fs::create_dir_all(&out).expect("output folder");
-    let mut cases = vec![demo_with_landfill(&root)];
+    let mut cases = Vec::new();
+    if !egl_all {
+        cases.push(demo_with_landfill(&root));
+    }
     let egl = root.join("../shared/instances/egl");
     if demo_only {
         // only the demo town
     } else if egl.exists() {
-        for name in ["egl-e1-A", "egl-s1-A"] {
+        for name in egl_names(&egl, egl_all) {
             cases.push(egl_with_dump(&egl.join(format!("{name}.dat"))));
         }
     } else {
         eprintln!("SKIPPED egl: ../shared/instances not found");
     }
+    println!(
+        "{iterations} iterations per relaxation, {rounds} rounds per start, one worker, seed 1\n"
+    );
     if let Some(inst) = cases.first() {
         // One exact split of a whole order (the streets in file order),
         // which is what pricing a move cost before the route search.
@@ -88,8 +112,8 @@ fn main() {
             let inst = inst.clone().with_operations(ops).expect("valid");
             let t = Instant::now();
             let sol = FleetSolver::new(&inst)
-                .max_iterations(200)
-                .moves(40)
+                .max_iterations(iterations)
+                .moves(rounds)
                 .solve()
                 .expect("a plan");
             let secs = t.elapsed().as_secs_f64();
@@ -208,6 +232,22 @@ fn class_of(name: &str) -> &'static str {
     }
 }
 
+/// The egl files to run: `egl-e1-A` and `egl-s1-A`, or with `all` every
+/// `egl-*.dat` in the folder, in name order.
+fn egl_names(egl: &std::path::Path, all: bool) -> Vec<String> {
+    if !all {
+        return vec!["egl-e1-A".into(), "egl-s1-A".into()];
+    }
+    let mut names: Vec<String> = std::fs::read_dir(egl)
+        .expect("the egl folder")
+        .filter_map(|e| e.ok()?.file_name().into_string().ok())
+        .filter_map(|n| n.strip_suffix(".dat").map(String::from))
+        .filter(|n| n.starts_with("egl-"))
+        .collect();
+    names.sort();
+    names
+}
+
 fn egl_with_dump(path: &std::path::Path) -> Instance {
     let inst = read_dat_file(path).expect("egl file").instance;
     let dist = Distances::new(&inst).expect("distances");
@@ -218,7 +258,9 @@ fn egl_with_dump(path: &std::path::Path) -> Instance {
         .copied()
         .max_by_key(|&v| (dist.cost(depot, v), v))
         .expect("a junction");
-    let name = format!("{} with dump site", inst.name);
+    // Named by the file: egl-e2-A.dat calls itself egl-e2-7 inside.
+    let stem = path.file_stem().and_then(|s| s.to_str()).unwrap_or("egl");
+    let name = format!("{stem} with dump site");
     let inst =
         Instance::new(name, inst.network().clone(), inst.fleet().clone(), depot).expect("valid");
     let mut ty = inst.operations().types_of(&inst)[0].clone();

@@ -810,6 +810,15 @@ fn plans_a_scenario_with_dump_sites_and_truck_types() {
     );
     let sheets = std::fs::read_to_string(out.join("sheets.md")).unwrap();
     assert_eq!(sheets.matches("tip at Landfill").count(), plan.tips());
+    let mut total = 0;
+    for (r, route) in plan.routes.iter().enumerate() {
+        let csv = std::fs::read_to_string(out.join(format!("truck-{}.csv", r + 1))).unwrap();
+        total += check_fleet_csv(&inst, route, &csv);
+    }
+    assert_eq!(total, plan.cost, "the sheets' costs add up to the plan's");
+    assert!(!out
+        .join(format!("truck-{}.csv", plan.routes.len() + 1))
+        .exists());
     let o = planner(
         [
             scenario,
@@ -828,6 +837,84 @@ fn plans_a_scenario_with_dump_sites_and_truck_types() {
     assert!(text(&o)
         .1
         .contains("do not apply to a scenario with truck_types"));
+}
+
+/// Reads one truck's CSV sheet of a fleet plan with the `csv` crate (columns
+/// by their header names) and checks it against the route and the scenario,
+/// figure by figure: every line names the truck's type and yard; the tip
+/// lines come in the route's order with their dump site's name and unload
+/// time; the load after a tip is 0 and the load before it is the trip's load;
+/// the streets served are the route's; the driven cost and the gate fees
+/// add up to the route's driven cost and unload costs, the last time so far
+/// is the shift time. Returns the route's cost recomputed from the sheet and
+/// the scenario's type (fixed cost + driven cost × factor, rounded up, +
+/// gate fees), asserted equal to the plan's.
+fn check_fleet_csv(inst: &Instance, route: &arcwright::fleet::FleetRoute, text: &str) -> i64 {
+    let ops = inst.operations();
+    let ty = &ops.types_of(inst)[route.truck_type];
+    let yard = &ops.yards_of(inst)[route.yard];
+    let mut rd = csv::Reader::from_reader(text.as_bytes());
+    let head: Vec<String> = rd.headers().unwrap().iter().map(String::from).collect();
+    let col = |name: &str| {
+        head.iter()
+            .position(|h| h == name || h.starts_with(&format!("{name} (")))
+            .unwrap_or_else(|| panic!("no column {name} in {head:?}"))
+    };
+    let (action, link, load, cost) = (col("action"), col("link"), col("load_after"), col("cost"));
+    let (so_far, time, site, unload) = (
+        col("cost_so_far"),
+        col("time_so_far"),
+        col("dump_site"),
+        col("unload_time"),
+    );
+    let (ty_col, yard_col, step) = (col("truck_type"), col("yard"), col("step"));
+    let num = |x: &str| x.parse::<i64>().unwrap();
+    let (mut driven, mut fees, mut tips, mut trip_load, mut served) = (0, 0, 0, 0, Vec::new());
+    let mut last = None;
+    for (i, rec) in rd.records().enumerate() {
+        let rec = rec.unwrap();
+        assert_eq!(num(&rec[step]), i as i64 + 1);
+        assert_eq!(&rec[ty_col], ty.name);
+        assert_eq!(&rec[yard_col], yard.name);
+        if &rec[action] == "tip" {
+            let t = route.tips[tips];
+            let ds = &ops.dump_sites[t.site];
+            assert_eq!(Some(&rec[site]), ds.name.as_deref());
+            assert_eq!(num(&rec[unload]), ds.unload_time);
+            assert_eq!(num(&rec[cost]), ds.unload_cost);
+            assert_eq!(
+                trip_load, route.trip_loads[tips],
+                "the trip's load before the tip"
+            );
+            assert_eq!(num(&rec[load]), 0, "no load after a tip");
+            assert!(rec[link].is_empty());
+            assert_eq!(served.len(), t.after, "the tip follows the right service");
+            fees += num(&rec[cost]);
+            tips += 1;
+        } else {
+            assert!(rec[site].is_empty() && rec[unload].is_empty());
+            driven += num(&rec[cost]);
+            if &rec[action] == "serve" {
+                served.push(num(&rec[link]) as usize);
+            }
+        }
+        trip_load = num(&rec[load]);
+        assert_eq!(num(&rec[so_far]), driven + fees);
+        last = Some((num(&rec[time]), trip_load));
+    }
+    assert_eq!(tips, route.tips.len());
+    let links = route.visits.iter().map(|v| inst.tasks()[v.task].link);
+    assert!(
+        served.iter().copied().eq(links),
+        "the route's streets served"
+    );
+    let (shift, end_load) = last.expect("a used truck has lines");
+    assert_eq!(shift, route.time);
+    assert_eq!(end_load, *route.trip_loads.last().unwrap());
+    assert_eq!(driven, route.driven);
+    let cost = ty.fixed_cost + (ty.cost_per_mille * driven + 999) / 1000 + fees;
+    assert_eq!(cost, route.cost);
+    cost
 }
 
 /// `planner check` reads fleet plan files: the planner's own passes, and a

@@ -21,7 +21,7 @@ use arcwright::io::{read_fleet_plan, read_fleet_plan_as_written, write_fleet_pla
 use arcwright::model::Instance;
 use arcwright::paths::Distances;
 use arcwright::plan::{walk, Plan};
-use arcwright::report::fleet::{describe_fleet, fleet_markdown, fleet_rows};
+use arcwright::report::fleet::{describe_fleet, fleet_csv, fleet_markdown, fleet_rows};
 use arcwright::report::geo::fleet_feature_collection;
 use arcwright::report::svg::fleet_map;
 use arcwright::report::{bundle_walks, route_walks, summary_table, OutputFile, SummaryExtras};
@@ -327,8 +327,8 @@ pub fn bound_method(solution: &arcwright::Solution) -> String {
 
 /// Plans a scenario with dump sites, several yards, truck types or
 /// balancing with the fleet solver, checks the plan independently and
-/// writes `plan.json` (every tip recorded) and `sheets.md` (with "tip at
-/// ..., unload ..."). Seed, workers and iteration limit as given; with a
+/// writes `plan.json` (every tip recorded), `sheets.md` (with "tip at
+/// ..., unload ...") and one `truck-N.csv` per truck (tip lines too). Seed, workers and iteration limit as given; with a
 /// time limit (the default without `--iterations`) the local search runs
 /// until it ends, and Ctrl-C (the stop flag) ends it early: either way the
 /// best plan so far is checked and written.
@@ -410,7 +410,7 @@ fn run_fleet_plan(
             contents: summary.clone(),
         },
     ];
-    files.extend(fleet_maps(inst, &sol.plan)?);
+    files.extend(fleet_files(inst, &sol.plan)?);
     let mut summary = summary;
     if osm {
         attribute_osm(&mut files);
@@ -428,13 +428,21 @@ fn run_fleet_plan(
     })
 }
 
-/// `plan.svg` and `plan.geojson` of a fleet plan (when the scenario has
+/// One `truck-N.csv` per truck of a fleet plan (numbers padded as for plain
+/// plans; tip lines with dump site and unload time, the truck's type and
+/// yard), then `plan.svg` and `plan.geojson` (when the scenario has
 /// coordinates): the walks on each truck type's own streets, the way to a
 /// dump site and back marked, yards and dump sites labelled.
-fn fleet_maps(inst: &Instance, plan: &FleetPlan) -> Result<Vec<OutputFile>, AppError> {
+fn fleet_files(inst: &Instance, plan: &FleetPlan) -> Result<Vec<OutputFile>, AppError> {
     let tables = Tables::new(inst).map_err(AppError::Distances)?;
     let rows = fleet_rows(inst, &tables, plan);
-    let mut files = Vec::new();
+    let width = plan.routes.len().to_string().len();
+    let mut files: Vec<OutputFile> = (0..plan.routes.len())
+        .map(|r| OutputFile {
+            name: format!("truck-{:0width$}.csv", r + 1),
+            contents: fleet_csv(inst, &tables, plan, r),
+        })
+        .collect();
     if let Some(g) = fleet_feature_collection(inst, plan, &rows) {
         files.push(OutputFile {
             name: "plan.geojson".into(),

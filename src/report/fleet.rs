@@ -4,7 +4,7 @@
 
 use std::fmt::Write as _;
 
-use super::sheets::{Action, SheetRow};
+use super::sheets::{csv_text, Action, CsvColumns, SheetRow};
 use super::{street_label, street_ref, CAUTIONS};
 use crate::check::fleet::FleetViolation;
 use crate::fleet::{FleetPlan, FleetRoute, Tables};
@@ -306,30 +306,106 @@ pub fn describe_fleet(inst: &Instance, plan: &FleetPlan, v: &FleetViolation) -> 
 /// legs leaving one [`Action::FromDumpSite`]. `cost` is the street's cost
 /// before the type's cost factor; `load` the load of the current trip (0
 /// after a tip); `time` includes waiting for a dump site to open and
-/// unloading. Routes whose legs cannot be driven (a plan that fails the
+/// unloading, `cost_so_far` the gate fees paid. Routes whose legs cannot be driven (a plan that fails the
 /// checker) miss those legs.
 pub fn fleet_rows(inst: &Instance, tables: &Tables, plan: &FleetPlan) -> Vec<Vec<SheetRow>> {
     plan.routes
         .iter()
-        .map(|r| route_rows(inst, tables, r))
+        .map(|r| route_walk(inst, tables, r).rows)
         .collect()
 }
 
-/// Rows of one route (see [`fleet_rows`]).
-fn route_rows(inst: &Instance, tables: &Tables, r: &FleetRoute) -> Vec<SheetRow> {
+/// Route `r`'s sheet as RFC 4180 CSV (written with the `csv` crate), one
+/// line per step and one per tip, in driving order. The columns of the plain
+/// sheets ([`super::sheets::route_csv`]: `step`, `street`, `link`,
+/// `from_junction`, `to_junction`, `action`, `cost (U)`, ...,
+/// `load_after (U)`, `cost_so_far (U)`, ...), then `truck_type` and `yard`
+/// (the same on every line), `dump_site` and `unload_time (U)` (filled on
+/// tip lines only). A tip line has action `tip`, no street, its dump site's
+/// junction as both ends, the gate fee as its cost, waiting and unloading as
+/// its time, and load 0 after it. Costs are before the type's cost factor:
+/// the last line's `cost_so_far` is the route's driven cost plus its gate
+/// fees (the route's cost adds the fixed cost and the factor, see
+/// [`FleetRoute::cost`]); the last `time_so_far` is the shift time.
+///
+/// ```
+/// use arcwright::fleet::{FleetSolver, Tables};
+/// use arcwright::model::{Fleet, Instance, Network};
+/// let mut net = Network::with_junctions(2);
+/// net.add_required_edge(0, 1, 4, 2);
+/// let inst = Instance::new("one", net, Fleet::with_capacity(9), 0).unwrap();
+/// let plan = FleetSolver::new(&inst).solve().unwrap().plan;
+/// let csv = arcwright::report::fleet::fleet_csv(&inst, &Tables::new(&inst).unwrap(), &plan, 0);
+/// assert!(csv.starts_with("step,street,link,"));
+/// assert!(csv.lines().next().unwrap().ends_with(",truck_type,yard,dump_site,unload_time (time units)"));
+/// ```
+pub fn fleet_csv(inst: &Instance, tables: &Tables, plan: &FleetPlan, r: usize) -> String {
+    let route = &plan.routes[r];
+    let walk = route_walk(inst, tables, route);
+    let cols = CsvColumns::of(inst);
+    let u = inst.units();
+    let type_name = inst
+        .operations()
+        .types_of(inst)
+        .get(route.truck_type)
+        .map_or(String::new(), |t| t.name.clone());
+    let yard = inst
+        .operations()
+        .yards_of(inst)
+        .get(route.yard)
+        .map_or(String::new(), |y| y.name.clone());
+    let mut head = cols.head(inst);
+    head.extend(["truck_type".into(), "yard".into(), "dump_site".into()]);
+    head.push(format!("unload_time ({})", u.time_label()));
+    let mut w = csv::Writer::from_writer(Vec::new());
+    // Writing to memory cannot fail; a failure would be a bug here.
+    w.write_record(&head).expect("CSV to memory");
+    let mut tips = walk.tips.iter().peekable();
+    let mut step = 0;
+    for k in 0..=walk.rows.len() {
+        while let Some(t) = tips.next_if(|t| t.before == k) {
+            step += 1;
+            let row = SheetRow {
+                step,
+                ..t.row.clone()
+            };
+            let mut rec = cols.record_as(&row, None, "tip");
+            let site = &inst.operations().dump_sites[t.site];
+            rec.extend([type_name.clone(), yard.clone(), site_name(inst, t.site)]);
+            rec.push(site.unload_time.to_string());
+            w.write_record(&rec).expect("CSV to memory");
+        }
+        if let Some(x) = walk.rows.get(k) {
+            step += 1;
+            let mut rec = cols.record(&SheetRow { step, ..x.clone() });
+            rec.extend([
+                type_name.clone(),
+                yard.clone(),
+                String::new(),
+                String::new(),
+            ]);
+            w.write_record(&rec).expect("CSV to memory");
+        }
+    }
+    csv_text(w)
+}
+
+/// Rows and tips of one route (see [`fleet_rows`]).
+fn route_walk<'a>(inst: &'a Instance, tables: &Tables, r: &FleetRoute) -> RowWalk<'a> {
     let ops = inst.operations();
-    let Some(tt) = tables.types.get(r.truck_type) else {
-        return Vec::new();
-    };
-    let dist = tables.dist(r.truck_type);
     let mut w = RowWalk {
         inst,
         rows: Vec::new(),
+        tips: Vec::new(),
         load: 0,
         cost: 0,
         time: 0,
         length: Some(0),
     };
+    let Some(tt) = tables.types.get(r.truck_type) else {
+        return w;
+    };
+    let dist = tables.dist(r.truck_type);
     let mut at = tt.yard;
     let mut served = false;
     let mut from_site = false;
@@ -340,11 +416,14 @@ fn route_rows(inst: &Instance, tables: &Tables, r: &FleetRoute) -> Vec<SheetRow>
                 continue;
             };
             w.leg(dist, at, site.junction, Action::ToDumpSite);
+            let arrival = w.time;
             if let Some(h) = site.hours {
                 w.time = w.time.max(h.opens);
             }
             w.time += site.unload_time;
+            w.cost += site.unload_cost;
             w.load = 0;
+            w.tip(t.site, site.junction, site.unload_cost, w.time - arrival);
             at = site.junction;
             from_site = true;
         }
@@ -373,20 +452,66 @@ fn route_rows(inst: &Instance, tables: &Tables, r: &FleetRoute) -> Vec<SheetRow>
         };
         w.leg(dist, at, tt.yard, action);
     }
-    w.rows
+    w
 }
 
 /// Rows of a route being built, with the running figures.
 struct RowWalk<'a> {
     inst: &'a Instance,
     rows: Vec<SheetRow>,
+    tips: Vec<TipLine>,
     load: Cost,
     cost: Cost,
     time: Cost,
     length: Option<Cost>,
 }
 
+/// A tip on a route's walk: before row `before`, at dump site `site`; `row`
+/// holds its figures (its `link` and `street` mean nothing).
+struct TipLine {
+    before: usize,
+    site: usize,
+    row: SheetRow,
+}
+
 impl RowWalk<'_> {
+    /// Records a tip at dump site `site` (junction `j`), its gate fee `fee`
+    /// and the time `dt` spent waiting and unloading (already counted).
+    fn tip(&mut self, site: usize, j: usize, fee: Cost, dt: Cost) {
+        let place = Place {
+            link: 0,
+            street: String::new(),
+            ends: (j, j),
+            length: None,
+        };
+        let row = self.row(place, Action::ToDumpSite, fee, dt);
+        let before = self.rows.len();
+        self.tips.push(TipLine { before, site, row });
+    }
+
+    /// A row at `place` with the running figures (already updated).
+    fn row(&self, place: Place, action: Action, cost: Cost, dt: Cost) -> SheetRow {
+        let junctions = &self.inst.network().junctions;
+        SheetRow {
+            step: self.rows.len() + 1,
+            link: place.link,
+            street: place.street,
+            from: junctions[place.ends.0].id,
+            to: junctions[place.ends.1].id,
+            ends: place.ends,
+            action,
+            cost,
+            length: place.length,
+            step_time: dt,
+            load: self.load,
+            cost_so_far: self.cost,
+            length_so_far: self.length,
+            time: self.time,
+            turn: None,
+            manoeuvre: None,
+        }
+    }
+
     /// The deadhead path from `a` to `b` on the type's network.
     fn leg(&mut self, dist: &crate::paths::Distances, a: usize, b: usize, action: Action) {
         for h in dist.path(a, b).unwrap_or_default() {
@@ -396,28 +521,26 @@ impl RowWalk<'_> {
     }
 
     fn push(&mut self, link: usize, ends: (usize, usize), action: Action, cost: Cost, dt: Cost) {
-        let net = self.inst.network();
-        let l = &net.links[link];
+        let l = &self.inst.network().links[link];
         self.cost += cost;
         self.time += dt;
         self.length = self.length.zip(l.length).map(|(a, b)| a + b);
-        self.rows.push(SheetRow {
-            step: self.rows.len() + 1,
+        let place = Place {
             link,
             street: street_label(self.inst, link),
-            from: net.junctions[ends.0].id,
-            to: net.junctions[ends.1].id,
             ends,
-            action,
-            cost,
             length: l.length,
-            step_time: dt,
-            load: self.load,
-            cost_so_far: self.cost,
-            length_so_far: self.length,
-            time: self.time,
-            turn: None,
-            manoeuvre: None,
-        });
+        };
+        let row = self.row(place, action, cost, dt);
+        self.rows.push(row);
     }
+}
+
+/// Where a row is: a street (its link, label, ends and length), or a
+/// junction (a tip: no street, both ends the junction).
+struct Place {
+    link: usize,
+    street: String,
+    ends: (usize, usize),
+    length: Option<Cost>,
 }

@@ -213,76 +213,122 @@ pub fn rows_of_walks(inst: &Instance, walks: &[TurnWalk]) -> Vec<Vec<SheetRow>> 
 
 /// [`route_csv`] from rows already computed.
 pub fn csv_of_rows(inst: &Instance, rows: &[SheetRow]) -> String {
-    let u = inst.units();
-    let (lengths, times) = (shows_lengths(inst), shows_times(inst));
-    let with = |name: &str, unit: String| format!("{name} ({unit})");
-    let mut head: Vec<String> = [
-        "step",
-        "street",
-        "link",
-        "from_junction",
-        "to_junction",
-        "action",
-    ]
-    .map(String::from)
-    .to_vec();
-    head.push(with("cost", u.cost_label()));
-    if lengths {
-        head.push(with("length", u.length_label()));
-    }
-    if times {
-        head.push(with("time", u.time_label()));
-    }
-    head.push(with("load_after", u.load_label()));
-    head.push(with("cost_so_far", u.cost_label()));
-    if lengths {
-        head.push(with("length_so_far", u.length_label()));
-    }
-    if times {
-        head.push(with("time_so_far", u.time_label()));
-    }
-    let turns = inst.turn_rules().is_some();
-    if turns {
-        head.push("turn".into());
-        head.push(with("turn_cost", u.cost_label()));
-        head.push("manoeuvre".into());
-    }
-    let opt = |v: Option<Cost>| v.map_or(String::new(), |x| x.to_string());
+    let cols = CsvColumns::of(inst);
     let mut w = csv::Writer::from_writer(Vec::new());
     // Writing to memory cannot fail; a failure would be a bug here.
-    w.write_record(&head).expect("CSV to memory");
+    w.write_record(cols.head(inst)).expect("CSV to memory");
     for x in rows {
+        w.write_record(cols.record(x)).expect("CSV to memory");
+    }
+    csv_text(w)
+}
+
+/// The text a CSV writer to memory holds.
+pub(crate) fn csv_text(w: csv::Writer<Vec<u8>>) -> String {
+    String::from_utf8(w.into_inner().expect("CSV to memory")).expect("UTF-8 fields give UTF-8")
+}
+
+/// The columns of a scenario's CSV sheets (see [`route_csv`]): the optional
+/// length, time and turn columns shown or not.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct CsvColumns {
+    lengths: bool,
+    times: bool,
+    turns: bool,
+}
+
+impl CsvColumns {
+    /// The columns of `inst`'s sheets.
+    pub(crate) fn of(inst: &Instance) -> CsvColumns {
+        CsvColumns {
+            lengths: shows_lengths(inst),
+            times: shows_times(inst),
+            turns: inst.turn_rules().is_some(),
+        }
+    }
+
+    /// The header: names with their units.
+    pub(crate) fn head(&self, inst: &Instance) -> Vec<String> {
+        let u = inst.units();
+        let with = |name: &str, unit: String| format!("{name} ({unit})");
+        let mut head: Vec<String> = [
+            "step",
+            "street",
+            "link",
+            "from_junction",
+            "to_junction",
+            "action",
+        ]
+        .map(String::from)
+        .to_vec();
+        head.push(with("cost", u.cost_label()));
+        if self.lengths {
+            head.push(with("length", u.length_label()));
+        }
+        if self.times {
+            head.push(with("time", u.time_label()));
+        }
+        head.push(with("load_after", u.load_label()));
+        head.push(with("cost_so_far", u.cost_label()));
+        if self.lengths {
+            head.push(with("length_so_far", u.length_label()));
+        }
+        if self.times {
+            head.push(with("time_so_far", u.time_label()));
+        }
+        if self.turns {
+            head.push("turn".into());
+            head.push(with("turn_cost", u.cost_label()));
+            head.push("manoeuvre".into());
+        }
+        head
+    }
+
+    /// One step's record, in the order of [`CsvColumns::head`].
+    pub(crate) fn record(&self, x: &SheetRow) -> Vec<String> {
+        self.record_as(x, Some((&x.street, x.link)), x.action.label())
+    }
+
+    /// One record with `street` (its label and link index; both cells empty
+    /// for `None`, a stop at a junction such as a tip) and the `action` word
+    /// given; every other cell from `x`.
+    pub(crate) fn record_as(
+        &self,
+        x: &SheetRow,
+        street: Option<(&str, usize)>,
+        action: &str,
+    ) -> Vec<String> {
+        let opt = |v: Option<Cost>| v.map_or(String::new(), |x| x.to_string());
         let mut rec = vec![
             x.step.to_string(),
-            x.street.clone(),
-            x.link.to_string(),
+            street.map_or(String::new(), |s| s.0.to_string()),
+            street.map_or(String::new(), |s| s.1.to_string()),
             x.from.to_string(),
             x.to.to_string(),
-            x.action.label().to_string(),
+            action.to_string(),
             x.cost.to_string(),
         ];
-        if lengths {
+        if self.lengths {
             rec.push(opt(x.length));
         }
-        if times {
+        if self.times {
             rec.push(x.step_time.to_string());
         }
         rec.push(x.load.to_string());
         rec.push(x.cost_so_far.to_string());
-        if lengths {
+        if self.lengths {
             rec.push(opt(x.length_so_far));
         }
-        if times {
+        if self.times {
             rec.push(x.time.to_string());
         }
-        if turns {
+        if self.turns {
             rec.push(x.turn.map_or(String::new(), |t| turn_word(t.kind)));
             rec.push(x.turn.map_or(String::new(), |t| t.cost.to_string()));
             rec.push(x.manoeuvre.clone().unwrap_or_default());
         }
-        w.write_record(&rec).expect("CSV to memory");
+        rec
     }
-    String::from_utf8(w.into_inner().expect("CSV to memory")).expect("UTF-8 fields give UTF-8")
 }
 
 fn md_cell(s: &str) -> String {
