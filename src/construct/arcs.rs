@@ -77,6 +77,14 @@ enum Legs {
     Turns(TurnDistances),
 }
 
+/// Each arc's service cost, service time, demand and whether it may be
+/// served.
+type PerArc = (Vec<i64>, Vec<i64>, Vec<i64>, Vec<bool>);
+
+/// The dense part of an [`ArcMatrix`]: number of keys, key of each arc's
+/// start, row offset of each arc's end, costs, times.
+type Dense = (usize, Vec<u32>, Vec<usize>, Vec<i32>, Option<Vec<i32>>);
+
 /// Arc-to-arc deadhead costs (and times) plus per-task data: dense
 /// matrices, or answered on demand when the distances are
 /// ([`Distances::is_on_demand`], [`TurnDistances::is_on_demand`]).
@@ -231,25 +239,9 @@ impl ArcMatrix {
         if timed {
             fill_rows(&mut time, rows, cols, &|u, v| dist.time(u, v))?;
         }
-        Ok(ArcMatrix {
-            n,
-            arcs,
-            depot: (2 * n) as u32,
-            keys: k,
-            kstart,
-            kend_row,
-            cost,
-            time: timed.then_some(time),
-            serve_cost,
-            serve_time,
-            demand,
-            allowed,
-            capacity: inst.fleet().capacity,
-            shift: inst.fleet().shift_limit,
-            max_routes: inst.fleet().max_vehicles,
-            legs: None,
-            cap: MAX_LEG,
-        })
+        let per_arc = (serve_cost, serve_time, demand, allowed);
+        let dense = (k, kstart, kend_row, cost, timed.then_some(time));
+        Ok(Self::assemble(inst, per_arc, dense))
     }
 
     /// Builds the matrices from turn-aware deadheads ([`TurnDistances`]):
@@ -301,25 +293,11 @@ impl ArcMatrix {
                 }
             }
         }
-        Ok(ArcMatrix {
-            n,
-            arcs,
-            depot: (2 * n) as u32,
-            keys: arcs,
-            kstart: (0..arcs as u32).collect(),
-            kend_row: (0..arcs).map(|a| a * arcs).collect(),
-            cost,
-            time: timed.then_some(time),
-            serve_cost,
-            serve_time,
-            demand,
-            allowed,
-            capacity: inst.fleet().capacity,
-            shift: inst.fleet().shift_limit,
-            max_routes: inst.fleet().max_vehicles,
-            legs: None,
-            cap: MAX_LEG,
-        })
+        let per_arc = (serve_cost, serve_time, demand, allowed);
+        let kstart = (0..arcs as u32).collect();
+        let kend_row = (0..arcs).map(|a| a * arcs).collect();
+        let dense = (arcs, kstart, kend_row, cost, timed.then_some(time));
+        Ok(Self::assemble(inst, per_arc, dense))
     }
 
     /// Deadhead cost from the end of `a` to the start of `b`.
@@ -334,23 +312,28 @@ impl ArcMatrix {
     /// A matrix of `inst` with no square arrays, answering from `legs`;
     /// `per_arc` is each arc's (service cost, service time, demand,
     /// allowed).
-    fn answering(
-        inst: &Instance,
-        per_arc: (Vec<i64>, Vec<i64>, Vec<i64>, Vec<bool>),
-        legs: Legs,
-    ) -> ArcMatrix {
+    fn answering(inst: &Instance, per_arc: PerArc, legs: Legs) -> ArcMatrix {
+        let dense = (0, Vec::new(), Vec::new(), Vec::new(), None);
+        Self::assemble(inst, per_arc, dense).on_demand(legs)
+    }
+
+    /// The matrix of `inst` from its per-arc data and its dense part
+    /// (number of keys, key of each arc's start, row offset of each arc's
+    /// end, costs, times), with the fleet's limits.
+    fn assemble(inst: &Instance, per_arc: PerArc, dense: Dense) -> ArcMatrix {
         let (serve_cost, serve_time, demand, allowed) = per_arc;
+        let (keys, kstart, kend_row, cost, time) = dense;
         let arcs = serve_cost.len();
         let n = (arcs - 2) / 2;
-        let base = ArcMatrix {
+        ArcMatrix {
             n,
             arcs,
             depot: (2 * n) as u32,
-            keys: 0,
-            kstart: Vec::new(),
-            kend_row: Vec::new(),
-            cost: Vec::new(),
-            time: None,
+            keys,
+            kstart,
+            kend_row,
+            cost,
+            time,
             serve_cost,
             serve_time,
             demand,
@@ -360,8 +343,7 @@ impl ArcMatrix {
             max_routes: inst.fleet().max_vehicles,
             legs: None,
             cap: MAX_LEG,
-        };
-        base.on_demand(legs)
+        }
     }
 
     /// The matrix answering on demand from `legs`, with its length cap set
