@@ -41,10 +41,15 @@ use rand::SeedableRng;
 use rand_chacha::ChaCha12Rng;
 use rayon::prelude::*;
 
-use super::solver::{Ctx, Island};
+use super::recreate::{anneal, temperature_scale, Temperatures};
 use crate::construct::arcs::ArcMatrix;
-use crate::improve::local_search::{neighbour_lists, DEFAULT_NEIGHBOURS};
-use crate::model::Cost;
+use crate::improve::local_search::neighbour_lists;
+
+/// Nearest tasks listed per task for the ruin step.
+const NEAR: usize = 32;
+
+/// Temperature at the end of a district's run, as a share of its start.
+const COOLING: f64 = 0.1;
 
 /// Limits shared by all districts of a run.
 pub(super) struct Limits {
@@ -66,21 +71,25 @@ impl Limits {
 
 /// What one round did.
 pub(super) struct RoundResult {
-    /// Offspring made in all districts.
-    pub offspring: u64,
+    /// Ruin-and-recreate moves made in all districts.
+    pub iterations: u64,
     /// Districts whose routes were replaced.
     pub improved: usize,
 }
 
 /// One round of district improvement on `routes` (task arcs of `m`), in
-/// place. `size` is the target number of streets per district, `offspring`
-/// the offspring per district. Never makes the total cost larger; every
-/// route stays feasible.
+/// place. `size` is the target number of streets per district, `iterations`
+/// the ruin-and-recreate moves per district, `heat` the annealing
+/// temperature at the start of each district's run, in mean service costs
+/// of its streets. Never makes the total cost larger; every route stays
+/// feasible.
+#[allow(clippy::too_many_arguments)]
 pub(super) fn round(
     m: &ArcMatrix,
     routes: &mut Vec<Vec<u32>>,
     size: usize,
-    offspring: u64,
+    iterations: u64,
+    heat: f64,
     seed: u64,
     round: u64,
     limits: &Limits,
@@ -98,11 +107,11 @@ pub(super) fn round(
             let mut rng = ChaCha12Rng::seed_from_u64(seed ^ round.rotate_left(32));
             rng.set_stream(k as u64 + 1);
             let picked: Vec<&[u32]> = g.iter().map(|&r| routes[r].as_slice()).collect();
-            improve(m, &picked, offspring, rng, limits)
+            improve(m, &picked, iterations, heat, rng, limits)
         })
         .collect();
     let mut out = RoundResult {
-        offspring: results.iter().map(|r| r.1).sum(),
+        iterations: results.iter().map(|r| r.1).sum(),
         improved: 0,
     };
     let mut next: Vec<Vec<u32>> = Vec::with_capacity(routes.len());
@@ -193,13 +202,15 @@ pub(super) fn group(
     out
 }
 
-/// Runs the island search on one district; returns cheaper routes (task
-/// arcs of `m`) if it found some, and the offspring made.
+/// Runs ruin and recreate on one district (module `recreate`); returns
+/// cheaper routes (task arcs of `m`) if it found some, and the iterations
+/// made.
 fn improve(
     m: &ArcMatrix,
     routes: &[&[u32]],
-    offspring: u64,
-    rng: ChaCha12Rng,
+    iterations: u64,
+    heat: f64,
+    mut rng: ChaCha12Rng,
     limits: &Limits,
 ) -> (Option<Vec<Vec<u32>>>, u64) {
     let mut tasks: Vec<usize> = routes
@@ -216,39 +227,28 @@ fn improve(
             .expect("task of the district");
         2 * i as u32 + (a & 1)
     };
-    let old: Cost = routes.iter().map(|r| m.route_eval(r).0).sum();
     let sub = m.restrict(&tasks, m.max_routes.map(|_| routes.len()));
-    let neigh = neighbour_lists(&sub, DEFAULT_NEIGHBOURS);
-    let ctx = Ctx {
-        m: &sub,
-        neigh: &neigh,
-        deadline: limits.deadline,
-        stop: limits.stop.clone(),
-        stop_at: Cost::MIN,
-        start: limits.start,
-    };
-    let mut island = Island::new(rng, &sub);
+    let near = neighbour_lists(&sub, NEAR);
     let mine: Vec<Vec<u32>> = routes
         .iter()
         .map(|r| r.iter().map(|&a| local(a)).collect())
         .collect();
-    island.receive(&mine, old);
-    island.run(&ctx, offspring);
-    let made = island.iterations;
-    match island.best {
-        Some(b) if b.cost < old => {
-            let back = b
-                .routes
-                .iter()
-                .filter(|r| !r.is_empty())
-                .map(|r| {
-                    r.iter()
-                        .map(|&a| 2 * tasks[ArcMatrix::task(a)] as u32 + (a & 1))
-                        .collect()
-                })
-                .collect();
-            (Some(back), made)
-        }
-        _ => (None, made),
-    }
+    let scale = temperature_scale(&sub);
+    let temps = Temperatures {
+        hot: scale * heat,
+        cold: scale * heat * COOLING,
+    };
+    let out = anneal(&sub, &near, &mine, iterations, temps, &mut rng, &|| {
+        limits.reached()
+    });
+    let back = out.better.map(|(_, b)| {
+        b.iter()
+            .map(|r| {
+                r.iter()
+                    .map(|&a| 2 * tasks[ArcMatrix::task(a)] as u32 + (a & 1))
+                    .collect()
+            })
+            .collect()
+    });
+    (back, out.iterations)
 }

@@ -7,6 +7,7 @@
 
 mod crossover;
 mod districts;
+mod recreate;
 mod lp_side;
 mod population;
 mod solver;

@@ -97,8 +97,14 @@ pub const DISTRICTS_FROM: usize = 2048;
 /// Streets per district under [`Decomposition::Auto`].
 pub const DISTRICT_STREETS: usize = 300;
 
-/// Offspring per district and round.
-const DISTRICT_OFFSPRING: u64 = 100;
+/// Ruin-and-recreate moves per district and round, per street of the
+/// district.
+const DISTRICT_MOVES_PER_STREET: u64 = 10;
+
+/// Annealing temperature of the district search at the start and at the end
+/// of a run, in mean service costs of a district's streets.
+const HEAT_START: f64 = 1.0;
+const HEAT_END: f64 = 0.01;
 
 /// Above this many streets the construction and the neighbour lists use
 /// network candidate lists instead of scanning every street.
@@ -735,7 +741,6 @@ impl<'a> Solver<'a> {
                 self.announce(Phase::Districts, Some(cost), lower_bound, ctx.start, 0);
             }
         }
-        let per_district = DISTRICT_OFFSPRING;
         let limits = Limits {
             deadline: ctx.deadline,
             stop: ctx.stop.clone(),
@@ -743,14 +748,27 @@ impl<'a> Solver<'a> {
         };
         let mut budget = self.max_iterations.unwrap_or(u64::MAX);
         let (mut iterations, mut k) = (0u64, 0u64);
-        let expected = m.n.div_ceil(size).max(1) as u64;
+        let search_start = Instant::now();
         while cost > ctx.stop_at && !ctx.should_stop() && budget > 0 {
-            let per = per_district.min((budget / expected).max(1));
-            let r =
-                pool.install(|| districts::round(m, &mut routes, size, per, self.seed, k, &limits));
+            // Annealing heat falls with the share of the run spent: of the
+            // time limit, else of the iteration limit, else of 100 rounds.
+            let spent = match (ctx.deadline, self.max_iterations) {
+                (Some(d), _) => {
+                    let total = d.saturating_duration_since(search_start).as_secs_f64();
+                    search_start.elapsed().as_secs_f64() / total.max(1e-9)
+                }
+                (None, Some(limit)) => iterations as f64 / limit.max(1) as f64,
+                (None, None) => k as f64 / 100.0,
+            };
+            let heat = HEAT_START * (HEAT_END / HEAT_START).powf(spent.clamp(0.0, 1.0));
+            let per = (DISTRICT_MOVES_PER_STREET * size as u64)
+                .min((budget / (m.n.div_ceil(size).max(1) as u64)).max(1));
+            let r = pool.install(|| {
+                districts::round(m, &mut routes, size, per, heat, self.seed, k, &limits)
+            });
             k += 1;
-            iterations += r.offspring;
-            budget = budget.saturating_sub(r.offspring.max(1));
+            iterations += r.iterations;
+            budget = budget.saturating_sub(r.iterations.max(1));
             let now: i64 = routes.iter().map(|r| m.route_eval(r).0).sum();
             debug_assert!(now <= cost, "a district round made the plan worse");
             if now < cost {
@@ -764,7 +782,7 @@ impl<'a> Solver<'a> {
                     iterations,
                 );
             }
-            if r.offspring == 0 {
+            if r.iterations == 0 {
                 break;
             }
         }
