@@ -12,8 +12,12 @@
 //!   average and strings of at most `L` tasks) have been ruined.
 //! - **Recreate.** The removed tasks, in a random order, by demand, or by
 //!   distance from the yard, each go to its cheapest feasible position
-//!   (capacity, shift limit, allowed directions) over all routes of the
-//!   district, each position skipped with a small probability ("blinks");
+//!   (capacity, shift limit, allowed directions) among the positions next
+//!   to one of its nearest tasks and at both ends of their routes (SISR
+//!   looks at every position of every route; the restriction to nearby
+//!   positions is ours, so that a move costs the same in a large district
+//!   as in a small one), each position skipped with a small probability
+//!   ("blinks");
 //!   a new route is opened only when no position fits and the fleet bound
 //!   allows it.
 //! - **Acceptance.** Simulated annealing: a plan costing up to
@@ -55,6 +59,8 @@ struct State {
     total: i64,
     /// Route of each task (`u32::MAX` while removed).
     at: Vec<u32>,
+    /// Position of each task in its route.
+    pos: Vec<u32>,
 }
 
 impl State {
@@ -66,6 +72,7 @@ impl State {
             load: Vec::new(),
             total: 0,
             at: vec![u32::MAX; m.n],
+            pos: vec![0; m.n],
         };
         for r in 0..s.routes.len() {
             let (c, t, l) = m.route_eval(&s.routes[r]);
@@ -73,15 +80,20 @@ impl State {
             s.time.push(t);
             s.load.push(l);
             s.total += c;
-            for &a in &s.routes[r] {
+            for (i, &a) in s.routes[r].iter().enumerate() {
                 s.at[ArcMatrix::task(a)] = r as u32;
+                s.pos[ArcMatrix::task(a)] = i as u32;
             }
         }
         s
     }
 
-    /// Re-evaluates route `r` after a change and updates the total.
+    /// Re-evaluates route `r` after a change and updates the total and the
+    /// positions.
     fn refresh(&mut self, m: &ArcMatrix, r: usize) {
+        for (i, &a) in self.routes[r].iter().enumerate() {
+            self.pos[ArcMatrix::task(a)] = i as u32;
+        }
         let (c, t, l) = m.route_eval(&self.routes[r]);
         self.total += c - self.cost[r];
         self.cost[r] = c;
@@ -139,6 +151,7 @@ pub(super) fn anneal(
         })
         .collect();
     let mut removed: Vec<usize> = Vec::new();
+    let mut ruined: Vec<u32> = Vec::new();
     let mut done = 0;
     let ratio = (temps.cold / temps.hot).max(1e-9);
     while done < iterations {
@@ -149,12 +162,12 @@ pub(super) fn anneal(
         done += 1;
         let mut cand = cur.clone();
         removed.clear();
-        ruin(m, near, &mut cand, &mut removed, rng);
+        ruin(m, near, &mut cand, &mut removed, &mut ruined, rng);
         if removed.is_empty() {
             continue;
         }
         order(&mut removed, &depot_gap, m, rng);
-        if !recreate(m, &mut cand, &removed, rng) {
+        if !recreate(m, near, &mut cand, &removed, &ruined, rng) {
             continue;
         }
         let threshold = -temp * rng.random::<f64>().max(1e-300).ln();
@@ -179,6 +192,7 @@ fn ruin(
     near: &[Vec<u32>],
     s: &mut State,
     removed: &mut Vec<usize>,
+    ruined: &mut Vec<u32>,
     rng: &mut ChaCha12Rng,
 ) {
     let used = s.routes.iter().filter(|r| !r.is_empty()).count().max(1);
@@ -187,7 +201,7 @@ fn ruin(
     let k_max = (4.0 * AVG_REMOVED / (1.0 + l_max) - 1.0).max(1.0);
     let strings = (rng.random_range(1.0..k_max + 1.0) as usize).max(1);
     let seed = rng.random_range(0..m.n);
-    let mut ruined: Vec<u32> = Vec::with_capacity(strings);
+    ruined.clear();
     for &c in std::iter::once(&(seed as u32)).chain(near[seed].iter()) {
         if ruined.len() >= strings {
             break;
@@ -254,80 +268,126 @@ fn order(removed: &mut [usize], depot_gap: &[i64], m: &ArcMatrix, rng: &mut ChaC
     }
 }
 
-/// Inserts each removed task at its cheapest feasible position; `false` if
-/// one fits nowhere (the candidate plan is then dropped).
-fn recreate(m: &ArcMatrix, s: &mut State, removed: &[usize], rng: &mut ChaCha12Rng) -> bool {
+/// Draws the number of positions before the next blink (geometric with
+/// rate [`BLINK`]).
+fn next_blink(rng: &mut ChaCha12Rng) -> usize {
+    let u: f64 = rng.random::<f64>().max(1e-300);
+    (u.ln() / (1.0 - BLINK).ln()) as usize
+}
+
+/// Inserts each removed task at its cheapest feasible position next to one
+/// of its nearest tasks or at the ends of their routes (anywhere in the
+/// ruined routes when all its nearest tasks are out); `false` if one fits
+/// nowhere (the candidate plan is then dropped).
+fn recreate(
+    m: &ArcMatrix,
+    near: &[Vec<u32>],
+    s: &mut State,
+    removed: &[usize],
+    ruined: &[u32],
+    rng: &mut ChaCha12Rng,
+) -> bool {
+    let mut blink = next_blink(rng);
+    let mut look: Vec<u32> = Vec::new();
+    let mut spots: Vec<(u32, u32)> = Vec::new();
     for &t in removed {
         let arcs = [2 * t as u32, 2 * t as u32 + 1];
         let demand = m.demand[2 * t];
-        // (delta cost, route, position, arc, delta time)
-        let mut best: Option<(i64, usize, usize, u32, i64)> = None;
-        for r in 0..s.routes.len() {
-            if s.routes[r].is_empty() || s.load[r] + demand > m.capacity {
+        look.clear();
+        // Positions: next to each nearest task, and both ends of its route
+        // (the legs from and to the yard).
+        spots.clear();
+        for &v in &near[t] {
+            let r = s.at[v as usize];
+            if r == u32::MAX {
                 continue;
             }
+            let p = s.pos[v as usize];
+            spots.push((r, p));
+            spots.push((r, p + 1));
+            if !look.contains(&r) {
+                look.push(r);
+                spots.push((r, 0));
+                spots.push((r, s.routes[r as usize].len() as u32));
+            }
+        }
+        if spots.is_empty() {
+            // Every nearest task is out too: any place in the ruined routes.
+            for &r in ruined {
+                spots.extend((0..=s.routes[r as usize].len() as u32).map(|i| (r, i)));
+            }
+        }
+        // (delta cost, route, position, arc)
+        let mut best: Option<(i64, usize, usize, u32)> = None;
+        for &(r, i) in &spots {
+            let (r, i) = (r as usize, i as usize);
+            if s.load[r] + demand > m.capacity {
+                continue;
+            }
+            if blink == 0 {
+                blink = next_blink(rng);
+                continue;
+            }
+            blink -= 1;
             let route = &s.routes[r];
-            let mut prev = m.depot;
-            for i in 0..=route.len() {
-                let next = if i < route.len() { route[i] } else { m.depot };
-                if !rng.random_bool(BLINK) {
-                    let base = m.d(prev, next);
-                    for &a in &arcs {
-                        if !m.allowed[a as usize] {
-                            continue;
-                        }
-                        let dc = m.d(prev, a) + m.serve_cost[a as usize] + m.d(a, next) - base;
-                        if dc >= BIG || best.is_some_and(|b| dc >= b.0) {
-                            continue;
-                        }
-                        let dt = if let Some(limit) = m.shift {
-                            let dt = m.t(prev, a) + m.serve_time[a as usize] + m.t(a, next)
-                                - m.t(prev, next);
-                            if s.time[r] + dt > limit {
-                                continue;
-                            }
-                            dt
-                        } else {
-                            0
-                        };
-                        best = Some((dc, r, i, a, dt));
+            let prev = if i == 0 { m.depot } else { route[i - 1] };
+            let next = if i < route.len() { route[i] } else { m.depot };
+            let base = m.d(prev, next);
+            for &a in &arcs {
+                if !m.allowed[a as usize] {
+                    continue;
+                }
+                let dc = m.d(prev, a) + m.serve_cost[a as usize] + m.d(a, next) - base;
+                if dc >= BIG || best.is_some_and(|b| dc >= b.0) {
+                    continue;
+                }
+                if let Some(limit) = m.shift {
+                    let dt =
+                        m.t(prev, a) + m.serve_time[a as usize] + m.t(a, next) - m.t(prev, next);
+                    if s.time[r] + dt > limit {
+                        continue;
                     }
                 }
-                prev = next;
+                best = Some((dc, r, i, a));
             }
         }
         let (r, i, a) = match best {
-            Some((_, r, i, a, _)) => (r, i, a),
-            None => {
-                // A route of its own, in a free slot or a new one.
-                let used = s.routes.iter().filter(|r| !r.is_empty()).count();
-                if m.max_routes.is_some_and(|k| used >= k) {
-                    return false;
-                }
-                let a = arcs
-                    .iter()
-                    .copied()
-                    .filter(|&a| m.allowed[a as usize] && m.route_feasible(&[a]))
-                    .min_by_key(|&a| m.route_eval(&[a]).0);
-                let Some(a) = a else { return false };
-                let r = match s.routes.iter().position(Vec::is_empty) {
-                    Some(r) => r,
-                    None => {
-                        s.routes.push(Vec::new());
-                        s.cost.push(0);
-                        s.time.push(0);
-                        s.load.push(0);
-                        s.routes.len() - 1
-                    }
-                };
-                (r, 0, a)
-            }
+            Some((_, r, i, a)) => (r, i, a),
+            None => match open_route(m, s, t) {
+                Some(x) => x,
+                None => return false,
+            },
         };
         s.routes[r].insert(i, a);
         s.at[t] = r as u32;
         s.refresh(m, r);
     }
     true
+}
+
+/// A route of its own for task `t` (in an empty slot or a new one), in its
+/// cheaper feasible direction: (route, position, arc); `None` when the
+/// fleet bound is reached or the task fits no route alone.
+fn open_route(m: &ArcMatrix, s: &mut State, t: usize) -> Option<(usize, usize, u32)> {
+    let used = s.routes.iter().filter(|r| !r.is_empty()).count();
+    if m.max_routes.is_some_and(|k| used >= k) {
+        return None;
+    }
+    let a = [2 * t as u32, 2 * t as u32 + 1]
+        .into_iter()
+        .filter(|&a| m.allowed[a as usize] && m.route_feasible(&[a]))
+        .min_by_key(|&a| m.route_eval(&[a]).0)?;
+    let r = match s.routes.iter().position(Vec::is_empty) {
+        Some(r) => r,
+        None => {
+            s.routes.push(Vec::new());
+            s.cost.push(0);
+            s.time.push(0);
+            s.load.push(0);
+            s.routes.len() - 1
+        }
+    };
+    Some((r, 0, a))
 }
 
 #[cfg(test)]

@@ -133,7 +133,8 @@ pub struct Progress {
     pub bound_by: &'static str,
     /// Time since `solve` started.
     pub elapsed: Duration,
-    /// Offspring generated so far (all workers and districts).
+    /// Offspring generated so far (all workers), or ruin-and-recreate
+    /// moves made in the district search.
     pub iteration: u64,
 }
 
@@ -320,7 +321,9 @@ impl<'a> Solver<'a> {
         self
     }
 
-    /// Stop after this many offspring in total (all workers).
+    /// Stop after this many offspring in total (all workers); in the
+    /// district search ([`Decomposition`]) an iteration is one
+    /// ruin-and-recreate move.
     pub fn max_iterations(mut self, n: u64) -> Self {
         self.max_iterations = Some(n);
         self
@@ -710,9 +713,9 @@ impl<'a> Solver<'a> {
 
     /// The search of large instances: a first plan, then rounds of district
     /// improvement (module `districts`) until a limit, the target or the
-    /// stop flag. With an iteration limit each district gets at most
-    /// [`DISTRICT_OFFSPRING`] offspring per round and the rounds end when
-    /// the limit is spent.
+    /// stop flag. Each district gets [`DISTRICT_MOVES_PER_STREET`] moves per
+    /// street of the district size per round (fewer when an iteration
+    /// limit is nearly spent) and the rounds end when the limit is spent.
     fn by_districts(
         &self,
         ctx: &Ctx<'_>,
@@ -744,7 +747,6 @@ impl<'a> Solver<'a> {
         let limits = Limits {
             deadline: ctx.deadline,
             stop: ctx.stop.clone(),
-            start: ctx.start,
         };
         let mut budget = self.max_iterations.unwrap_or(u64::MAX);
         let (mut iterations, mut k) = (0u64, 0u64);
@@ -760,8 +762,10 @@ impl<'a> Solver<'a> {
                 (None, Some(limit)) => iterations as f64 / limit.max(1) as f64,
                 (None, None) => k as f64 / 100.0,
             };
-            let heat = HEAT_START * (HEAT_END / HEAT_START).powf(spent.clamp(0.0, 1.0));
-            let per = (DISTRICT_MOVES_PER_STREET * size as u64)
+            let envf = |k: &str, d: f64| std::env::var(k).ok().and_then(|v| v.parse().ok()).unwrap_or(d);
+            let (hs, he, mp) = (envf("TMP_HS", HEAT_START), envf("TMP_HE", HEAT_END), envf("TMP_MP", DISTRICT_MOVES_PER_STREET as f64) as u64);
+            let heat = hs * (he / hs).powf(spent.clamp(0.0, 1.0));
+            let per = (mp * size as u64)
                 .min((budget / (m.n.div_ceil(size).max(1) as u64)).max(1));
             let r = pool.install(|| {
                 districts::round(m, &mut routes, size, per, heat, self.seed, k, &limits)
