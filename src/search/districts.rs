@@ -4,13 +4,17 @@
 //! the route-distance grouping of Mei, Li & Yao (2014), with our own
 //! grouping rule:
 //!
-//! 1. **Grouping.** Each route is represented by three of its task arcs (at
-//!    a quarter, half and three quarters of its length). The distance of
-//!    two routes is the least deadhead between their representatives, either
-//!    way. A round draws a random order of the routes; the first route not
-//!    yet in a district seeds one, which takes the nearest remaining routes
-//!    until it holds about `size` streets. Different rounds draw different
-//!    orders, so district borders move from round to round.
+//! 1. **Grouping.** Two routes are linked as often as a street of one has a
+//!    street of the other among its nearest streets (the solver's neighbour
+//!    lists). A round draws a random order of the routes; the first route
+//!    not yet in a district seeds one, which then takes, one at a time, the
+//!    remaining route with the most links to the district until it holds
+//!    about `size` streets (or no remaining route is linked to it).
+//!    Different rounds draw different orders, so district borders move from
+//!    round to round. (Until this version the routes were grouped by the
+//!    deadhead between three representative streets of each route; groups by
+//!    links are more compact, which makes both the district's matrix
+//!    cheaper to search and its moves more useful.)
 //! 2. **Improvement.** Each district is a plan of its own (its routes leave
 //!    from and return to the same yard, so the cost of the whole plan is the
 //!    sum over districts). Its tasks get a small by-arc matrix copied from
@@ -93,6 +97,7 @@ pub(super) struct RoundResult {
 #[allow(clippy::too_many_arguments)]
 pub(super) fn round(
     m: &ArcMatrix,
+    near: &[Vec<u32>],
     routes: &mut Vec<Vec<u32>>,
     size: usize,
     iterations: u64,
@@ -103,7 +108,7 @@ pub(super) fn round(
 ) -> RoundResult {
     let mut rng = ChaCha12Rng::seed_from_u64(seed ^ 0x5eed_d157);
     rng.set_stream(round);
-    let groups = group(m, routes, size, &mut rng);
+    let groups = group(routes, near, size, &mut rng);
     let results: Vec<(Option<Vec<Vec<u32>>>, u64)> = groups
         .par_iter()
         .enumerate()
@@ -136,73 +141,75 @@ pub(super) fn round(
 }
 
 /// Groups route indices into districts of about `size` streets (see the
-/// module docs). Every route is in exactly one district.
+/// module docs); `near[t]` lists each task's nearest tasks. Every route is
+/// in exactly one district.
 pub(super) fn group(
-    m: &ArcMatrix,
     routes: &[Vec<u32>],
+    near: &[Vec<u32>],
     size: usize,
     rng: &mut ChaCha12Rng,
 ) -> Vec<Vec<usize>> {
-    let reps: Vec<[u32; 3]> = routes
+    let mut route_of = vec![u32::MAX; near.len()];
+    for (r, route) in routes.iter().enumerate() {
+        for &a in route {
+            route_of[ArcMatrix::task(a)] = r as u32;
+        }
+    }
+    // Links between routes: pairs of nearest tasks, one in each.
+    let links: Vec<Vec<(u32, u32)>> = routes
         .iter()
-        .map(|r| {
-            let at = |q: usize| r[(r.len() * q / 4).min(r.len() - 1)];
-            [at(1), at(2), at(3)]
+        .enumerate()
+        .map(|(r, route)| {
+            let mut to: Vec<u32> = route
+                .iter()
+                .flat_map(|&a| near[ArcMatrix::task(a)].iter())
+                .map(|&v| route_of[v as usize])
+                .filter(|&o| o != u32::MAX && o != r as u32)
+                .collect();
+            to.sort_unstable();
+            to.chunk_by(|x, y| x == y)
+                .map(|c| (c[0], c.len() as u32))
+                .collect()
         })
         .collect();
-    // On demand, far legs cost a search each: one full search per
-    // representative gives its legs to every other one instead.
-    let directed: Option<Vec<Vec<i64>>> = m.is_on_demand().then(|| {
-        (0..routes.len())
-            .into_par_iter()
-            .map(|x| {
-                let rows: Vec<Vec<(i64, i64)>> = reps[x].iter().map(|&a| m.row_from(a)).collect();
-                reps.iter()
-                    .map(|ry| {
-                        ry.iter()
-                            .flat_map(|&b| rows.iter().map(move |row| row[b as usize].0))
-                            .min()
-                            .unwrap_or(i64::MAX)
-                    })
-                    .collect()
-            })
-            .collect()
-    });
-    let gap = |x: usize, y: usize| -> i64 {
-        if let Some(g) = &directed {
-            return g[x][y].min(g[y][x]);
-        }
-        let mut best = i64::MAX;
-        for &a in &reps[x] {
-            for &b in &reps[y] {
-                best = best.min(m.d(a, b)).min(m.d(b, a));
-            }
-        }
-        best
-    };
     let mut order: Vec<usize> = (0..routes.len()).collect();
     order.shuffle(rng);
     let mut taken = vec![false; routes.len()];
+    let mut score = vec![0u32; routes.len()];
     let mut out = Vec::new();
     for &seed in &order {
         if taken[seed] {
             continue;
         }
-        taken[seed] = true;
-        let mut rest: Vec<(i64, usize)> = (0..routes.len())
-            .filter(|&r| !taken[r])
-            .map(|r| (gap(seed, r), r))
-            .collect();
-        rest.sort_unstable();
-        let mut district = vec![seed];
-        let mut streets = routes[seed].len();
-        for (_, r) in rest {
-            if streets >= size {
-                break;
-            }
+        let mut district = Vec::new();
+        let mut frontier: Vec<usize> = Vec::new();
+        let mut streets = 0;
+        let mut next = Some(seed);
+        while let Some(r) = next {
             taken[r] = true;
             district.push(r);
             streets += routes[r].len();
+            if streets >= size {
+                break;
+            }
+            for &(o, k) in &links[r] {
+                let o = o as usize;
+                if !taken[o] {
+                    if score[o] == 0 {
+                        frontier.push(o);
+                    }
+                    score[o] += k;
+                }
+            }
+            // The most linked route of the frontier (lowest index on ties).
+            frontier.retain(|&o| !taken[o]);
+            next = frontier
+                .iter()
+                .copied()
+                .max_by_key(|&o| (score[o], std::cmp::Reverse(o)));
+        }
+        for &o in &frontier {
+            score[o] = 0;
         }
         out.push(district);
     }

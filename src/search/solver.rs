@@ -768,7 +768,7 @@ impl<'a> Solver<'a> {
             let per = (mp * size as u64)
                 .min((budget / (m.n.div_ceil(size).max(1) as u64)).max(1));
             let r = pool.install(|| {
-                districts::round(m, &mut routes, size, per, heat, self.seed, k, &limits)
+                districts::round(m, ctx.neigh, &mut routes, size, per, heat, self.seed, k, &limits)
             });
             k += 1;
             iterations += r.iterations;
