@@ -320,10 +320,13 @@ pub(crate) fn block<G: StateGraph + ?Sized>(
 ) -> Vec<(Cost, Cost)> {
     use rayon::prelude::*;
     let mut marks = vec![false; g.states()];
+    // Index of each column state among the distinct columns.
+    let mut slot = vec![u32::MAX; g.states()];
     let mut distinct = 0;
     for &c in cols {
         if !marks[c as usize] {
             marks[c as usize] = true;
+            slot[c as usize] = distinct as u32;
             distinct += 1;
         }
     }
@@ -331,14 +334,14 @@ pub(crate) fn block<G: StateGraph + ?Sized>(
         .par_iter()
         .map(|init| {
             let s = settle(g, init, Until::Targets(&marks, distinct));
-            let mut at: std::collections::HashMap<u32, (Cost, Cost)> =
-                std::collections::HashMap::with_capacity(s.order.len());
+            let mut at = vec![(UNREACHABLE, UNREACHABLE); distinct];
             for &(v, c, t) in &s.order {
-                at.insert(v, (c, t));
+                let k = slot[v as usize];
+                if k != u32::MAX {
+                    at[k as usize] = (c, t);
+                }
             }
-            cols.iter()
-                .map(|c| at.get(c).copied().unwrap_or((UNREACHABLE, UNREACHABLE)))
-                .collect()
+            cols.iter().map(|&c| at[slot[c as usize] as usize]).collect()
         })
         .collect();
     out.into_iter().flatten().collect()
