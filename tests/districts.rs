@@ -142,14 +142,14 @@ fn glued_copies_of_gdb1_reach_k_times_the_published_optimum() {
         .seed(3)
         .workers(2)
         .decomposition(districts(60))
-        .max_iterations(2000)
+        .max_iterations(100_000)
         .solve()
         .expect("plan");
     assert!(check_plan(&inst, &sol.plan).is_ok());
     let opt = 4 * r.best_known;
     assert!(sol.cost >= opt, "{} below the optimum {opt}", sol.cost);
-    // Districts of about two copies each: the search finds the optimum of
-    // each copy (gdb1 is solved to optimality by the island search).
+    // Districts of about two copies each, 100,000 ruin-and-recreate moves
+    // in all (about half a second): within 2% of the optimum.
     assert!(sol.cost <= opt + opt / 50, "{} vs optimum {opt}", sol.cost);
 }
 
