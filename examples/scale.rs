@@ -226,7 +226,7 @@ fn main() {
         .on_progress(|p: &Progress| {
             let at = offset + p.elapsed;
             println!(
-                "  {:>7.1} s  {:<12} best {:>10}  bound {}  offspring {}",
+                "  {:>7.1} s  {:<12} best {:>10}  bound {}  iterations {}",
                 at.as_secs_f64(),
                 format!("{:?}", p.phase),
                 p.best_cost.map_or("-".into(), |c| c.to_string()),
@@ -256,7 +256,7 @@ fn main() {
         }
     }
     println!(
-        "final {} (bound {}, checker {}), {} routes, {} offspring, total {:.1} s, peak {} MiB",
+        "final {} (bound {}, checker {}), {} routes, {} iterations, total {:.1} s, peak {} MiB",
         sol.cost,
         sol.lower_bound.value,
         if ok { "ok" } else { "FAILED" },

@@ -82,6 +82,7 @@ pub struct PlanArgs {
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     pub time_limit: Option<Duration>,
     /// Stop searching after N iterations (alone: the run depends only on --seed and --workers).
+    /// An iteration is one offspring, or one ruin-and-recreate move when a large plan is improved by districts.
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u64).range(1..))]
     pub iterations: Option<u64>,
     /// Random seed; same seed and workers, same plan.

@@ -143,7 +143,8 @@ pub struct Progress {
 /// Run statistics.
 #[derive(Clone, Debug)]
 pub struct Stats {
-    /// Offspring generated (all workers).
+    /// Offspring generated (all workers), or ruin-and-recreate moves in
+    /// the district search.
     pub iterations: u64,
     /// Total time of `solve`.
     pub elapsed: Duration,
