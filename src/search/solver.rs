@@ -669,22 +669,38 @@ impl<'a> Solver<'a> {
     /// The first plan of the district search: every Path-Scanning rule (on
     /// candidate lists when `cand` is not empty), each split optimally
     /// (Ulusoy), the cheapest kept (first rule on ties).
+    ///
+    /// **Interruption.** Once one rule's plan is split and the deadline or
+    /// the stop flag has passed, the rules still constructing give up (they
+    /// check between tasks, see [`path_scan_listed`]) and the cheapest plan
+    /// among the finished rules is kept; before any plan exists the
+    /// construction goes on past the deadline, since a plan must be
+    /// returned. Which rules finish then depends on timing; without an
+    /// interruption every rule runs and the result is deterministic.
     fn first_plan(&self, ctx: &Ctx<'_>, cand: &[Vec<u32>]) -> Result<(i64, Routes), SolveError> {
         let m = ctx.m;
         let all: Vec<usize> = (0..m.n).collect();
+        let have_plan = AtomicBool::new(false);
+        let give_up = || have_plan.load(Ordering::Relaxed) && ctx.should_stop();
         let built: Vec<Result<(i64, Routes), usize>> = RULES
             .par_iter()
-            .map(|&rule| {
+            .filter_map(|&rule| {
                 let r = if cand.is_empty() {
                     path_scan::<ChaCha12Rng>(m, &all, rule, None, 0, false)
                 } else {
-                    path_scan_listed::<ChaCha12Rng>(m, cand, rule, None)
+                    path_scan_listed::<ChaCha12Rng>(m, cand, rule, None, &give_up)?
                 };
-                match split(m, &giant::of_routes(&r)) {
-                    Ok(s) => Ok((s.cost, s.routes)),
+                if give_up() {
+                    return None;
+                }
+                Some(match split(m, &giant::of_routes(&r)) {
+                    Ok(s) => {
+                        have_plan.store(true, Ordering::Relaxed);
+                        Ok((s.cost, s.routes))
+                    }
                     Err(SplitFailure::TooFewVehicles { fewest }) => Err(fewest),
                     Err(SplitFailure::Infeasible) => Err(usize::MAX),
-                }
+                })
             })
             .collect();
         let mut best: Option<(i64, Routes)> = None;
