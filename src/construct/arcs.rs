@@ -691,12 +691,11 @@ impl ArcMatrix {
     /// the ends of `u`'s two arcs, and into their starts on the reversed
     /// network, each stopped when `others`' arcs are settled) instead of a
     /// leg search per pair: the pairs of a candidate list may be far apart
-    /// by the directed network although near on the map.
+    /// by the directed network although near on the map. With turn rules on
+    /// demand likewise, on the street-to-street graph (the searches into
+    /// `u`'s arcs run on the reversed turns).
     pub fn task_gaps(&self, u: usize, others: &[u32]) -> Vec<i64> {
-        let Some(Legs::Junctions {
-            dist, start, end, ..
-        }) = &self.legs
-        else {
+        let Some(legs) = &self.legs else {
             return others.iter().map(|&v| self.task_gap(u, v as usize)).collect();
         };
         let arcs = |t: usize| {
@@ -709,15 +708,28 @@ impl ArcMatrix {
             // Out of `a` to the start of every arc of the others, and from
             // the end of every arc of the others into `a`.
             for into in [false, true] {
-                let (from, of) = if into { (start, end) } else { (end, start) };
-                let targets: Vec<usize> = others
-                    .iter()
-                    .flat_map(|&v| arcs(v as usize))
-                    .map(|b| of[b as usize] as usize)
-                    .collect();
-                let found = dist
-                    .legs_between(from[a as usize] as usize, &targets, into)
-                    .expect("on-demand distances");
+                let found = match legs {
+                    Legs::Junctions {
+                        dist, start, end, ..
+                    } => {
+                        let (from, of) = if into { (start, end) } else { (end, start) };
+                        let targets: Vec<usize> = others
+                            .iter()
+                            .flat_map(|&v| arcs(v as usize))
+                            .map(|b| of[b as usize] as usize)
+                            .collect();
+                        dist.legs_between(from[a as usize] as usize, &targets, into)
+                            .expect("on-demand distances")
+                    }
+                    Legs::Turns(td) => {
+                        let targets: Vec<usize> = others
+                            .iter()
+                            .flat_map(|&v| arcs(v as usize))
+                            .map(|b| b as usize)
+                            .collect();
+                        td.legs_between(a as usize, &targets, into)
+                    }
+                };
                 let mut next = found.into_iter();
                 for (i, &v) in others.iter().enumerate() {
                     for _ in arcs(v as usize) {

@@ -54,7 +54,7 @@ pub(crate) enum Until<'a> {
     Targets(&'a [bool], usize),
     /// This state is settled and at least this many states are.
     Reach(u32, usize),
-    /// Every state of this short list is settled (checked by a scan).
+    /// Every state of this list is settled.
     Among(&'a [u32]),
     /// As the inner rule, or as soon as a state of value above this one
     /// (least cost, then least time) would be settled.
@@ -151,13 +151,15 @@ fn settle_in<G: StateGraph + ?Sized>(
         u => (u, (Cost::MAX, Cost::MAX)),
     };
     let mut order = Vec::new();
+    // The states of `Until::Among`, sorted for lookups.
+    let mut among: Vec<u32> = Vec::new();
     let mut left = match until {
         Until::Targets(_, k) => k,
         Until::Among(list) => {
-            let mut v = list.to_vec();
-            v.sort_unstable();
-            v.dedup();
-            v.len()
+            among = list.to_vec();
+            among.sort_unstable();
+            among.dedup();
+            among.len()
         }
         _ => usize::MAX,
     };
@@ -188,8 +190,8 @@ fn settle_in<G: StateGraph + ?Sized>(
                     };
                 }
             }
-            Until::Among(list) => {
-                if list.contains(&s) {
+            Until::Among(_) => {
+                if among.binary_search(&s).is_ok() {
                     left -= 1;
                 }
                 if left == 0 {

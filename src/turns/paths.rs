@@ -171,6 +171,7 @@ impl StateGraph for Graph {
 }
 
 /// The turns of [`Graph`] reversed (for the legs into the yard).
+#[derive(Debug)]
 struct Reversed {
     start: Vec<u32>,
     /// (earlier arc, penalty + cost of the later arc, its time).
@@ -230,6 +231,8 @@ struct Lazy {
     entered: Csr,
     /// The longest deadhead cost of a street.
     longest: Cost,
+    /// The turns reversed (searches into a street).
+    rev: Reversed,
 }
 
 impl TurnDistances {
@@ -336,6 +339,7 @@ impl TurnDistances {
                 cache: RowCache::new(arcs),
                 entered,
                 longest,
+                rev,
             })),
         }
     }
@@ -453,6 +457,51 @@ impl TurnDistances {
             }
         }
         out.into_iter().map(|x| x.expect("every leg")).collect()
+    }
+
+    /// The legs between task arc `a` and each of the task arcs `bs` (not
+    /// the yard): from `a` to each, or from each to `a` when `into`; the
+    /// values of [`TurnDistances::leg`], by one search (on the reversed
+    /// turns when `into`) stopped when every one of `bs` is reached (not
+    /// cached). On demand only.
+    pub(crate) fn legs_between(&self, a: usize, bs: &[usize], into: bool) -> Vec<(Cost, Cost)> {
+        let z = self.lazy.as_ref().expect("on-demand turn distances");
+        let none = (UNREACHABLE, UNREACHABLE);
+        let value =
+            |found: &[(u32, Cost, Cost)], s: u32| match found.binary_search_by_key(&s, |x| x.0) {
+                Ok(i) => (found[i].1, found[i].2),
+                Err(_) => none,
+            };
+        if into {
+            // From "has driven b's street" to "has driven a's street":
+            // backwards from the latter; a's own deadhead then comes off.
+            let f = z.entry[a];
+            if f == u32::MAX {
+                return vec![none; bs.len()];
+            }
+            let states: Vec<u32> = bs.iter().map(|&b| z.arc[b]).collect();
+            let mut found = settle(&z.rev, &[(f, 0, 0)], Until::Among(&states)).order;
+            found.sort_unstable_by_key(|x| x.0);
+            states
+                .iter()
+                .map(|&e| z.graph.enter_value(f, value(&found, e)))
+                .collect()
+        } else {
+            let states: Vec<u32> = bs
+                .iter()
+                .map(|&b| z.entry[b])
+                .filter(|&f| f != u32::MAX)
+                .collect();
+            let init = z.graph.out_of(z.arc[a]);
+            let mut found = settle(&z.graph, &init, Until::Among(&states)).order;
+            found.sort_unstable_by_key(|x| x.0);
+            bs.iter()
+                .map(|&b| match z.entry[b] {
+                    u32::MAX => none,
+                    f => z.graph.enter_value(f, value(&found, f)),
+                })
+                .collect()
+        }
     }
 
     /// Legs from every task arc (or yard) of `rows` to every one of `cols`
