@@ -53,6 +53,7 @@ impl Labels {
 
     /// The labels after going on to `task` with the legs `legs[p][k]` from
     /// the previous task in direction `p` to `task` in direction `k`.
+    #[allow(clippy::needless_range_loop)]
     fn extend(&self, m: &ArcMatrix, legs: &Pair, task: usize) -> Labels {
         let mut l = Labels {
             cheap: [(INF, INF); 2],

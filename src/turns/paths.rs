@@ -482,9 +482,18 @@ impl TurnDistances {
             let states: Vec<u32> = bs.iter().map(|&b| z.arc[b]).collect();
             let mut found = settle(&z.rev, &[(f, 0, 0)], Until::Among(&states)).order;
             found.sort_unstable_by_key(|x| x.0);
+            // From a's own street back to it takes a loop, which the
+            // backward search (started there at zero) does not give.
             states
                 .iter()
-                .map(|&e| z.graph.enter_value(f, value(&found, e)))
+                .zip(bs)
+                .map(|(&e, &b)| {
+                    if e == f {
+                        self.leg(b, a)
+                    } else {
+                        z.graph.enter_value(f, value(&found, e))
+                    }
+                })
                 .collect()
         } else {
             let states: Vec<u32> = bs
