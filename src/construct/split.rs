@@ -151,6 +151,23 @@ type Pair = [[(i64, i64); 2]; 2];
 /// the earlier task ([`ArcMatrix::legs_from`]) instead of a search per leg
 /// asked again for every route of the split that holds the pair.
 fn between(m: &ArcMatrix, tour: &[usize]) -> Vec<Pair> {
+    if !m.is_on_demand() {
+        // Matrix lookups: no search to batch, nothing to allocate.
+        return tour
+            .windows(2)
+            .map(|w| {
+                let mut out = [[(BIG, BIG); 2]; 2];
+                for (p, row) in out.iter_mut().enumerate() {
+                    let a = (2 * w[0] + p) as u32;
+                    for (k, leg) in row.iter_mut().enumerate() {
+                        let b = (2 * w[1] + k) as u32;
+                        *leg = (m.d(a, b), m.t(a, b));
+                    }
+                }
+                out
+            })
+            .collect();
+    }
     let pair = |w: &[usize]| {
         let (u, v) = (w[0], w[1]);
         let mut out = [[(BIG, BIG); 2]; 2];
@@ -169,12 +186,8 @@ fn between(m: &ArcMatrix, tour: &[usize]) -> Vec<Pair> {
         }
         out
     };
-    if m.is_on_demand() {
-        use rayon::prelude::*;
-        tour.par_windows(2).map(pair).collect()
-    } else {
-        tour.windows(2).map(pair).collect()
-    }
+    use rayon::prelude::*;
+    tour.par_windows(2).map(pair).collect()
 }
 
 /// [`orient`] with the legs between consecutive tasks given (`pairs[x]`

@@ -345,8 +345,10 @@ impl Distances {
 
     /// The legs between `u` and each of `targets` (junctions, key or not):
     /// from `u` to each target, or from each target to `u` when `into`;
-    /// one search from `u` (on the reversed network when `into`), stopped
-    /// as soon as every target is settled. The values are those of
+    /// one search from `u` (on the reversed network when `into`) that does
+    /// not pass through the yard, stopped as soon as every target is settled
+    /// or no way left can beat the way through the yard (see
+    /// `legs_via_yard`). The values are those of
     /// [`Distances::leg`] (the least cost, then least time, over the same
     /// paths). `None` unless on demand (the matrices answer directly).
     pub(crate) fn legs_between(

@@ -3,7 +3,7 @@
 //!
 //! A search graph ([`StateGraph`]) is either the junction graph (plain
 //! deadheads) or the street-to-street graph of turn rules. Questions come in
-//! two kinds:
+//! four kinds:
 //! - one leg `u → v` ([`RowCache::leg`]): a lexicographic Dijkstra search
 //!   from `u` settles states in order until `v` is settled and at least a
 //!   minimum number of states are; the settled states are kept as the *row*
@@ -13,7 +13,12 @@
 //! - a block of legs among a set of states ([`settle`] with targets): one
 //!   search per row state, stopped as soon as every target is settled. A
 //!   district's targets are near each other, so each search settles a small
-//!   part of the network.
+//!   part of the network;
+//! - the nearest accepted target ([`nearest`]): one search that stops as
+//!   soon as the least accepted leg is known exactly (Path-Scanning's
+//!   nearest unserved street when a route's candidates are used up);
+//! - a few legs from one state ([`Until::Among`]): one search stopped when
+//!   all are settled (the legs between consecutive streets of a split).
 //!
 //! Values are exact (least cost, ties by least time, the same values as the
 //! full matrices), so results never depend on what the cache holds. The

@@ -16,6 +16,15 @@
 //! iteration limit the result is always the same; the only time-dependent
 //! decision is when to stop (time limit or external stop flag).
 //!
+//! **Stopping during construction.** A plan is always returned, so the
+//! first plan is built even past the time limit or a raised stop flag. Above
+//! [`DISTRICTS_FROM`] streets the first plan is the cheapest of five
+//! Path-Scanning rules (each split optimally); once one rule's plan exists
+//! and the limit or the flag has passed, the rules still running give up
+//! (they check between streets) and the cheapest finished plan is kept, so
+//! the solver returns about as soon as the first rule is done. The plan
+//! then depends on which rules finished in time.
+//!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
 //! use arcwright::Solver;
@@ -308,7 +317,10 @@ impl<'a> Solver<'a> {
         self
     }
 
-    /// Stop after this much time (checked between offspring).
+    /// Stop after this much time (checked between offspring). A first
+    /// plan is built even when the limit passes during its construction;
+    /// above [`DISTRICTS_FROM`] streets the construction then stops at its
+    /// first finished plan (see the module docs).
     pub fn time_limit(mut self, t: Duration) -> Self {
         self.time_limit = Some(t);
         self
@@ -333,7 +345,8 @@ impl<'a> Solver<'a> {
     }
 
     /// External stop: when the flag becomes true the search ends soon and
-    /// returns the best plan so far.
+    /// returns the best plan so far (the first plan, when raised during the
+    /// construction, as soon as one exists; see the module docs).
     pub fn stop_flag(mut self, flag: Arc<AtomicBool>) -> Self {
         self.stop = Some(flag);
         self
