@@ -237,13 +237,15 @@ fn main() {
         })
         .solve()
         .unwrap_or_else(|e| panic!("{e}"));
+    let returned = t0.elapsed();
     let ok = check_plan(&inst, &sol.plan).is_ok();
     let total = t0.elapsed();
     let log = log.into_inner().expect("log");
     let first = log.iter().find(|x| x.1.is_some()).map(|x| x.0);
     println!(
-        "first feasible plan at {}",
-        first.map_or("-".into(), |t| format!("{:.1} s", t.as_secs_f64()))
+        "first feasible plan at {}; solver returned at {:.1} s",
+        first.map_or("-".into(), |t| format!("{:.1} s", t.as_secs_f64())),
+        returned.as_secs_f64()
     );
     for &mark in &o.marks {
         let best = log

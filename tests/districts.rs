@@ -201,3 +201,60 @@ fn on_demand_distances_and_turn_rules_in_districts() {
     // Banned U-turns can only make the plan dearer than free turns allow.
     assert!(x.cost >= a.lower_bound.value);
 }
+
+/// The cost of the first plan a run reports (its first `Districts` event)
+/// and the run's solution.
+fn first_plan_of(solver: Solver<'_>) -> (Cost, arcwright::Solution) {
+    let first: Mutex<Option<Cost>> = Mutex::new(None);
+    let sol = solver
+        .on_progress(|p: &Progress| {
+            let mut f = first.lock().unwrap();
+            if p.phase == Phase::Districts && f.is_none() {
+                *f = p.best_cost;
+            }
+        })
+        .solve()
+        .expect("plan");
+    let f = first
+        .into_inner()
+        .unwrap()
+        .expect("a first plan was reported");
+    (f, sol)
+}
+
+/// Above 2,048 streets the first plan comes from Path-Scanning on candidate
+/// lists (five rules) and the split. A deadline already passed, or a stop
+/// flag already set, stops the rules still running once one rule's plan
+/// exists: the plan returned passes the checker and its first plan costs no
+/// less than the best of the five rules (run uninterrupted); with turn
+/// rules too (turn-aware distances on demand at this size).
+#[test]
+fn an_interrupted_construction_still_returns_a_checked_plan() {
+    let plain = town(&TownSpec::new(3, 21)).expect("town");
+    assert!(
+        plain.tasks().len() > 2048,
+        "{} streets",
+        plain.tasks().len()
+    );
+    let turned = plain
+        .clone()
+        .with_turn_rules(Some(arcwright::turns::TurnRules::default()))
+        .expect("turn rules");
+    for inst in [plain, turned] {
+        let (all_rules, _) = first_plan_of(Solver::new(&inst).seed(1).workers(2).max_iterations(1));
+        let late = Solver::new(&inst)
+            .seed(1)
+            .workers(2)
+            .time_limit(std::time::Duration::ZERO);
+        let stopped = Solver::new(&inst)
+            .seed(1)
+            .workers(2)
+            .stop_flag(Arc::new(AtomicBool::new(true)));
+        for solver in [late, stopped] {
+            let (first, sol) = first_plan_of(solver);
+            assert!(first >= all_rules, "{first} < {all_rules}");
+            assert_eq!(check_plan(&inst, &sol.plan), Ok(()));
+            assert!(sol.cost <= first && sol.cost >= sol.lower_bound.value);
+        }
+    }
+}

@@ -40,6 +40,7 @@
 use rayon::prelude::*;
 
 use crate::model::{Cost, Dir, Instance};
+use crate::paths::on_demand::Csr;
 use crate::paths::{Distances, UNREACHABLE};
 use crate::plan::Visit;
 use crate::turns::TurnDistances;
@@ -72,6 +73,8 @@ enum Legs {
         dist: Box<Distances>,
         start: Vec<u32>,
         end: Vec<u32>,
+        /// The task arcs starting at each junction.
+        starting: Csr,
     },
     /// Turn-aware deadheads between task arcs (the yard is `2n`).
     Turns(TurnDistances),
@@ -194,10 +197,15 @@ impl ArcMatrix {
         }
         let timed = inst.fleet().shift_limit.is_some();
         if dist.is_on_demand() {
+            let starting = Csr::of(
+                inst.network().junctions.len(),
+                (0..2 * n).map(|a| (start[a], a as u32)),
+            );
             let legs = Legs::Junctions {
                 dist: Box::new(dist.clone()),
                 start: start.iter().map(|&v| v as u32).collect(),
                 end: end.iter().map(|&v| v as u32).collect(),
+                starting,
             };
             let per_arc = (serve_cost, serve_time, demand, allowed);
             return Ok(Self::answering(inst, per_arc, legs));
@@ -381,7 +389,9 @@ impl ArcMatrix {
     #[inline(never)]
     fn leg(&self, a: u32, b: u32) -> (i64, i64) {
         let (c, t) = match self.legs.as_ref().expect("on-demand legs") {
-            Legs::Junctions { dist, start, end } => {
+            Legs::Junctions {
+                dist, start, end, ..
+            } => {
                 dist.leg(end[a as usize] as usize, start[b as usize] as usize)
             }
             Legs::Turns(td) => {
@@ -408,7 +418,9 @@ impl ArcMatrix {
         };
         let pick = |(c, t): (i64, i64)| if self.timed() { (c, t) } else { (c, c) };
         match legs {
-            Legs::Junctions { dist, start, end } => {
+            Legs::Junctions {
+                dist, start, end, ..
+            } => {
                 let row = dist.row(end[a as usize] as usize);
                 start
                     .iter()
@@ -425,6 +437,75 @@ impl ArcMatrix {
                     .collect()
             }
         }
+    }
+
+    /// The nearest task arcs from the end of arc `a` (not the depot) among
+    /// those `accept(arc, cost, time)` takes, with `(cost, time)` read as
+    /// [`ArcMatrix::d`] and [`ArcMatrix::t`] would (legs above the cap are
+    /// missing, never accepted): every accepted arc of least cost, in no
+    /// particular order. On demand one search that stops as soon as the
+    /// least accepted leg is known exactly (a full search at worst); else a
+    /// scan of the matrix row.
+    pub fn nearest_arcs(
+        &self,
+        a: u32,
+        accept: &mut dyn FnMut(u32, i64, i64) -> bool,
+    ) -> Vec<u32> {
+        let timed = self.timed();
+        let mut take = |b: u32, c: Cost, t: Cost| {
+            let (c, t) = self.capped(c, t);
+            c < BIG && accept(b, c, if timed { t } else { c })
+        };
+        let found = match &self.legs {
+            None => {
+                let mut least = i64::MAX;
+                let mut out = Vec::new();
+                for b in 0..2 * self.n as u32 {
+                    let (c, t) = (self.d(a, b), self.t(a, b));
+                    if c <= least && c < BIG && accept(b, c, t) {
+                        if c < least {
+                            least = c;
+                            out.clear();
+                        }
+                        out.push(b);
+                    }
+                }
+                return out;
+            }
+            Some(Legs::Junctions { dist, end, starting, .. }) => {
+                dist.nearest_from(end[a as usize] as usize, starting, self.cap, &mut take)
+            }
+            Some(Legs::Turns(td)) => td.nearest_from(a as usize, self.cap, &mut take),
+        };
+        found.into_iter().map(|x| x.0).collect()
+    }
+
+    /// The legs `(d(a, b), t(a, b))` from arc `a` to each of a few arcs
+    /// `bs`, the values [`ArcMatrix::d`] and [`ArcMatrix::t`] give. On
+    /// demand the legs not cached are found by one search from `a` stopped
+    /// when all of them are reached (not cached): far legs cost one search
+    /// for all of `bs` instead of one each.
+    pub fn legs_from(&self, a: u32, bs: &[u32]) -> Vec<(i64, i64)> {
+        let Some(legs) = &self.legs else {
+            return bs.iter().map(|&b| (self.d(a, b), self.t(a, b))).collect();
+        };
+        let raw = match legs {
+            Legs::Junctions { dist, start, end, .. } => {
+                let vs: Vec<usize> = bs.iter().map(|&b| start[b as usize] as usize).collect();
+                dist.legs_to(end[a as usize] as usize, &vs)
+            }
+            Legs::Turns(td) => {
+                let key = |x: u32| (x as usize).min(2 * self.n);
+                let keys: Vec<usize> = bs.iter().map(|&b| key(b)).collect();
+                td.legs_to(key(a), &keys)
+            }
+        };
+        raw.into_iter()
+            .map(|(c, t)| {
+                let (c, t) = self.capped(c, t);
+                (c, if self.timed() { t } else { c })
+            })
+            .collect()
     }
 
     /// Whether the legs are answered on demand.
@@ -581,7 +662,9 @@ impl ArcMatrix {
     /// one bounded search per row (see [`crate::paths::on_demand`]).
     fn block(&self, legs: &Legs, arcs: &[u32]) -> (Vec<i32>, Option<Vec<i32>>) {
         let found = match legs {
-            Legs::Junctions { dist, start, end } => {
+            Legs::Junctions {
+                dist, start, end, ..
+            } => {
                 let rows: Vec<usize> = arcs.iter().map(|&a| end[a as usize] as usize).collect();
                 let cols: Vec<usize> = arcs.iter().map(|&a| start[a as usize] as usize).collect();
                 dist.block(&rows, &cols)
@@ -608,9 +691,11 @@ impl ArcMatrix {
     /// the ends of `u`'s two arcs, and into their starts on the reversed
     /// network, each stopped when `others`' arcs are settled) instead of a
     /// leg search per pair: the pairs of a candidate list may be far apart
-    /// by the directed network although near on the map.
+    /// by the directed network although near on the map. With turn rules on
+    /// demand likewise, on the street-to-street graph (the searches into
+    /// `u`'s arcs run on the reversed turns).
     pub fn task_gaps(&self, u: usize, others: &[u32]) -> Vec<i64> {
-        let Some(Legs::Junctions { dist, start, end }) = &self.legs else {
+        let Some(legs) = &self.legs else {
             return others.iter().map(|&v| self.task_gap(u, v as usize)).collect();
         };
         let arcs = |t: usize| {
@@ -623,15 +708,28 @@ impl ArcMatrix {
             // Out of `a` to the start of every arc of the others, and from
             // the end of every arc of the others into `a`.
             for into in [false, true] {
-                let (from, of) = if into { (start, end) } else { (end, start) };
-                let targets: Vec<usize> = others
-                    .iter()
-                    .flat_map(|&v| arcs(v as usize))
-                    .map(|b| of[b as usize] as usize)
-                    .collect();
-                let found = dist
-                    .legs_between(from[a as usize] as usize, &targets, into)
-                    .expect("on-demand distances");
+                let found = match legs {
+                    Legs::Junctions {
+                        dist, start, end, ..
+                    } => {
+                        let (from, of) = if into { (start, end) } else { (end, start) };
+                        let targets: Vec<usize> = others
+                            .iter()
+                            .flat_map(|&v| arcs(v as usize))
+                            .map(|b| of[b as usize] as usize)
+                            .collect();
+                        dist.legs_between(from[a as usize] as usize, &targets, into)
+                            .expect("on-demand distances")
+                    }
+                    Legs::Turns(td) => {
+                        let targets: Vec<usize> = others
+                            .iter()
+                            .flat_map(|&v| arcs(v as usize))
+                            .map(|b| b as usize)
+                            .collect();
+                        td.legs_between(a as usize, &targets, into)
+                    }
+                };
                 let mut next = found.into_iter();
                 for (i, &v) in others.iter().enumerate() {
                     for _ in arcs(v as usize) {

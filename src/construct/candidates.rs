@@ -64,7 +64,8 @@ impl Near {
     }
 
     /// Up to `want` tasks other than `t` near task `t` (junctions in order
-    /// of their undirected distance from the task's ends).
+    /// of their undirected distance from the task's ends; at the last
+    /// junction, its streets in index order).
     fn pool(&self, inst: &Instance, t: usize, want: usize, seen: &mut [u32]) -> Vec<u32> {
         let task = &inst.tasks()[t];
         let mut out: Vec<u32> = Vec::with_capacity(want);
@@ -79,9 +80,12 @@ impl Near {
                 continue;
             }
             seen[vi] = stamp;
+            // At most `want`: a junction touched by very many streets (a
+            // yard shared by many districts) would otherwise fill the pool
+            // with streets whose gaps take long searches to find.
             for p in self.tstart[vi]..self.tstart[vi + 1] {
                 let u = self.tasks[p as usize];
-                if u as usize != t && !out.contains(&u) {
+                if out.len() < want && u as usize != t && !out.contains(&u) {
                     out.push(u);
                 }
             }
@@ -203,7 +207,8 @@ mod tests {
         let (inst, m) = setup();
         let cand = candidate_lists(&inst, &m, 16);
         for rule in RULES {
-            let routes = path_scan_listed::<ChaCha12Rng>(&m, &cand, rule, None);
+            let routes = path_scan_listed::<ChaCha12Rng>(&m, &cand, rule, None, &|| false)
+                .expect("never gives up");
             let mut seen = vec![0; m.n];
             for r in &routes {
                 assert!(m.route_feasible(r), "{rule:?}");

@@ -12,3 +12,6 @@ pub mod candidates;
 pub mod giant;
 pub mod path_scanning;
 pub mod split;
+
+#[cfg(test)]
+mod on_demand_tests;

@@ -8,6 +8,8 @@
 //! one of the five classic rules ([`Rule`]) or at random.
 //! Every route built is feasible by construction.
 
+use std::collections::BTreeMap;
+
 use rand::Rng;
 
 use super::arcs::{ArcMatrix, BIG};
@@ -171,25 +173,43 @@ pub fn path_scan<R: Rng>(
 /// Path-Scanning over all tasks with candidate lists (`cand[t]`: tasks near
 /// task `t`, as from `candidates::candidate_lists`): from the end of the
 /// route so far, only the unserved candidates of the last task served are
-/// examined; the whole set of unserved tasks is scanned only when a route
+/// examined; the whole set of unserved tasks is looked at only when a route
 /// starts at the depot or no candidate fits. Ties are broken as in
 /// [`path_scan`] (among the candidates examined). Every route is feasible.
 ///
-/// **Cost.** `O(n c + R n)` for `n` tasks, lists of `c` and `R` full scans
-/// (route starts and exhausted neighbourhoods), instead of `O(n^2)`: a few
-/// seconds for 20,000 streets. The plans differ from [`path_scan`]'s, which
-/// the solver keeps for instances up to `LISTED_FROM` tasks.
+/// When no candidate fits and the legs are answered on demand, the nearest
+/// feasible unserved task is found by one search from the route's end that
+/// stops as soon as it is known ([`ArcMatrix::nearest_arcs`]), not by a
+/// full search of the network; the ties are the same arcs, in the same
+/// order, as a scan of all unserved tasks would give. The search is skipped
+/// when no unserved task fits the truck's remaining capacity.
+///
+/// `give_up` is asked between tasks; when it answers true the construction
+/// stops and returns `None` (used to stop the remaining rules once a plan
+/// exists and the deadline has passed).
+///
+/// **Cost.** `O(n c + R n)` for `n` tasks, lists of `c` and `R` route starts
+/// and exhausted neighbourhoods, plus one bounded search per exhausted
+/// neighbourhood, instead of `O(n^2)`: a few seconds for 20,000 streets.
+/// The plans differ from [`path_scan`]'s, which the solver keeps for
+/// instances up to `LISTED_FROM` tasks.
 pub fn path_scan_listed<R: Rng>(
     m: &ArcMatrix,
     cand: &[Vec<u32>],
     rule: Rule,
     mut rng: Option<&mut R>,
-) -> Vec<Vec<u32>> {
+    give_up: &dyn Fn() -> bool,
+) -> Option<Vec<Vec<u32>>> {
     let n = m.n;
     // Unserved tasks with O(1) removal.
     let mut left: Vec<usize> = (0..n).collect();
     let mut pos: Vec<usize> = (0..n).collect();
     let mut served = vec![false; n];
+    // Demands of the unserved tasks (value -> count), for the capacity test.
+    let mut demands: BTreeMap<i64, usize> = BTreeMap::new();
+    for t in 0..n {
+        *demands.entry(m.demand[2 * t]).or_default() += 1;
+    }
     let mut routes = Vec::new();
     let mut ties: Vec<u32> = Vec::new();
     while !left.is_empty() {
@@ -197,6 +217,9 @@ pub fn path_scan_listed<R: Rng>(
         let (mut load, mut time) = (0i64, 0i64);
         let mut at = m.depot;
         loop {
+            if give_up() {
+                return None;
+            }
             ties.clear();
             if at != m.depot {
                 let near = cand[ArcMatrix::task(at)].iter().map(|&t| t as usize);
@@ -204,9 +227,23 @@ pub fn path_scan_listed<R: Rng>(
             }
             if ties.is_empty() {
                 if m.is_on_demand() && at != m.depot {
-                    // One full search instead of a leg asked per unserved task.
-                    let row = m.row_from(at);
-                    nearest_by(m, left.iter().copied(), |a| row[a as usize], load, time, &mut ties);
+                    let fits = demands
+                        .first_key_value()
+                        .is_some_and(|(&d, _)| load + d <= m.capacity);
+                    if fits {
+                        let mut ok = |a: u32, _d: i64, lt: i64| {
+                            let t = ArcMatrix::task(a);
+                            !served[t]
+                                && m.allowed[a as usize]
+                                && load + m.demand[a as usize] <= m.capacity
+                                && m.shift.is_none_or(|s| {
+                                    time + lt + m.serve_time[a as usize] + m.t(a, m.depot) <= s
+                                })
+                        };
+                        ties = m.nearest_arcs(at, &mut ok);
+                        // The order of a scan of `left`.
+                        ties.sort_unstable_by_key(|&a| (pos[ArcMatrix::task(a)], a));
+                    }
                 } else {
                     nearest(m, left.iter().copied(), at, load, time, &mut ties);
                 }
@@ -221,6 +258,13 @@ pub fn path_scan_listed<R: Rng>(
             route.push(pick);
             let task = ArcMatrix::task(pick);
             served[task] = true;
+            let d = m.demand[2 * task];
+            match demands.get_mut(&d) {
+                Some(c) if *c > 1 => *c -= 1,
+                _ => {
+                    demands.remove(&d);
+                }
+            }
             let p = pos[task];
             let last = *left.last().expect("task left");
             left[p] = last;
@@ -232,7 +276,7 @@ pub fn path_scan_listed<R: Rng>(
         }
         routes.push(route);
     }
-    routes
+    Some(routes)
 }
 
 /// The nearest feasible arcs (all ties) from arc `at` among `tasks`.

@@ -51,7 +51,10 @@ impl Labels {
         l
     }
 
-    fn extend(&self, m: &ArcMatrix, prev: usize, task: usize) -> Labels {
+    /// The labels after going on to `task` with the legs `legs[p][k]` from
+    /// the previous task in direction `p` to `task` in direction `k`.
+    #[allow(clippy::needless_range_loop)]
+    fn extend(&self, m: &ArcMatrix, legs: &Pair, task: usize) -> Labels {
         let mut l = Labels {
             cheap: [(INF, INF); 2],
             quick: [(INF, INF); 2],
@@ -63,12 +66,12 @@ impl Labels {
                 continue;
             }
             for p in 0..2 {
-                let a = (2 * prev + p) as u32;
+                let (ld, lt) = legs[p][k];
                 let (c0, t0) = self.cheap[p];
                 if c0 < INF {
-                    let c = c0 + m.d(a, b) + m.serve_cost[b as usize];
+                    let c = c0 + ld + m.serve_cost[b as usize];
                     let t = if timed {
-                        t0 + m.t(a, b) + m.serve_time[b as usize]
+                        t0 + lt + m.serve_time[b as usize]
                     } else {
                         c
                     };
@@ -79,8 +82,8 @@ impl Labels {
                 if timed {
                     let (c0, t0) = self.quick[p];
                     if t0 < INF {
-                        let c = c0 + m.d(a, b) + m.serve_cost[b as usize];
-                        let t = t0 + m.t(a, b) + m.serve_time[b as usize];
+                        let c = c0 + ld + m.serve_cost[b as usize];
+                        let t = t0 + lt + m.serve_time[b as usize];
                         if (t, c) < (l.quick[k].1, l.quick[k].0) {
                             l.quick[k] = (c, t);
                         }
@@ -131,8 +134,66 @@ impl Labels {
 /// Best directions for a fixed task order served as one route; returns the
 /// arcs, or `None` if no direction choice makes it feasible under the rule
 /// of the module docs (capacity is not checked here).
-#[allow(clippy::needless_range_loop)]
 pub fn orient(m: &ArcMatrix, tasks: &[usize], quick: bool) -> Vec<u32> {
+    let pairs = between(m, tasks);
+    orient_with(m, tasks, &pairs, quick)
+}
+
+/// The legs between consecutive tasks of an order: `[p][k]` is `(d, t)`
+/// from the previous task in direction `p` to the next in direction `k`
+/// (`BIG` where a direction is not allowed).
+type Pair = [[(i64, i64); 2]; 2];
+
+/// The [`Pair`] legs between `tour[j]` and `tour[j + 1]` for every `j`:
+/// the values of [`ArcMatrix::d`] and [`ArcMatrix::t`], asked once per
+/// pair. On demand the pairs are asked in parallel (rayon; the values do
+/// not depend on the threads), each by at most one search per direction of
+/// the earlier task ([`ArcMatrix::legs_from`]) instead of a search per leg
+/// asked again for every route of the split that holds the pair.
+fn between(m: &ArcMatrix, tour: &[usize]) -> Vec<Pair> {
+    if !m.is_on_demand() {
+        // Matrix lookups: no search to batch, nothing to allocate.
+        return tour
+            .windows(2)
+            .map(|w| {
+                let mut out = [[(BIG, BIG); 2]; 2];
+                for (p, row) in out.iter_mut().enumerate() {
+                    let a = (2 * w[0] + p) as u32;
+                    for (k, leg) in row.iter_mut().enumerate() {
+                        let b = (2 * w[1] + k) as u32;
+                        *leg = (m.d(a, b), m.t(a, b));
+                    }
+                }
+                out
+            })
+            .collect();
+    }
+    let pair = |w: &[usize]| {
+        let (u, v) = (w[0], w[1]);
+        let mut out = [[(BIG, BIG); 2]; 2];
+        let bs: Vec<u32> = (0..2)
+            .map(|k| (2 * v + k) as u32)
+            .filter(|&b| m.allowed[b as usize])
+            .collect();
+        for (p, row) in out.iter_mut().enumerate() {
+            let a = (2 * u + p) as u32;
+            if !m.allowed[a as usize] || bs.is_empty() {
+                continue;
+            }
+            for (&b, leg) in bs.iter().zip(m.legs_from(a, &bs)) {
+                row[(b & 1) as usize] = leg;
+            }
+        }
+        out
+    };
+    use rayon::prelude::*;
+    tour.par_windows(2).map(pair).collect()
+}
+
+/// [`orient`] with the legs between consecutive tasks given (`pairs[x]`
+/// between `tasks[x]` and `tasks[x + 1]`).
+#[allow(clippy::needless_range_loop)]
+fn orient_with(m: &ArcMatrix, tasks: &[usize], pairs: &[Pair], quick: bool) -> Vec<u32> {
     // Forward DP storing back-pointers, in the chosen criterion.
     let n = tasks.len();
     let key = |c: i64, t: i64| if quick { (t, c) } else { (c, t) };
@@ -158,9 +219,9 @@ pub fn orient(m: &ArcMatrix, tasks: &[usize], quick: bool) -> Vec<u32> {
                 if c0 >= INF {
                     continue;
                 }
-                let a = (2 * tasks[i - 1] + p) as u32;
-                let c = c0 + m.d(a, b) + m.serve_cost[b as usize];
-                let t = t0 + m.t(a, b) + m.serve_time[b as usize];
+                let (ld, lt) = pairs[i - 1][p][k];
+                let c = c0 + ld + m.serve_cost[b as usize];
+                let t = t0 + lt + m.serve_time[b as usize];
                 let (oc, ot) = lab[i][k];
                 if key(c, t) < key(oc, ot) {
                     lab[i][k] = (c, t);
@@ -190,6 +251,22 @@ pub fn orient(m: &ArcMatrix, tasks: &[usize], quick: bool) -> Vec<u32> {
         k = back[i][k] as usize;
     }
     out
+}
+
+/// The cost of the route `arcs` (as [`ArcMatrix::route_eval`]) with the
+/// legs between its consecutive tasks from `pairs`.
+fn route_cost(m: &ArcMatrix, arcs: &[u32], pairs: &[Pair]) -> i64 {
+    let Some((&first, &last)) = arcs.first().zip(arcs.last()) else {
+        return 0;
+    };
+    let mut c = m.d(m.depot, first) + m.d(last, m.depot);
+    for (x, &a) in arcs.iter().enumerate() {
+        c += m.serve_cost[a as usize];
+        if x > 0 {
+            c += pairs[x - 1][(arcs[x - 1] & 1) as usize][(a & 1) as usize].0;
+        }
+    }
+    c
 }
 
 /// Why a giant tour could not be split.
@@ -241,7 +318,8 @@ pub fn split_bounded(
             routes: Vec::new(),
         });
     }
-    let edges = auxiliary_edges(m, tour);
+    let pairs = between(m, tour);
+    let edges = auxiliary_edges(m, tour, &pairs);
     // Unbounded shortest path, with route counts as tie-break (fewest routes).
     let mut v = vec![(INF, usize::MAX); n + 1];
     let mut pred = vec![(usize::MAX, false); n + 1];
@@ -280,8 +358,9 @@ pub fn split_bounded(
     let routes: Vec<Vec<u32>> = cuts
         .into_iter()
         .map(|(i, j, q)| {
-            let r = orient(m, &tour[i..j], q);
-            cost += m.route_eval(&r).0;
+            let p = &pairs[i..j.saturating_sub(1).max(i)];
+            let r = orient_with(m, &tour[i..j], p, q);
+            cost += route_cost(m, &r, p);
             r
         })
         .collect();
@@ -293,7 +372,7 @@ pub fn split_bounded(
 /// choice (quick label or not).
 type AuxEdges = Vec<Vec<(u32, i64, bool)>>;
 
-fn auxiliary_edges(m: &ArcMatrix, tour: &[usize]) -> AuxEdges {
+fn auxiliary_edges(m: &ArcMatrix, tour: &[usize], pairs: &[Pair]) -> AuxEdges {
     let n = tour.len();
     let mut edges: AuxEdges = vec![Vec::new(); n];
     for i in 0..n {
@@ -301,7 +380,7 @@ fn auxiliary_edges(m: &ArcMatrix, tour: &[usize]) -> AuxEdges {
         let mut lab = Labels::start(m, tour[i]);
         for j in i..n {
             if j > i {
-                lab = lab.extend(m, tour[j - 1], tour[j]);
+                lab = lab.extend(m, &pairs[j - 1], tour[j]);
             }
             load += m.demand[2 * tour[j]];
             if load > m.capacity {

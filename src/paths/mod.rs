@@ -30,7 +30,7 @@ pub(crate) mod on_demand;
 
 pub use on_demand::CACHE_ENTRIES;
 
-use on_demand::{RowCache, Settled, StateGraph, Until};
+use on_demand::{Avoiding, RowCache, Settled, StateGraph, Until};
 
 use crate::model::{Cost, Instance, Network};
 
@@ -345,8 +345,10 @@ impl Distances {
 
     /// The legs between `u` and each of `targets` (junctions, key or not):
     /// from `u` to each target, or from each target to `u` when `into`;
-    /// one search from `u` (on the reversed network when `into`), stopped
-    /// as soon as every target is settled. The values are those of
+    /// one search from `u` (on the reversed network when `into`) that does
+    /// not pass through the yard, stopped as soon as every target is settled
+    /// or no way left can beat the way through the yard (see
+    /// `legs_via_yard`). The values are those of
     /// [`Distances::leg`] (the least cost, then least time, over the same
     /// paths). `None` unless on demand (the matrices answer directly).
     pub(crate) fn legs_between(
@@ -356,27 +358,127 @@ impl Distances {
         into: bool,
     ) -> Option<Vec<(Cost, Cost)>> {
         let z = self.lazy.as_ref()?;
+        let ts: Vec<u32> = targets.iter().map(|&t| t as u32).collect();
+        Some(self.legs_via_yard(z, u, &ts, into))
+    }
+
+    /// The legs between `u` and each of `targets` (from `u`, or into `u`
+    /// when `into`), exact: the least of the way through the yard (the
+    /// yard's row and column, lexicographic sums are exact since a least
+    /// way through the yard is a least way to it followed by a least way
+    /// from it) and of one search from `u` that does not pass through the
+    /// yard, stopped when every target is settled or the search passes the
+    /// longest way through the yard. Where the yard joins otherwise
+    /// separate parts of the network (glued copies), the search stays in
+    /// `u`'s part instead of settling every part around the yard.
+    fn legs_via_yard(&self, z: &Lazy, u: usize, targets: &[u32], into: bool) -> Vec<(Cost, Cost)> {
+        let add = |a: (Cost, Cost), b: (Cost, Cost)| {
+            if a.0 >= UNREACHABLE || b.0 >= UNREACHABLE {
+                (UNREACHABLE, UNREACHABLE)
+            } else {
+                (a.0 + b.0, a.1 + b.1)
+            }
+        };
+        let via = |v: usize| {
+            if into {
+                add(z.to_depot[v], z.from_depot[u])
+            } else {
+                add(z.to_depot[u], z.from_depot[v])
+            }
+        };
+        if u == z.depot {
+            let side = if into { &z.to_depot } else { &z.from_depot };
+            return targets.iter().map(|&v| side[v as usize]).collect();
+        }
         let mut marks = vec![false; self.key_of.len()];
         let mut k = 0;
+        let mut cap = (0, 0);
         for &t in targets {
-            k += usize::from(!marks[t]);
-            marks[t] = true;
+            k += usize::from(!marks[t as usize]);
+            marks[t as usize] = true;
+            let v = via(t as usize);
+            cap = if v.0 >= UNREACHABLE {
+                (Cost::MAX, Cost::MAX)
+            } else {
+                cap.max(v)
+            };
         }
         let init = [(u as u32, 0, 0)];
-        let graph = if into { &z.rev } else { &self.adj };
-        let mut found = on_demand::settle(graph, &init, Until::Targets(&marks, k)).order;
+        let graph: &Adjacency = if into { &z.rev } else { &self.adj };
+        let avoid = Avoiding {
+            g: graph,
+            skip: z.depot as u32,
+        };
+        let until = Until::Below(Box::new(Until::Targets(&marks, k)), cap);
+        let mut found = on_demand::settle(&avoid, &init, until).order;
         found.sort_unstable_by_key(|x| x.0);
-        Some(
-            targets
-                .iter()
-                .map(
-                    |&t| match found.binary_search_by_key(&(t as u32), |x| x.0) {
-                        Ok(i) => (found[i].1, found[i].2),
-                        Err(_) => (UNREACHABLE, UNREACHABLE),
-                    },
-                )
-                .collect(),
+        targets
+            .iter()
+            .map(|&t| {
+                let direct = match found.binary_search_by_key(&t, |x| x.0) {
+                    Ok(i) => (found[i].1, found[i].2),
+                    Err(_) => (UNREACHABLE, UNREACHABLE),
+                };
+                direct.min(via(t as usize))
+            })
+            .collect()
+    }
+
+    /// The nearest targets from junction `u` (on demand only): targets are
+    /// the items of `at` at each junction, `accept(target, cost, time)`
+    /// filters them by their exact leg; returns every accepted target of
+    /// least leg cost with its leg, searching only as far as needed (see
+    /// [`on_demand::nearest`]); nothing when none within `limit` qualifies.
+    pub(crate) fn nearest_from(
+        &self,
+        u: usize,
+        at: &on_demand::Csr,
+        limit: Cost,
+        accept: &mut dyn FnMut(u32, Cost, Cost) -> bool,
+    ) -> Vec<(u32, Cost, Cost)> {
+        on_demand::nearest(
+            &self.adj,
+            &[(u as u32, 0, 0)],
+            at,
+            &|_| (0, 0),
+            limit,
+            accept,
         )
+    }
+
+    /// The legs from `u` to each of a few key junctions `vs`, the values of
+    /// [`Distances::leg`]: from the cache or matrices when they hold them,
+    /// else by one search from `u` stopped when every one of `vs` is
+    /// settled (not cached), instead of one search per leg.
+    pub(crate) fn legs_to(&self, u: usize, vs: &[usize]) -> Vec<(Cost, Cost)> {
+        let Some(z) = &self.lazy else {
+            return vs.iter().map(|&v| self.leg(u, v)).collect();
+        };
+        let quick = |v: usize| {
+            if u == z.depot {
+                Some(z.from_depot[v])
+            } else if v == z.depot {
+                Some(z.to_depot[u])
+            } else if u == v {
+                Some((0, 0))
+            } else {
+                z.cache.peek(u, v as u32)
+            }
+        };
+        let mut out: Vec<Option<(Cost, Cost)>> = vs.iter().map(|&v| quick(v)).collect();
+        let missing: Vec<u32> = vs
+            .iter()
+            .zip(&out)
+            .filter(|(_, x)| x.is_none())
+            .map(|(&v, _)| v as u32)
+            .collect();
+        if !missing.is_empty() {
+            let mut found = self.legs_via_yard(z, u, &missing, false).into_iter();
+            for x in out.iter_mut().filter(|x| x.is_none()) {
+                *x = found.next();
+            }
+        }
+        out.into_iter().map(|x| x.expect("every leg")).collect()
     }
 
     /// Legs from `u` to every junction (indexed by junction): one full

@@ -3,7 +3,7 @@
 //!
 //! A search graph ([`StateGraph`]) is either the junction graph (plain
 //! deadheads) or the street-to-street graph of turn rules. Questions come in
-//! two kinds:
+//! four kinds:
 //! - one leg `u → v` ([`RowCache::leg`]): a lexicographic Dijkstra search
 //!   from `u` settles states in order until `v` is settled and at least a
 //!   minimum number of states are; the settled states are kept as the *row*
@@ -13,7 +13,12 @@
 //! - a block of legs among a set of states ([`settle`] with targets): one
 //!   search per row state, stopped as soon as every target is settled. A
 //!   district's targets are near each other, so each search settles a small
-//!   part of the network.
+//!   part of the network;
+//! - the nearest accepted target ([`nearest`]): one search that stops as
+//!   soon as the least accepted leg is known exactly (Path-Scanning's
+//!   nearest unserved street when a route's candidates are used up);
+//! - a few legs from one state ([`Until::Among`]): one search stopped when
+//!   all are settled (the legs between consecutive streets of a split).
 //!
 //! Values are exact (least cost, ties by least time, the same values as the
 //! full matrices), so results never depend on what the cache holds. The
@@ -54,6 +59,32 @@ pub(crate) enum Until<'a> {
     Targets(&'a [bool], usize),
     /// This state is settled and at least this many states are.
     Reach(u32, usize),
+    /// Every state of this list is settled.
+    Among(&'a [u32]),
+    /// As the inner rule, or as soon as a state of value above this one
+    /// (least cost, then least time) would be settled.
+    Below(Box<Until<'a>>, (Cost, Cost)),
+}
+
+/// A graph whose state `skip` is a dead end: searches on it find the least
+/// values over the ways that do not pass through `skip` (they may end there).
+pub(crate) struct Avoiding<'g, G: ?Sized> {
+    /// The graph.
+    pub g: &'g G,
+    /// The state not passed through.
+    pub skip: u32,
+}
+
+impl<G: StateGraph + ?Sized> StateGraph for Avoiding<'_, G> {
+    fn states(&self) -> usize {
+        self.g.states()
+    }
+
+    fn moves(&self, s: u32, f: &mut dyn FnMut(u32, Cost, Cost)) {
+        if s != self.skip {
+            self.g.moves(s, f);
+        }
+    }
 }
 
 /// States settled by a search, in the order settled, with their (cost,
@@ -120,9 +151,21 @@ fn settle_in<G: StateGraph + ?Sized>(
             heap.push(Reverse((c, t, s)));
         }
     }
+    let (until, cap) = match until {
+        Until::Below(inner, cap) => (*inner, cap),
+        u => (u, (Cost::MAX, Cost::MAX)),
+    };
     let mut order = Vec::new();
+    // The states of `Until::Among`, sorted for lookups.
+    let mut among: Vec<u32> = Vec::new();
     let mut left = match until {
         Until::Targets(_, k) => k,
+        Until::Among(list) => {
+            among = list.to_vec();
+            among.sort_unstable();
+            among.dedup();
+            among.len()
+        }
         _ => usize::MAX,
     };
     let mut reached = false;
@@ -131,12 +174,29 @@ fn settle_in<G: StateGraph + ?Sized>(
         if done[si] || (c, t) != best[si] {
             continue;
         }
+        if (c, t) > cap {
+            return Settled {
+                order,
+                complete: false,
+            };
+        }
         done[si] = true;
         order.push((s, c, t));
         match until {
-            Until::All => {}
+            Until::All | Until::Below(..) => {}
             Until::Targets(marks, _) => {
                 if marks[si] {
+                    left -= 1;
+                }
+                if left == 0 {
+                    return Settled {
+                        order,
+                        complete: false,
+                    };
+                }
+            }
+            Until::Among(_) => {
+                if among.binary_search(&s).is_ok() {
                     left -= 1;
                 }
                 if left == 0 {
@@ -171,6 +231,205 @@ fn settle_in<G: StateGraph + ?Sized>(
         order,
         complete: true,
     }
+}
+
+/// Targets of a [`nearest`] search in compressed rows: the targets at each
+/// state (`items[start[s]..start[s + 1]]`).
+#[derive(Clone, Debug, Default)]
+pub(crate) struct Csr {
+    start: Vec<u32>,
+    items: Vec<u32>,
+}
+
+impl Csr {
+    /// Rows `0..rows` holding each `item` at its `row`, items in input order.
+    pub(crate) fn of(rows: usize, pairs: impl Iterator<Item = (usize, u32)> + Clone) -> Csr {
+        let mut start = vec![0u32; rows + 1];
+        for (r, _) in pairs.clone() {
+            start[r + 1] += 1;
+        }
+        for r in 0..rows {
+            start[r + 1] += start[r];
+        }
+        let mut fill = start.clone();
+        let mut items = vec![0u32; start[rows] as usize];
+        for (r, x) in pairs {
+            items[fill[r] as usize] = x;
+            fill[r] += 1;
+        }
+        Csr { start, items }
+    }
+
+    /// The items at row `r`.
+    pub(crate) fn row(&self, r: u32) -> &[u32] {
+        &self.items[self.start[r as usize] as usize..self.start[r as usize + 1] as usize]
+    }
+}
+
+/// The nearest accepted targets from the initial states `init`: a
+/// lexicographic Dijkstra search that stops as soon as the least accepted
+/// leg is known exactly, instead of settling the whole graph.
+///
+/// The targets at state `s` are `at.row(s)`; the leg to such a target is
+/// the value of `s` less `offset(s)` (zero for junctions; with turns, the
+/// state is "has driven the target's street", whose own deadhead is
+/// subtracted, as [`crate::turns`] does for its legs). `accept(target,
+/// cost, time)` says whether a target at that exact leg qualifies (it may
+/// be asked about tentative legs too; only exact answers are returned).
+/// Returns every accepted target whose leg costs the least (with its leg),
+/// or nothing when no target with a state value up to `limit` qualifies.
+///
+/// **Exactness.** A target's leg is the value of the state entered from
+/// plus a move cost of at least the target state's offset (moves cost the
+/// offset plus a non-negative turn), so once every state of value below `p`
+/// is settled every leg below `p` is final. The search stops at the first
+/// settled value `p` above the least accepted tentative leg, after
+/// re-checking the legs below `p` (then final): the result equals the least
+/// accepted legs over a full search.
+pub(crate) fn nearest<G: StateGraph + ?Sized>(
+    g: &G,
+    init: &[(u32, Cost, Cost)],
+    at: &Csr,
+    offset: &dyn Fn(u32) -> (Cost, Cost),
+    limit: Cost,
+    accept: &mut dyn FnMut(u32, Cost, Cost) -> bool,
+) -> Vec<(u32, Cost, Cost)> {
+    SCRATCH.with(|cell| {
+        let mut scratch = cell.borrow_mut();
+        let Scratch {
+            best,
+            done,
+            touched,
+        } = &mut *scratch;
+        if best.len() < g.states() {
+            best.resize(g.states(), (UNREACHABLE, UNREACHABLE));
+            done.resize(g.states(), false);
+        }
+        let out = nearest_in(g, init, at, offset, limit, accept, best, done, touched);
+        for &v in touched.iter() {
+            best[v as usize] = (UNREACHABLE, UNREACHABLE);
+            done[v as usize] = false;
+        }
+        touched.clear();
+        out
+    })
+}
+
+#[allow(clippy::too_many_arguments)]
+fn nearest_in<G: StateGraph + ?Sized>(
+    g: &G,
+    init: &[(u32, Cost, Cost)],
+    at: &Csr,
+    offset: &dyn Fn(u32) -> (Cost, Cost),
+    limit: Cost,
+    accept: &mut dyn FnMut(u32, Cost, Cost) -> bool,
+    best: &mut [(Cost, Cost)],
+    done: &mut [bool],
+    touched: &mut Vec<u32>,
+) -> Vec<(u32, Cost, Cost)> {
+    // Target states with a tentative value, and the least accepted
+    // tentative leg cost among them.
+    let mut reached: Vec<u32> = Vec::new();
+    let mut bound = Cost::MAX;
+    let leg = |s: u32, (c, t): (Cost, Cost)| {
+        let (oc, ot) = offset(s);
+        (c - oc, t - ot)
+    };
+    // Records a new tentative value `v` of state `s`.
+    let consider = |s: u32,
+                    v: (Cost, Cost),
+                    first: bool,
+                    reached: &mut Vec<u32>,
+                    bound: &mut Cost,
+                    accept: &mut dyn FnMut(u32, Cost, Cost) -> bool| {
+        let here = at.row(s);
+        if here.is_empty() {
+            return;
+        }
+        if first {
+            reached.push(s);
+        }
+        let (lc, lt) = leg(s, v);
+        if lc < *bound && here.iter().any(|&x| accept(x, lc, lt)) {
+            *bound = lc;
+        }
+    };
+    // The accepted targets of least leg among the legs below `p` (final).
+    let finish = |p: Cost,
+                  reached: &[u32],
+                  best: &[(Cost, Cost)],
+                  accept: &mut dyn FnMut(u32, Cost, Cost) -> bool|
+     -> Vec<(u32, Cost, Cost)> {
+        let mut out = Vec::new();
+        let mut least = Cost::MAX;
+        for &s in reached {
+            let (lc, lt) = leg(s, best[s as usize]);
+            if lc >= p || lc > least {
+                continue;
+            }
+            for &x in at.row(s) {
+                if accept(x, lc, lt) {
+                    if lc < least {
+                        least = lc;
+                        out.clear();
+                    }
+                    out.push((x, lc, lt));
+                }
+            }
+        }
+        out
+    };
+    let mut heap = BinaryHeap::new();
+    for &(s, c, t) in init {
+        if (c, t) < best[s as usize] {
+            let first = best[s as usize].0 >= UNREACHABLE;
+            if first {
+                touched.push(s);
+            }
+            best[s as usize] = (c, t);
+            heap.push(Reverse((c, t, s)));
+            consider(s, (c, t), first, &mut reached, &mut bound, accept);
+        }
+    }
+    while let Some(Reverse((c, t, s))) = heap.pop() {
+        let si = s as usize;
+        if done[si] || (c, t) != best[si] {
+            continue;
+        }
+        if c > bound {
+            let out = finish(c, &reached, best, accept);
+            if !out.is_empty() {
+                return out;
+            }
+            // The tentative leg was not the final one (a cheaper way that
+            // does not qualify): look again among the later legs.
+            bound = Cost::MAX;
+            for &r in &reached {
+                let (lc, lt) = leg(r, best[r as usize]);
+                if lc >= c && lc < bound && at.row(r).iter().any(|&x| accept(x, lc, lt)) {
+                    bound = lc;
+                }
+            }
+        }
+        if c > limit {
+            return finish(c, &reached, best, accept);
+        }
+        done[si] = true;
+        g.moves(s, &mut |w, dc, dt| {
+            let wi = w as usize;
+            let nv = (c + dc, t + dt);
+            if !done[wi] && nv < best[wi] {
+                let first = best[wi].0 >= UNREACHABLE;
+                if first {
+                    touched.push(w);
+                }
+                best[wi] = nv;
+                heap.push(Reverse((nv.0, nv.1, w)));
+                consider(w, nv, first, &mut reached, &mut bound, accept);
+            }
+        });
+    }
+    finish(Cost::MAX, &reached, best, accept)
 }
 
 /// The settled states of one search, sorted by state for lookups.
@@ -279,6 +538,20 @@ impl RowCache {
         }
         *slot = Some(Arc::new(row));
         x
+    }
+
+    /// The cached value from source `key` to state `v`, if any (no search).
+    pub(crate) fn peek(&self, key: usize, v: u32) -> Option<(Cost, Cost)> {
+        let slot = self.rows[key].read().expect("row cache");
+        if let Some(x) = slot.as_ref().and_then(|r| r.get(v)) {
+            return Some(x);
+        }
+        drop(slot);
+        self.pairs
+            .read()
+            .expect("pair cache")
+            .get(&(key as u32, v))
+            .copied()
     }
 
     /// Drops every row.

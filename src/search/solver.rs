@@ -16,6 +16,15 @@
 //! iteration limit the result is always the same; the only time-dependent
 //! decision is when to stop (time limit or external stop flag).
 //!
+//! **Stopping during construction.** A plan is always returned, so the
+//! first plan is built even past the time limit or a raised stop flag. Above
+//! [`DISTRICTS_FROM`] streets the first plan is the cheapest of five
+//! Path-Scanning rules (each split optimally); once one rule's plan exists
+//! and the limit or the flag has passed, the rules still running give up
+//! (they check between streets) and the cheapest finished plan is kept, so
+//! the solver returns about as soon as the first rule is done. The plan
+//! then depends on which rules finished in time.
+//!
 //! ```
 //! use arcwright::model::{Fleet, Instance, Network};
 //! use arcwright::Solver;
@@ -318,7 +327,10 @@ impl<'a> Solver<'a> {
         self
     }
 
-    /// Stop after this much time (checked between offspring).
+    /// Stop after this much time (checked between offspring). A first
+    /// plan is built even when the limit passes during its construction;
+    /// above [`DISTRICTS_FROM`] streets the construction then stops at its
+    /// first finished plan (see the module docs).
     pub fn time_limit(mut self, t: Duration) -> Self {
         self.time_limit = Some(t);
         self
@@ -345,7 +357,8 @@ impl<'a> Solver<'a> {
     }
 
     /// External stop: when the flag becomes true the search ends soon and
-    /// returns the best plan so far.
+    /// returns the best plan so far (the first plan, when raised during the
+    /// construction, as soon as one exists; see the module docs).
     pub fn stop_flag(mut self, flag: Arc<AtomicBool>) -> Self {
         self.stop = Some(flag);
         self
@@ -681,22 +694,38 @@ impl<'a> Solver<'a> {
     /// The first plan of the district search: every Path-Scanning rule (on
     /// candidate lists when `cand` is not empty), each split optimally
     /// (Ulusoy), the cheapest kept (first rule on ties).
+    ///
+    /// **Interruption.** Once one rule's plan is split and the deadline or
+    /// the stop flag has passed, the rules still constructing give up (they
+    /// check between tasks, see [`path_scan_listed`]) and the cheapest plan
+    /// among the finished rules is kept; before any plan exists the
+    /// construction goes on past the deadline, since a plan must be
+    /// returned. Which rules finish then depends on timing; without an
+    /// interruption every rule runs and the result is deterministic.
     fn first_plan(&self, ctx: &Ctx<'_>, cand: &[Vec<u32>]) -> Result<(i64, Routes), SolveError> {
         let m = ctx.m;
         let all: Vec<usize> = (0..m.n).collect();
+        let have_plan = AtomicBool::new(false);
+        let give_up = || have_plan.load(Ordering::Relaxed) && ctx.should_stop();
         let built: Vec<Result<(i64, Routes), usize>> = RULES
             .par_iter()
-            .map(|&rule| {
+            .filter_map(|&rule| {
                 let r = if cand.is_empty() {
                     path_scan::<ChaCha12Rng>(m, &all, rule, None, 0, false)
                 } else {
-                    path_scan_listed::<ChaCha12Rng>(m, cand, rule, None)
+                    path_scan_listed::<ChaCha12Rng>(m, cand, rule, None, &give_up)?
                 };
-                match split(m, &giant::of_routes(&r)) {
-                    Ok(s) => Ok((s.cost, s.routes)),
+                if give_up() {
+                    return None;
+                }
+                Some(match split(m, &giant::of_routes(&r)) {
+                    Ok(s) => {
+                        have_plan.store(true, Ordering::Relaxed);
+                        Ok((s.cost, s.routes))
+                    }
                     Err(SplitFailure::TooFewVehicles { fewest }) => Err(fewest),
                     Err(SplitFailure::Infeasible) => Err(usize::MAX),
-                }
+                })
             })
             .collect();
         let mut best: Option<(i64, Routes)> = None;

@@ -32,7 +32,7 @@ use rayon::prelude::*;
 
 use super::table::{arc_of, head, tail, TurnTable};
 use crate::model::{Cost, Dir, Instance};
-use crate::paths::on_demand::{full_values, settle, RowCache, StateGraph, Until};
+use crate::paths::on_demand::{full_values, nearest, settle, Csr, RowCache, StateGraph, Until};
 use crate::paths::UNREACHABLE;
 
 impl Graph {
@@ -171,6 +171,7 @@ impl StateGraph for Graph {
 }
 
 /// The turns of [`Graph`] reversed (for the legs into the yard).
+#[derive(Debug)]
 struct Reversed {
     start: Vec<u32>,
     /// (earlier arc, penalty + cost of the later arc, its time).
@@ -226,6 +227,12 @@ struct Lazy {
     from_yard: Vec<(Cost, Cost)>,
     to_yard: Vec<(Cost, Cost)>,
     cache: RowCache,
+    /// The task arcs entered by each driving arc (at most one).
+    entered: Csr,
+    /// The longest deadhead cost of a street.
+    longest: Cost,
+    /// The turns reversed (searches into a street).
+    rev: Reversed,
 }
 
 impl TurnDistances {
@@ -312,6 +319,13 @@ impl TurnDistances {
         );
         let from_yard = entry.iter().map(|&f| graph.enter(f, &fwd)).collect();
         let to_yard = arc.iter().map(|&e| back[e as usize]).collect();
+        let entered = Csr::of(
+            arcs,
+            (0..2 * n as u32)
+                .filter(|&b| entry[b as usize] != u32::MAX)
+                .map(|b| (entry[b as usize] as usize, b)),
+        );
+        let longest = graph.link.iter().map(|l| l.0).max().unwrap_or(0);
         TurnDistances {
             n,
             cost: Vec::new(),
@@ -323,6 +337,9 @@ impl TurnDistances {
                 from_yard,
                 to_yard,
                 cache: RowCache::new(arcs),
+                entered,
+                longest,
+                rev,
             })),
         }
     }
@@ -377,6 +394,123 @@ impl TurnDistances {
             z.entry.iter().map(|&f| z.graph.enter(f, &found)).collect();
         out.push(z.to_yard[a]);
         out
+    }
+
+    /// The nearest task arcs from the end of task arc `a` (on demand only,
+    /// not the yard): `accept(task arc, cost, time)` filters them by their
+    /// exact leg (the value of [`TurnDistances::leg`]); returns every
+    /// accepted task arc of least leg cost with its leg, searching only as
+    /// far as needed (see [`crate::paths::on_demand::nearest`]); nothing
+    /// when none with a leg up to `limit` qualifies.
+    pub(crate) fn nearest_from(
+        &self,
+        a: usize,
+        limit: Cost,
+        accept: &mut dyn FnMut(u32, Cost, Cost) -> bool,
+    ) -> Vec<(u32, Cost, Cost)> {
+        let z = self.lazy.as_ref().expect("on-demand turn distances");
+        let init = z.graph.out_of(z.arc[a]);
+        let offset = |f: u32| z.graph.link[f as usize / 2];
+        let reach = limit.saturating_add(z.longest);
+        nearest(&z.graph, &init, &z.entered, &offset, reach, accept)
+    }
+
+    /// The legs from task arc (or yard) `a` to each of a few task arcs (or
+    /// the yard) `bs`, the values of [`TurnDistances::leg`]: from the
+    /// matrices or the cache when they hold them, else by one search from
+    /// `a` stopped when every one of `bs` is reached (not cached), instead
+    /// of one search per leg.
+    pub(crate) fn legs_to(&self, a: usize, bs: &[usize]) -> Vec<(Cost, Cost)> {
+        let Some(z) = &self.lazy else {
+            return bs.iter().map(|&b| self.leg(a, b)).collect();
+        };
+        let yard = 2 * self.n;
+        let quick = |b: usize| {
+            if a == yard || b == yard || z.entry[b] == u32::MAX {
+                Some(self.leg(a, b))
+            } else {
+                let f = z.entry[b];
+                let got = z.cache.peek(z.arc[a] as usize, f)?;
+                Some(z.graph.enter_value(f, got))
+            }
+        };
+        let mut out: Vec<Option<(Cost, Cost)>> = bs.iter().map(|&b| quick(b)).collect();
+        let missing: Vec<u32> = bs
+            .iter()
+            .zip(&out)
+            .filter(|(_, x)| x.is_none())
+            .map(|(&b, _)| z.entry[b])
+            .collect();
+        if !missing.is_empty() {
+            let init = z.graph.out_of(z.arc[a]);
+            let mut found = settle(&z.graph, &init, Until::Among(&missing)).order;
+            found.sort_unstable_by_key(|x| x.0);
+            for (x, &b) in out.iter_mut().zip(bs) {
+                if x.is_none() {
+                    let f = z.entry[b];
+                    let v = match found.binary_search_by_key(&f, |x| x.0) {
+                        Ok(i) => (found[i].1, found[i].2),
+                        Err(_) => (UNREACHABLE, UNREACHABLE),
+                    };
+                    *x = Some(z.graph.enter_value(f, v));
+                }
+            }
+        }
+        out.into_iter().map(|x| x.expect("every leg")).collect()
+    }
+
+    /// The legs between task arc `a` and each of the task arcs `bs` (not
+    /// the yard): from `a` to each, or from each to `a` when `into`; the
+    /// values of [`TurnDistances::leg`], by one search (on the reversed
+    /// turns when `into`) stopped when every one of `bs` is reached (not
+    /// cached). On demand only.
+    pub(crate) fn legs_between(&self, a: usize, bs: &[usize], into: bool) -> Vec<(Cost, Cost)> {
+        let z = self.lazy.as_ref().expect("on-demand turn distances");
+        let none = (UNREACHABLE, UNREACHABLE);
+        let value =
+            |found: &[(u32, Cost, Cost)], s: u32| match found.binary_search_by_key(&s, |x| x.0) {
+                Ok(i) => (found[i].1, found[i].2),
+                Err(_) => none,
+            };
+        if into {
+            // From "has driven b's street" to "has driven a's street":
+            // backwards from the latter; a's own deadhead then comes off.
+            let f = z.entry[a];
+            if f == u32::MAX {
+                return vec![none; bs.len()];
+            }
+            let states: Vec<u32> = bs.iter().map(|&b| z.arc[b]).collect();
+            let mut found = settle(&z.rev, &[(f, 0, 0)], Until::Among(&states)).order;
+            found.sort_unstable_by_key(|x| x.0);
+            // From a's own street back to it takes a loop, which the
+            // backward search (started there at zero) does not give.
+            states
+                .iter()
+                .zip(bs)
+                .map(|(&e, &b)| {
+                    if e == f {
+                        self.leg(b, a)
+                    } else {
+                        z.graph.enter_value(f, value(&found, e))
+                    }
+                })
+                .collect()
+        } else {
+            let states: Vec<u32> = bs
+                .iter()
+                .map(|&b| z.entry[b])
+                .filter(|&f| f != u32::MAX)
+                .collect();
+            let init = z.graph.out_of(z.arc[a]);
+            let mut found = settle(&z.graph, &init, Until::Among(&states)).order;
+            found.sort_unstable_by_key(|x| x.0);
+            bs.iter()
+                .map(|&b| match z.entry[b] {
+                    u32::MAX => none,
+                    f => z.graph.enter_value(f, value(&found, f)),
+                })
+                .collect()
+        }
     }
 
     /// Legs from every task arc (or yard) of `rows` to every one of `cols`
