@@ -29,7 +29,7 @@
 //!    solver for 100 offspring. That search starts from a population of
 //!    new, mostly random, plans, so most of its effort went into finding
 //!    again what the district already had: on the 4,420-street town of the
-//!    README, 982,713 after 60 s against 940,781 with ruin and recreate.)
+//!    README, 982,713 after 60 s against 926,641 with ruin and recreate.)
 //! 3. **Reassembly.** A district's routes are replaced only by strictly
 //!    cheaper feasible ones, so a round never makes the plan worse.
 //!
@@ -37,7 +37,7 @@
 //! stream derived from the seed, the round and its index; with iteration
 //! limits the result depends only on the seed (not even on the number of
 //! workers). Memory per district is `4 (2s + 2)^2` bytes for `s` streets
-//! (16 MiB for 2,000 streets; twice that with times). When the solver's
+//! (16 MiB for 1,000 streets; twice that with times). When the solver's
 //! matrix answers on demand (city scale, with or without turn rules) a
 //! district's matrix comes from one search per district junction, stopped
 //! when the district's streets are reached; with turn rules it prices turns

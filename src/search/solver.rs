@@ -13,8 +13,10 @@
 //! Islands run in epochs of a fixed number of offspring; at the barrier
 //! between epochs every island receives the overall best solution (a
 //! deterministic exchange). Hence for a given seed, worker count and
-//! iteration limit the result is always the same; the only time-dependent
-//! decision is when to stop (time limit or external stop flag).
+//! iteration limit the result is always the same; with a time limit the
+//! clock decides when to stop (or the external stop flag does) and, in the
+//! district search of large plans, the annealing temperature of each round
+//! (it follows the share of the time limit spent).
 //!
 //! **Stopping during construction.** A plan is always returned, so the
 //! first plan is built even past the time limit or a raised stop flag. Above
