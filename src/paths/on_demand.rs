@@ -614,7 +614,9 @@ pub(crate) fn block<G: StateGraph + ?Sized>(
                     at[k as usize] = (c, t);
                 }
             }
-            cols.iter().map(|&c| at[slot[c as usize] as usize]).collect()
+            cols.iter()
+                .map(|&c| at[slot[c as usize] as usize])
+                .collect()
         })
         .collect();
     out.into_iter().flatten().collect()

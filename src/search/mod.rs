@@ -7,9 +7,9 @@
 
 mod crossover;
 mod districts;
-mod recreate;
 mod lp_side;
 mod population;
+mod recreate;
 mod solver;
 
 pub use lp_side::{LpBudget, LpOutcome};

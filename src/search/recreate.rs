@@ -180,7 +180,12 @@ pub(super) fn anneal(
         }
     }
     Outcome {
-        better: best.map(|b| (best_total, b.into_iter().filter(|r| !r.is_empty()).collect())),
+        better: best.map(|b| {
+            (
+                best_total,
+                b.into_iter().filter(|r| !r.is_empty()).collect(),
+            )
+        }),
         iterations: done,
     }
 }
@@ -426,11 +431,17 @@ mod tests {
         };
         let out = run(3);
         assert_eq!(out.iterations, 3000);
-        let (cost, better) = out.better.expect("an improvement over one route per street");
+        let (cost, better) = out
+            .better
+            .expect("an improvement over one route per street");
         assert!(cost < start, "{cost} vs {start}");
         assert_eq!(better.iter().map(|r| m.route_eval(r).0).sum::<i64>(), cost);
         assert!(better.iter().all(|r| m.route_feasible(r)));
-        let mut tasks: Vec<usize> = better.iter().flatten().map(|&a| ArcMatrix::task(a)).collect();
+        let mut tasks: Vec<usize> = better
+            .iter()
+            .flatten()
+            .map(|&a| ArcMatrix::task(a))
+            .collect();
         tasks.sort_unstable();
         assert_eq!(tasks, (0..m.n).collect::<Vec<_>>());
         // Same seed, same plan.

@@ -800,7 +800,17 @@ impl<'a> Solver<'a> {
             let per = (DISTRICT_MOVES_PER_STREET * size as u64)
                 .min((budget / (m.n.div_ceil(size).max(1) as u64)).max(1));
             let r = pool.install(|| {
-                districts::round(m, ctx.neigh, &mut routes, size, per, heat, self.seed, k, &limits)
+                districts::round(
+                    m,
+                    ctx.neigh,
+                    &mut routes,
+                    size,
+                    per,
+                    heat,
+                    self.seed,
+                    k,
+                    &limits,
+                )
             });
             k += 1;
             iterations += r.iterations;
