@@ -618,6 +618,20 @@ impl ArcMatrix {
     /// so costs are exactly this matrix's. Memory `4 (2s + 2)^2`
     /// bytes (twice with times) for `s` tasks: the district search's matrix.
     pub fn restrict(&self, tasks: &[usize], max_routes: Option<usize>) -> ArcMatrix {
+        self.restrict_until(tasks, max_routes, &|| false)
+            .expect("never given up")
+    }
+
+    /// [`ArcMatrix::restrict`], given up (`None`) when `give_up` answers
+    /// true before one of the searches of an on-demand matrix (asked once
+    /// per search): a district whose matrix is still being searched at the
+    /// deadline is dropped.
+    pub(crate) fn restrict_until(
+        &self,
+        tasks: &[usize],
+        max_routes: Option<usize>,
+        give_up: &(dyn Fn() -> bool + Sync),
+    ) -> Option<ArcMatrix> {
         let s = tasks.len();
         let arcs = 2 * s + 2;
         let parent: Vec<u32> = tasks
@@ -634,10 +648,10 @@ impl ArcMatrix {
         };
         let (cost, time) = match &self.legs {
             None => (copy(&self.cost), self.time.as_deref().map(copy)),
-            Some(legs) => self.block(legs, &parent),
+            Some(legs) => self.block(legs, &parent, give_up)?,
         };
         let pick_i64 = |v: &[i64]| parent.iter().map(|&a| v[a as usize]).collect();
-        ArcMatrix {
+        Some(ArcMatrix {
             n: s,
             arcs,
             depot: (2 * s) as u32,
@@ -655,23 +669,29 @@ impl ArcMatrix {
             max_routes,
             legs: None,
             cap: MAX_LEG,
-        }
+        })
     }
 
     /// The dense cost (and time) matrix among `arcs` from on-demand legs:
-    /// one bounded search per row (see [`crate::paths::on_demand`]).
-    fn block(&self, legs: &Legs, arcs: &[u32]) -> (Vec<i32>, Option<Vec<i32>>) {
+    /// one bounded search per row (see [`crate::paths::on_demand`]); `None`
+    /// when `give_up` answers true before a search.
+    fn block(
+        &self,
+        legs: &Legs,
+        arcs: &[u32],
+        give_up: &(dyn Fn() -> bool + Sync),
+    ) -> Option<(Vec<i32>, Option<Vec<i32>>)> {
         let found = match legs {
             Legs::Junctions {
                 dist, start, end, ..
             } => {
                 let rows: Vec<usize> = arcs.iter().map(|&a| end[a as usize] as usize).collect();
                 let cols: Vec<usize> = arcs.iter().map(|&a| start[a as usize] as usize).collect();
-                dist.block(&rows, &cols)
+                dist.block(&rows, &cols, give_up)?
             }
             Legs::Turns(td) => {
                 let keys: Vec<usize> = arcs.iter().map(|&a| (a as usize).min(2 * self.n)).collect();
-                td.block(&keys, &keys)
+                td.block(&keys, &keys, give_up)?
             }
         };
         let store = |x: i64| if x >= BIG { MISSING } else { x as i32 };
@@ -683,7 +703,7 @@ impl ArcMatrix {
                 time.push(store(t));
             }
         }
-        (cost, self.timed().then_some(time))
+        Some((cost, self.timed().then_some(time)))
     }
 
     /// [`ArcMatrix::task_gap`] from task `u` to each of `others`, the same

@@ -506,14 +506,21 @@ impl Distances {
 
     /// Legs from every junction of `rows` to every junction of `cols`
     /// (row-major): lookups in the matrices, or on demand one search per
-    /// row that stops when every column is reached (not cached).
-    pub(crate) fn block(&self, rows: &[usize], cols: &[usize]) -> Vec<(Cost, Cost)> {
+    /// row that stops when every column is reached (not cached); `None`
+    /// when `give_up` answers true before a row's search.
+    pub(crate) fn block(
+        &self,
+        rows: &[usize],
+        cols: &[usize],
+        give_up: &(dyn Fn() -> bool + Sync),
+    ) -> Option<Vec<(Cost, Cost)>> {
         let Some(z) = &self.lazy else {
-            return rows
-                .iter()
-                .flat_map(|&u| cols.iter().map(move |&v| (u, v)))
-                .map(|(u, v)| self.leg(u, v))
-                .collect();
+            return Some(
+                rows.iter()
+                    .flat_map(|&u| cols.iter().map(move |&v| (u, v)))
+                    .map(|(u, v)| self.leg(u, v))
+                    .collect(),
+            );
         };
         let mut uniq = rows.to_vec();
         uniq.sort_unstable();
@@ -533,7 +540,7 @@ impl Distances {
             .filter(|&&v| v != z.depot)
             .map(|&v| v as u32)
             .collect();
-        let found = on_demand::block(&self.adj, &inits, &targets);
+        let found = on_demand::block(&self.adj, &inits, &targets, give_up)?;
         let mut out = Vec::with_capacity(rows.len() * cols.len());
         for &u in rows {
             let i = uniq.binary_search(&u).expect("a row");
@@ -549,7 +556,7 @@ impl Distances {
                 });
             }
         }
-        out
+        Some(out)
     }
 
     /// Computes distances between arbitrary junctions of a network.

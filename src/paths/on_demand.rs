@@ -585,12 +585,14 @@ pub(crate) fn full_values(n: usize, s: &Settled) -> Vec<(Cost, Cost)> {
 
 /// Legs from each of `rows` (initial states of a search each) to each of
 /// `cols` (states), one search per row stopped when every column is settled;
-/// row-major. Rows are searched in parallel (rayon).
+/// row-major. Rows are searched in parallel (rayon). `None` when `give_up`
+/// answers true before a row's search (asked once per row).
 pub(crate) fn block<G: StateGraph + ?Sized>(
     g: &G,
     rows: &[Vec<(u32, Cost, Cost)>],
     cols: &[u32],
-) -> Vec<(Cost, Cost)> {
+    give_up: &(dyn Fn() -> bool + Sync),
+) -> Option<Vec<(Cost, Cost)>> {
     use rayon::prelude::*;
     let mut marks = vec![false; g.states()];
     // Index of each column state among the distinct columns.
@@ -603,9 +605,12 @@ pub(crate) fn block<G: StateGraph + ?Sized>(
             distinct += 1;
         }
     }
-    let out: Vec<Vec<(Cost, Cost)>> = rows
+    let out: Option<Vec<Vec<(Cost, Cost)>>> = rows
         .par_iter()
         .map(|init| {
+            if give_up() {
+                return None;
+            }
             let s = settle(g, init, Until::Targets(&marks, distinct));
             let mut at = vec![(UNREACHABLE, UNREACHABLE); distinct];
             for &(v, c, t) in &s.order {
@@ -614,12 +619,14 @@ pub(crate) fn block<G: StateGraph + ?Sized>(
                     at[k as usize] = (c, t);
                 }
             }
-            cols.iter()
-                .map(|&c| at[slot[c as usize] as usize])
-                .collect()
+            Some(
+                cols.iter()
+                    .map(|&c| at[slot[c as usize] as usize])
+                    .collect(),
+            )
         })
         .collect();
-    out.into_iter().flatten().collect()
+    Some(out?.into_iter().flatten().collect())
 }
 
 #[cfg(test)]
@@ -669,5 +676,27 @@ mod tests {
                 );
             }
         }
+    }
+
+    /// A block gives the values of full searches (repeated columns
+    /// included), and nothing once told to give up.
+    #[test]
+    fn blocks_equal_full_searches_and_give_up() {
+        let g = Ring(300);
+        let rows: Vec<Vec<(u32, Cost, Cost)>> = [0u32, 17, 299, 150]
+            .iter()
+            .map(|&u| vec![(u, 0, 0)])
+            .collect();
+        let cols = [5u32, 299, 5, 0, 123];
+        let got = block(&g, &rows, &cols, &|| false).expect("not given up");
+        let mut k = 0;
+        for init in &rows {
+            let full = full_values(300, &settle(&g, init, Until::All));
+            for &c in &cols {
+                assert_eq!(got[k], full[c as usize], "{init:?} -> {c}");
+                k += 1;
+            }
+        }
+        assert!(block(&g, &rows, &cols, &|| true).is_none());
     }
 }

@@ -42,7 +42,7 @@
 //! district's matrix comes from one search per district junction, stopped
 //! when the district's streets are reached; with turn rules it prices turns
 //! like the whole plan. A district not started by the deadline or stop flag
-//! is skipped.
+//! is skipped, and so is one whose matrix is still being searched then.
 
 use std::sync::atomic::AtomicBool;
 use std::sync::Arc;
@@ -241,7 +241,10 @@ fn improve(
             .expect("task of the district");
         2 * i as u32 + (a & 1)
     };
-    let sub = m.restrict(&tasks, m.max_routes.map(|_| routes.len()));
+    let max_routes = m.max_routes.map(|_| routes.len());
+    let Some(sub) = m.restrict_until(&tasks, max_routes, &|| limits.reached()) else {
+        return (None, 0);
+    };
     let near = neighbour_lists(&sub, NEAR);
     let mine: Vec<Vec<u32>> = routes
         .iter()

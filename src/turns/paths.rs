@@ -515,13 +515,20 @@ impl TurnDistances {
 
     /// Legs from every task arc (or yard) of `rows` to every one of `cols`
     /// (row-major): one search per row, stopped when every column is
-    /// reached (not cached) when on demand.
-    pub(crate) fn block(&self, rows: &[usize], cols: &[usize]) -> Vec<(Cost, Cost)> {
+    /// reached (not cached) when on demand; `None` when `give_up` answers
+    /// true before a row's search.
+    pub(crate) fn block(
+        &self,
+        rows: &[usize],
+        cols: &[usize],
+        give_up: &(dyn Fn() -> bool + Sync),
+    ) -> Option<Vec<(Cost, Cost)>> {
         let Some(z) = &self.lazy else {
-            return rows
-                .iter()
-                .flat_map(|&a| cols.iter().map(move |&b| self.leg(a, b)))
-                .collect();
+            return Some(
+                rows.iter()
+                    .flat_map(|&a| cols.iter().map(move |&b| self.leg(a, b)))
+                    .collect(),
+            );
         };
         let yard = 2 * self.n;
         let inits: Vec<Vec<(u32, Cost, Cost)>> = rows
@@ -539,7 +546,7 @@ impl TurnDistances {
             .filter(|&&b| b != yard && z.entry[b] != u32::MAX)
             .map(|&b| z.entry[b])
             .collect();
-        let found = crate::paths::on_demand::block(&z.graph, &inits, &targets);
+        let found = crate::paths::on_demand::block(&z.graph, &inits, &targets, give_up)?;
         let mut out = Vec::with_capacity(rows.len() * cols.len());
         for (i, &a) in rows.iter().enumerate() {
             let mut k = i * targets.len();
@@ -554,7 +561,7 @@ impl TurnDistances {
                 });
             }
         }
-        out
+        Some(out)
     }
 
     /// Number of rows and columns (`2n + 1`).
