@@ -34,8 +34,9 @@ use std::sync::Mutex;
 use std::time::{Duration, Instant};
 
 use arcwright::check::check_plan;
+use arcwright::demo::glued_copies;
 use arcwright::io::{read_dat_file, read_reference, read_scenario_file};
-use arcwright::model::{Cost, Fleet, Instance, Link, Network};
+use arcwright::model::Cost;
 use arcwright::turns::{TurnPenalties, TurnRules};
 use arcwright::{Decomposition, Progress, Solver};
 
@@ -121,32 +122,6 @@ fn parse() -> Result<Opts, String> {
     Ok(o)
 }
 
-/// `k` copies of `one` sharing only the yard junction (see the module docs).
-fn glue(one: &Instance, k: usize) -> Instance {
-    let net = one.network();
-    let nj = net.junctions.len();
-    let depot = one.depot();
-    let map = |c: usize, v: usize| {
-        if v == depot {
-            0
-        } else {
-            1 + c * (nj - 1) + if v < depot { v } else { v - 1 }
-        }
-    };
-    let mut out = Network::with_junctions(1 + k * (nj - 1));
-    for c in 0..k {
-        for l in &net.links {
-            let mut copy: Link = l.clone();
-            copy.from = map(c, l.from);
-            copy.to = map(c, l.to);
-            copy.name = None;
-            out.add_link(copy);
-        }
-    }
-    let fleet = Fleet::with_capacity(one.fleet().capacity);
-    Instance::new(format!("{} x{k}", one.name), out, fleet, 0).expect("glued copies are valid")
-}
-
 /// The published optimum of `name`, when the reference file proves one.
 fn optimum(file: &Path, name: &str) -> Option<Cost> {
     let csv = file.parent()?.parent()?.join("reference.csv");
@@ -179,7 +154,10 @@ fn main() {
         (Some(g), _) => {
             let one = read_dat_file(g).unwrap_or_else(|e| panic!("{e}"));
             let opt = optimum(g, &one.instance.name).map(|v| v * o.copies as Cost);
-            (glue(&one.instance, o.copies), opt)
+            (
+                glued_copies(&one.instance, o.copies).unwrap_or_else(|e| panic!("{e}")),
+                opt,
+            )
         }
         (None, Some(f)) => (
             read_scenario_file(f).unwrap_or_else(|e| panic!("{e}")),

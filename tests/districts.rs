@@ -9,9 +9,9 @@ use std::sync::atomic::AtomicBool;
 use std::sync::{Arc, Mutex};
 
 use arcwright::check::check_plan;
-use arcwright::demo::{town, TownSpec};
+use arcwright::demo::{glued_copies, town, TownSpec};
 use arcwright::io::{read_dat_file, read_reference};
-use arcwright::model::{Cost, Fleet, Instance, Network};
+use arcwright::model::{Cost, Instance};
 use arcwright::{Decomposition, Phase, Progress, Solver};
 
 fn small_town() -> Instance {
@@ -96,32 +96,6 @@ fn a_raised_stop_flag_still_returns_a_checked_plan() {
     assert_eq!(sol.plan.visits(), inst.tasks().len());
 }
 
-/// `k` copies of `one` sharing only the yard (no fleet bound, no shift): its
-/// optimum is `k` times the optimum of one copy (a route crossing the yard
-/// can be cut there at no cost).
-fn glued(one: &Instance, k: usize) -> Instance {
-    let net = one.network();
-    let nj = net.junctions.len();
-    let depot = one.depot();
-    let map = |c: usize, v: usize| {
-        if v == depot {
-            0
-        } else {
-            1 + c * (nj - 1) + if v < depot { v } else { v - 1 }
-        }
-    };
-    let mut out = Network::with_junctions(1 + k * (nj - 1));
-    for c in 0..k {
-        for l in &net.links {
-            let mut copy = l.clone();
-            copy.from = map(c, l.from);
-            copy.to = map(c, l.to);
-            out.add_link(copy);
-        }
-    }
-    Instance::new("glued", out, Fleet::with_capacity(one.fleet().capacity), 0).expect("valid")
-}
-
 #[test]
 fn glued_copies_of_gdb1_reach_k_times_the_published_optimum() {
     let Some(dir) = common::shared_dir("districts::glued_gdb1") else {
@@ -137,7 +111,7 @@ fn glued_copies_of_gdb1_reach_k_times_the_published_optimum() {
     let one = read_dat_file(dir.join("gdb/gdb1.dat"))
         .expect("gdb1")
         .instance;
-    let inst = glued(&one, 4);
+    let inst = glued_copies(&one, 4).expect("copies");
     let sol = Solver::new(&inst)
         .seed(3)
         .workers(2)

@@ -15,42 +15,17 @@ use super::candidates::candidate_lists;
 use super::giant;
 use super::path_scanning::{path_scan_listed, RULES};
 use super::split::split;
-use crate::demo::{town, TownSpec};
-use crate::model::{Dir, Fleet, Instance, Link, Network};
+use crate::demo::{glued_copies, town, TownSpec};
+use crate::model::{Dir, Instance};
 use crate::paths::Distances;
 use crate::turns::{TurnDistances, TurnPenalties, TurnRules, TurnTable};
 
-/// `k` copies of `one` sharing only its yard (as `examples/scale.rs --glue`).
-fn glue(one: &Instance, k: usize) -> Instance {
-    let net = one.network();
-    let nj = net.junctions.len();
-    let depot = one.depot();
-    let map = |c: usize, v: usize| {
-        if v == depot {
-            0
-        } else {
-            1 + c * (nj - 1) + if v < depot { v } else { v - 1 }
-        }
-    };
-    let mut out = Network::with_junctions(1 + k * (nj - 1));
-    for c in 0..k {
-        for l in &net.links {
-            let mut copy: Link = l.clone();
-            copy.from = map(c, l.from);
-            copy.to = map(c, l.to);
-            copy.name = None;
-            out.add_link(copy);
-        }
-    }
-    let fleet = Fleet::with_capacity(one.fleet().capacity);
-    Instance::new("glued", out, fleet, 0).expect("glued copies are valid")
-}
 
 /// The test instances: a town with shift limit and one-way streets, and
 /// three copies of a smaller one glued at the yard (no shift limit).
 fn instances() -> Vec<Instance> {
     let small = town(&TownSpec::new(11, 3)).expect("town");
-    vec![town(&TownSpec::new(4, 6)).expect("town"), glue(&small, 3)]
+    vec![town(&TownSpec::new(4, 6)).expect("town"), glued_copies(&small, 3).expect("copies")]
 }
 
 /// (what, reference with full matrices, answered on demand) for `inst`:

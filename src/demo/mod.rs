@@ -78,6 +78,51 @@ impl TownSpec {
     }
 }
 
+/// `k` copies of `one` sharing only its yard junction (the yard becomes
+/// junction 0), with `one`'s capacity and no fleet bound, shift limit or
+/// street names: a reference instance of any size whose optimum is known
+/// when `one`'s is. A route serving streets of several copies passes the
+/// yard between them and can be cut there into routes of single copies at
+/// the same cost and within capacity, so the optimum of the copies is
+/// exactly `k` times the optimum of `one` without a fleet bound or shift
+/// limit (and `k` copies of an optimal plan of `one` reach it).
+///
+/// ```
+/// use arcwright::demo::{glued_copies, town, TownSpec};
+/// let one = town(&TownSpec::new(7, 2)).unwrap();
+/// let three = glued_copies(&one, 3).unwrap();
+/// assert_eq!(three.tasks().len(), 3 * one.tasks().len());
+/// assert_eq!(three.depot(), 0);
+/// ```
+///
+/// # Errors
+/// [`ModelError`] when the copies do not make a valid instance, as for
+/// [`Instance::new`].
+pub fn glued_copies(one: &Instance, k: usize) -> Result<Instance, ModelError> {
+    let net = one.network();
+    let nj = net.junctions.len();
+    let depot = one.depot();
+    let map = |c: usize, v: usize| {
+        if v == depot {
+            0
+        } else {
+            1 + c * (nj - 1) + if v < depot { v } else { v - 1 }
+        }
+    };
+    let mut out = Network::with_junctions(1 + k * (nj - 1));
+    for c in 0..k {
+        for l in &net.links {
+            let mut copy = l.clone();
+            copy.from = map(c, l.from);
+            copy.to = map(c, l.to);
+            copy.name = None;
+            out.add_link(copy);
+        }
+    }
+    let fleet = Fleet::with_capacity(one.fleet().capacity);
+    Instance::new(format!("{} x{k}", one.name), out, fleet, 0)
+}
+
 /// Grid spacing (metres).
 const BLOCK: f64 = 120.0;
 /// Junction spacing along suburban rings (metres).
