@@ -27,8 +27,10 @@
 //!
 //! Every route stays feasible at every step, so the best plan is feasible.
 //! Parameter values are the published ones (`c̄ = 10`, `L = 10`, blink rate
-//! 0.01, split depth 0.01; from memory) except the temperatures, which are
-//! set per district from its streets' costs (ours).
+//! 0.01, split depth 0.01; from memory, and the split depth used in our own
+//! reading: the chance of keeping one more street inside a split string)
+//! except the temperatures, which are set per district from its streets'
+//! costs (ours).
 
 use rand::seq::SliceRandom;
 use rand::Rng;
