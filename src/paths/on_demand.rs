@@ -101,6 +101,17 @@ pub(crate) fn settle<G: StateGraph + ?Sized>(
     init: &[(u32, Cost, Cost)],
     until: Until<'_>,
 ) -> Settled {
+    with_scratch(g.states(), |best, done, touched| {
+        settle_in(g, init, until, best, done, touched)
+    })
+}
+
+/// Runs `search` on this thread's search arrays, sized for `states`
+/// states, and resets afterwards the states it touched.
+fn with_scratch<T>(
+    states: usize,
+    search: impl FnOnce(&mut [(Cost, Cost)], &mut [bool], &mut Vec<u32>) -> T,
+) -> T {
     SCRATCH.with(|cell| {
         let mut scratch = cell.borrow_mut();
         let Scratch {
@@ -108,11 +119,11 @@ pub(crate) fn settle<G: StateGraph + ?Sized>(
             done,
             touched,
         } = &mut *scratch;
-        if best.len() < g.states() {
-            best.resize(g.states(), (UNREACHABLE, UNREACHABLE));
-            done.resize(g.states(), false);
+        if best.len() < states {
+            best.resize(states, (UNREACHABLE, UNREACHABLE));
+            done.resize(states, false);
         }
-        let out = settle_in(g, init, until, best, done, touched);
+        let out = search(best, done, touched);
         for &v in touched.iter() {
             best[v as usize] = (UNREACHABLE, UNREACHABLE);
             done[v as usize] = false;
@@ -294,24 +305,8 @@ pub(crate) fn nearest<G: StateGraph + ?Sized>(
     limit: Cost,
     accept: &mut dyn FnMut(u32, Cost, Cost) -> bool,
 ) -> Vec<(u32, Cost, Cost)> {
-    SCRATCH.with(|cell| {
-        let mut scratch = cell.borrow_mut();
-        let Scratch {
-            best,
-            done,
-            touched,
-        } = &mut *scratch;
-        if best.len() < g.states() {
-            best.resize(g.states(), (UNREACHABLE, UNREACHABLE));
-            done.resize(g.states(), false);
-        }
-        let out = nearest_in(g, init, at, offset, limit, accept, best, done, touched);
-        for &v in touched.iter() {
-            best[v as usize] = (UNREACHABLE, UNREACHABLE);
-            done[v as usize] = false;
-        }
-        touched.clear();
-        out
+    with_scratch(g.states(), |best, done, touched| {
+        nearest_in(g, init, at, offset, limit, accept, best, done, touched)
     })
 }
 
